@@ -1,0 +1,69 @@
+/**
+ * Small helpers shared by the CLI commands: option parsing on node:util's parseArgs, typed
+ * number/range parsing, and one-line usage errors (exit status 2).
+ */
+import { type ParseArgsConfig, parseArgs } from 'node:util';
+import { isOrthotoneError } from '../core/errors.js';
+
+/** A usage error: printed as one line, exit status 2. */
+export class UsageError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'UsageError';
+  }
+}
+
+/** Option table for a command: parseArgs options plus a help line per option. */
+export type OptionTable = NonNullable<ParseArgsConfig['options']>;
+
+/** Parses `argv` strictly; unknown options become a {@link UsageError}. */
+export function parseCommand(
+  argv: string[],
+  options: OptionTable,
+  allowPositionals = false,
+): { values: Record<string, string | boolean | string[] | undefined>; positionals: string[] } {
+  try {
+    const r = parseArgs({ args: argv, options, allowPositionals, strict: true });
+    return {
+      values: r.values as Record<string, string | boolean | string[] | undefined>,
+      positionals: r.positionals,
+    };
+  } catch (e) {
+    throw new UsageError((e as Error).message.split('\n')[0] ?? 'bad arguments');
+  }
+}
+
+/** Parses a number option; `undefined` passes through. */
+export function numberOpt(name: string, v: unknown): number | undefined {
+  if (v === undefined) return undefined;
+  const x = Number(v);
+  if (typeof v !== 'string' || v.trim() === '' || !Number.isFinite(x)) {
+    throw new UsageError(`--${name} ${JSON.stringify(v)} is not a number`);
+  }
+  return x;
+}
+
+/** Parses a list of numbers separated by `sep` (e.g. `300:3000`, `700,1900`). */
+export function numberListOpt(name: string, v: unknown, sep: string, count?: number): number[] | undefined {
+  if (v === undefined) return undefined;
+  if (typeof v !== 'string') throw new UsageError(`--${name} needs a value`);
+  const parts = v.split(sep).map((p) => Number(p));
+  if (parts.some((x) => !Number.isFinite(x)) || (count !== undefined && parts.length !== count)) {
+    const shape = count === 2 ? `A${sep}B` : `A${sep}B${sep}…`;
+    throw new UsageError(`--${name} ${JSON.stringify(v)} must be numbers written as ${shape}`);
+  }
+  return parts;
+}
+
+/** Runs a command body, mapping usage and library errors to one line on stderr and exit status 2. */
+export async function runGuarded(body: () => Promise<number> | number): Promise<number> {
+  try {
+    return await body();
+  } catch (e) {
+    if (e instanceof UsageError || isOrthotoneError(e)) {
+      process.stderr.write(`orthotone: ${e.message}\n`);
+      return 2;
+    }
+    throw e;
+  }
+}

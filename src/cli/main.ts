@@ -1,0 +1,59 @@
+/**
+ * The `orthotone` command. Each subcommand lives in its own module exporting
+ * `run(argv): Promise<number>` (the exit status) and a one-line `summary`.
+ */
+import { cautionsText } from '../core/cautions.js';
+import { runGuarded } from './args.js';
+
+interface Command {
+  summary: string;
+  load: () => Promise<{ run(argv: string[]): Promise<number> }>;
+}
+
+const COMMANDS: Record<string, Command> = {
+  // Each command registers here: name → module.
+};
+
+function usage(): string {
+  const rows = Object.entries(COMMANDS).map(([n, c]) => `  ${n.padEnd(10)} ${c.summary}`);
+  return [
+    'orthotone: design, run, measure and calibrate 90° networks for phasing SSB and I/Q exciters',
+    '',
+    'usage: orthotone <command> [options]      (orthotone <command> --help for its options)',
+    '',
+    'commands:',
+    ...rows,
+    '',
+    cautionsText(),
+    '',
+  ].join('\n');
+}
+
+async function main(argv: string[]): Promise<number> {
+  const [name, ...rest] = argv;
+  if (name === undefined || name === '--help' || name === '-h' || name === 'help') {
+    process.stdout.write(usage());
+    return name === undefined ? 2 : 0;
+  }
+  if (name === '--version') {
+    process.stdout.write('orthotone 0.1.0\n');
+    return 0;
+  }
+  const cmd = COMMANDS[name];
+  if (!cmd) {
+    process.stderr.write(`orthotone: unknown command '${name}': run 'orthotone --help' for the list\n`);
+    return 2;
+  }
+  const mod = await cmd.load();
+  return runGuarded(() => mod.run(rest));
+}
+
+main(process.argv.slice(2)).then(
+  (code) => {
+    process.exitCode = code;
+  },
+  (e: unknown) => {
+    process.stderr.write(`orthotone: internal error: ${(e as Error)?.stack ?? String(e)}\n`);
+    process.exitCode = 1;
+  },
+);

@@ -1,0 +1,159 @@
+/**
+ * Option validation helpers. Each throws {@link OrthotoneError} with a message that names the
+ * option, the value and what would be accepted. Used once, at design or construction time.
+ */
+import { OrthotoneError } from './errors.js';
+
+function show(v: unknown): string {
+  if (typeof v === 'number') return Number.isNaN(v) ? 'NaN' : String(v);
+  if (typeof v === 'string') return JSON.stringify(v);
+  if (v === undefined) return 'undefined';
+  try {
+    return JSON.stringify(v) ?? String(v);
+  } catch {
+    return String(v);
+  }
+}
+
+/**
+ * Requires a finite number.
+ * @throws {OrthotoneError} INVALID_ARGUMENT when `v` is not a finite number.
+ */
+export function requireFinite(name: string, v: unknown, hint = ''): number {
+  if (typeof v !== 'number' || !Number.isFinite(v)) {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      `${name} ${show(v)} must be a finite number${hint ? `: ${hint}` : ''}`,
+      v,
+    );
+  }
+  return v;
+}
+
+/**
+ * Requires a finite number in [min, max] (inclusive).
+ * @throws {OrthotoneError} INVALID_ARGUMENT when out of range or not finite.
+ */
+export function requireRange(name: string, v: unknown, min: number, max: number, unit = ''): number {
+  const x = requireFinite(name, v, `use a value from ${min} to ${max}${unit ? ` ${unit}` : ''}`);
+  if (x < min || x > max) {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      `${name} ${x}${unit ? ` ${unit}` : ''} is out of range: use a value from ${min} to ${max}${unit ? ` ${unit}` : ''}`,
+      v,
+    );
+  }
+  return x;
+}
+
+/**
+ * Requires a finite number strictly greater than zero.
+ * @throws {OrthotoneError} INVALID_ARGUMENT otherwise.
+ */
+export function requirePositive(name: string, v: unknown, unit = ''): number {
+  const x = requireFinite(name, v, 'use a positive value');
+  if (x <= 0) {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      `${name} ${x}${unit ? ` ${unit}` : ''} must be greater than 0`,
+      v,
+    );
+  }
+  return x;
+}
+
+/**
+ * Requires an integer in [min, max].
+ * @throws {OrthotoneError} INVALID_ARGUMENT otherwise.
+ */
+export function requireInteger(name: string, v: unknown, min: number, max: number): number {
+  const x = requireFinite(name, v, `use a whole number from ${min} to ${max}`);
+  if (!Number.isInteger(x) || x < min || x > max) {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      `${name} ${x} must be a whole number from ${min} to ${max}`,
+      v,
+    );
+  }
+  return x;
+}
+
+/**
+ * Requires one of a fixed set of string values.
+ * @throws {OrthotoneError} INVALID_ARGUMENT otherwise.
+ */
+export function requireOneOf<T extends string>(name: string, v: unknown, allowed: readonly T[]): T {
+  if (typeof v !== 'string' || !(allowed as readonly string[]).includes(v)) {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      `${name} ${show(v)} is not recognised: use one of ${allowed.map((a) => `'${a}'`).join(', ')}`,
+      v,
+    );
+  }
+  return v as T;
+}
+
+/**
+ * Requires a sample rate in Hz: finite, from 1000 Hz to 1 MHz.
+ * @throws {OrthotoneError} INVALID_ARGUMENT otherwise.
+ */
+export function requireSampleRate(v: unknown): number {
+  return requireRange('sampleRate', v, 1000, 1_000_000, 'Hz');
+}
+
+/**
+ * Validates an audio band `[lo, hi]` in Hz against a sample rate: 0 < lo < hi < fs/2.
+ * @throws {OrthotoneError} INVALID_BAND naming the bad edge and the fix.
+ */
+export function requireBand(band: unknown, sampleRate: number): [number, number] {
+  if (!Array.isArray(band) || band.length !== 2) {
+    throw new OrthotoneError(
+      'INVALID_BAND',
+      `band ${show(band)} must be a pair [lo, hi] in Hz, e.g. [300, 3000]`,
+      band,
+    );
+  }
+  const [lo, hi] = band as [unknown, unknown];
+  const nyq = sampleRate / 2;
+  if (typeof lo !== 'number' || !Number.isFinite(lo) || lo <= 0) {
+    throw new OrthotoneError(
+      'INVALID_BAND',
+      `band lower edge ${show(lo)} Hz must be a finite frequency above 0 Hz (a 90° network cannot reach DC)`,
+      band,
+    );
+  }
+  if (typeof hi !== 'number' || !Number.isFinite(hi)) {
+    throw new OrthotoneError(
+      'INVALID_BAND',
+      `band upper edge ${show(hi)} Hz must be a finite frequency`,
+      band,
+    );
+  }
+  if (hi >= nyq) {
+    throw new OrthotoneError(
+      'INVALID_BAND',
+      `band upper edge ${hi} Hz must be below Nyquist ${nyq} Hz for sampleRate ${sampleRate}: lower the edge or raise the sample rate`,
+      band,
+    );
+  }
+  if (lo >= hi) {
+    throw new OrthotoneError(
+      'INVALID_BAND',
+      `band lower edge ${lo} Hz must be below the upper edge ${hi} Hz: write the band as [lo, hi]`,
+      band,
+    );
+  }
+  return [lo, hi];
+}
+
+/** Merges `partial` over frozen `defaults`, dropping keys whose value is `undefined`. */
+export function withDefaults<T extends object>(defaults: Readonly<T>, partial: Partial<T> | undefined): T {
+  const out = { ...defaults } as T;
+  if (partial) {
+    for (const k of Object.keys(partial) as (keyof T)[]) {
+      const v = partial[k];
+      if (v !== undefined) out[k] = v as T[keyof T];
+    }
+  }
+  return out;
+}

@@ -1,0 +1,6 @@
+/**
+ * orthotone: design, run, measure and calibrate 90° audio networks for phasing-method SSB and
+ * I/Q exciters. Browser-safe entry (no Node APIs); files, WAV and streams live in `orthotone/node`.
+ */
+export * from './core/index.js';
+export * from './design/index.js';

@@ -1,0 +1,2 @@
+/** Node-only entry: files, WAV, streams. */
+export * from '../index.js';

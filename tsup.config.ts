@@ -1,0 +1,22 @@
+import { defineConfig } from 'tsup';
+
+const dts = { compilerOptions: { ignoreDeprecations: '6.0' } };
+
+export default defineConfig([
+  {
+    entry: { index: 'src/index.ts', node: 'src/node/index.ts' },
+    format: ['esm', 'cjs'],
+    dts,
+    sourcemap: true,
+    target: 'es2022',
+    platform: 'neutral',
+    external: ['node:fs', 'node:path', 'node:child_process', 'node:process', 'node:readline', 'wavefile', 'fft.js'],
+  },
+  {
+    entry: { cli: 'src/cli/main.ts' },
+    format: ['esm'],
+    platform: 'node',
+    target: 'node20',
+    banner: { js: '#!/usr/bin/env node' },
+  },
+]);

@@ -1,6 +1,6 @@
 /**
  * The `orthotone` command. Each subcommand lives in its own module exporting
- * `run(argv): Promise<number>` (the exit status) and a one-line `summary`.
+ * `run(argv): Promise<number>` (the exit status); its one-line summary is listed here.
  */
 import { cautionsText } from '../core/cautions.js';
 import { runGuarded } from './args.js';

@@ -1,0 +1,728 @@
+/**
+ * The null seeker: finds the (x, y) setting of two trims that minimises a level read in dB, from a
+ * handful of slow, noisy scalar readings (DESIGN.md §6). It is an ask/tell core (`next()` gives the
+ * setting to try, `tell()` reports what was read there) so that a person typing analyzer readings,
+ * a script or a page measuring automatically all drive it the same way; the async driver is in
+ * `run-null-seeker.ts`.
+ *
+ * Method: every reading is a noisy sample of the bowl `P = c·q(x − x*) + N` (see quadratic-fit.ts).
+ * The seeker reads the start, probes each axis (which also shows whether the trim acts at all),
+ * then alternates a jump to the fitted null with a probe on a ring around it whose radius shrinks
+ * with the fit's own uncertainty toward the floor radius √(N/c); every fit uses every reading
+ * (robustly weighted). It stops when the fit says the target is met, when the null is located
+ * well inside the floor radius (no further reading could show an improvement), at the resolution
+ * of quantised trims, or at the reading budget. The best setting so far is always available.
+ * References: circle intersection from level readings, Hoppenstein, TI SLOA313 (2021); the fitted
+ * bowl, its priors and stop rules are this library's own (DESIGN.md §6, REFERENCES.md §6).
+ */
+import { OrthotoneError } from '../core/errors.js';
+import { requireFinite, requireInteger, requirePositive } from '../core/validate.js';
+import {
+  circleCandidates,
+  fitNullSurface,
+  linearPowerFit,
+  type NullSurface,
+  type SurfaceFit,
+  type SurfacePoint,
+  type SurfacePriors,
+  surfaceDb,
+} from './quadratic-fit.js';
+
+/**
+ * Shape of the bowl the seeker fits.
+ * - `known-curvature`: isotropic with curvature given (sideband in natural units: ¼).
+ * - `isotropic`: isotropic, curvature estimated (carrier with unknown tone level).
+ * - `quadratic`: the general quadratic (trims acting through hardware: unequal, cross-coupled).
+ */
+export type SeekerModel = 'known-curvature' | 'isotropic' | 'quadratic';
+
+/** Why a seeker stopped. */
+export type StopReason =
+  | 'target' // the fit says the target suppression is met at the estimate
+  | 'floor' // the null is located well inside the floor radius: no reading can show more
+  | 'resolution' // the null is located to within the step of quantised trims
+  | 'budget' // maxReadings used
+  | 'trim-inactive' // no trim moves the reading
+  | 'measurement-failed' // readings failed repeatedly
+  | 'aborted'; // stopped from outside
+
+/** Options of {@link createNullSeeker}. Coordinates are in the trims' natural units. */
+export interface NullSeekerOptions {
+  /** Starting setting [x, y]. Default [0, 0]. */
+  start: [number, number];
+  /** Bowl shape. Default `isotropic`. */
+  model: SeekerModel;
+  /** Curvature c (power ratio per squared unit): exact for `known-curvature`, a guess otherwise. */
+  curvature: number;
+  /** Spread of the known curvature, as a standard deviation of ln c. Default 0.15. */
+  curvatureSpread: number;
+  /** Standard deviation of one reading, dB. Default 0.5. */
+  noiseDb: number;
+  /** Measurement floor, dB, when known; otherwise estimated from the readings. */
+  floorDb: number | undefined;
+  /** Stop when the fit puts the level at the estimate below −targetDb (dB). Default: no target. */
+  targetDb: number | undefined;
+  /** Hard budget of readings (failed ones count). Default 16. */
+  maxReadings: number;
+  /** Quantisation step of each trim (hardware trims), natural units; 0 = continuous. */
+  step: [number, number];
+  /** Allowed range of each trim, natural units. */
+  bounds: [[number, number], [number, number]];
+  /** Largest probe step when looking for a trim that acts, natural units, per axis. */
+  maxStep: [number, number];
+  /** Names of the axes, for messages. */
+  axisNames: [string, string];
+  /** Down-weight outlying readings. Default true. */
+  robust: boolean;
+}
+
+const DEFAULTS: Readonly<NullSeekerOptions> = Object.freeze({
+  start: [0, 0] as [number, number],
+  model: 'isotropic' as SeekerModel,
+  curvature: 1,
+  curvatureSpread: 0.15,
+  noiseDb: 0.5,
+  floorDb: undefined,
+  targetDb: undefined,
+  maxReadings: 16,
+  step: [0, 0] as [number, number],
+  bounds: [
+    [-1, 1],
+    [-1, 1],
+  ] as [[number, number], [number, number]],
+  maxStep: [0.1, 0.1] as [number, number],
+  axisNames: ['x', 'y'] as [string, string],
+  robust: true,
+});
+
+/** What a reading was taken for. */
+export type ReadingRole = 'start' | 'probe' | 'jump';
+
+/** One reading as the seeker recorded it. */
+export interface SeekerReading {
+  /** The setting read, natural units. */
+  point: [number, number];
+  /** The level read, dB; NaN when the reading failed. */
+  db: number;
+  role: ReadingRole;
+  /** Robust weight in the latest fit (0 = treated as an outlier; undefined = not fitted). */
+  weight?: number;
+}
+
+/** Whether a trim axis was seen to move the reading. */
+export type AxisStatus = 'unknown' | 'active' | 'inactive';
+
+/** The seeker's current fit, in natural units. */
+export interface SeekerEstimate {
+  /** Fitted null. */
+  centre: [number, number];
+  /** Covariance of the null: [var x, cov xy, var y]. */
+  centreCov: [number, number, number];
+  /** Fitted surface (curvature, floor, anisotropy). */
+  surface: NullSurface;
+  /** Fitted floor, dB. */
+  floorDb: number;
+  /** Floor radius √(N/c), natural units. */
+  floorRadius: number;
+  /** Expected level at the null from its uncertainty alone, floor excluded, dB. */
+  expectedTrueDb: number;
+  /** Weighted RMS residual of the fit, dB. */
+  rmsDb: number;
+}
+
+/** The best setting so far. */
+export interface SeekerBest {
+  point: [number, number];
+  /** Level there: the fit's prediction when `source` is `fit`, else the reading, dB. */
+  levelDb: number;
+  /** `fit`: the fitted null (trusted); `reading`: the lowest reading. */
+  source: 'fit' | 'reading';
+}
+
+/** Saved seeker state (JSON-serialisable): the options and the readings. */
+export interface NullSeekerState {
+  format: 'orthotone-seeker';
+  version: 1;
+  options: NullSeekerOptions;
+  readings: { point: [number, number]; db: number | null }[];
+}
+
+/** The ask/tell seeker. */
+export interface NullSeeker {
+  /** The setting to read next, or undefined when stopped. Repeated calls give the same setting. */
+  next(): [number, number] | undefined;
+  /**
+   * Reports the level read at `point` (which may differ from what `next()` proposed, e.g. after
+   * rounding by hardware). A non-finite `db` records a failed reading.
+   */
+  tell(point: readonly [number, number], db: number): void;
+  /** Removes the last reading (a person mistyped it). */
+  undo(): void;
+  /** Stops the seeker (e.g. on abort); `best()` stays valid. */
+  stop(reason: StopReason): void;
+  /** True once stopped. */
+  readonly done: boolean;
+  readonly stopReason: StopReason | undefined;
+  /** Number of readings taken (failed ones included). */
+  readonly count: number;
+  best(): SeekerBest;
+  estimate(): SeekerEstimate | undefined;
+  readings(): readonly SeekerReading[];
+  axes(): readonly [AxisStatus, AxisStatus];
+  /** Saves the state for a later {@link restoreNullSeeker}. */
+  save(): NullSeekerState;
+  readonly options: Readonly<NullSeekerOptions>;
+}
+
+const LN10_10 = Math.LN10 / 10;
+const dbToPow = (db: number): number => Math.exp(db * LN10_10);
+
+/**
+ * Validates null-seeker options merged over the defaults.
+ * @throws {OrthotoneError} INVALID_ARGUMENT naming the bad option.
+ */
+export function resolveSeekerOptions(partial: Partial<NullSeekerOptions>): NullSeekerOptions {
+  const o: NullSeekerOptions = { ...DEFAULTS, ...stripUndefined(partial) };
+  requireFinite('start[0]', o.start[0]);
+  requireFinite('start[1]', o.start[1]);
+  if (!['known-curvature', 'isotropic', 'quadratic'].includes(o.model)) {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      `model ${JSON.stringify(o.model)} is not recognised: use 'known-curvature', 'isotropic' or 'quadratic'`,
+      o.model,
+    );
+  }
+  requirePositive('curvature', o.curvature);
+  requirePositive('curvatureSpread', o.curvatureSpread);
+  requirePositive('noiseDb', o.noiseDb, 'dB');
+  if (o.floorDb !== undefined) requireFinite('floorDb', o.floorDb, 'give the floor in dB, e.g. -70');
+  if (o.targetDb !== undefined) requireFinite('targetDb', o.targetDb, 'give the suppression in dB, e.g. 60');
+  requireInteger('maxReadings', o.maxReadings, 1, 10_000);
+  for (const j of [0, 1] as const) {
+    const [lo, hi] = o.bounds[j];
+    requireFinite(`bounds[${j}][0]`, lo);
+    requireFinite(`bounds[${j}][1]`, hi);
+    if (!(lo < hi)) {
+      throw new OrthotoneError('INVALID_ARGUMENT', `bounds[${j}] [${lo}, ${hi}] must be written [lo, hi]`);
+    }
+    if (!(o.start[j] >= lo && o.start[j] <= hi)) {
+      throw new OrthotoneError(
+        'INVALID_ARGUMENT',
+        `start ${o.axisNames[j]} ${o.start[j]} lies outside its range [${lo}, ${hi}]: start inside the range`,
+        o.start[j],
+      );
+    }
+    requireFinite(`step[${j}]`, o.step[j]);
+    if (o.step[j] < 0) throw new OrthotoneError('INVALID_ARGUMENT', `step[${j}] ${o.step[j]} must be ≥ 0`);
+    requirePositive(`maxStep[${j}]`, o.maxStep[j]);
+  }
+  return o;
+}
+
+function stripUndefined<T extends object>(p: Partial<T>): Partial<T> {
+  const out: Partial<T> = {};
+  for (const k of Object.keys(p) as (keyof T)[]) if (p[k] !== undefined) out[k] = p[k];
+  return out;
+}
+
+interface PlannedProbe {
+  axis: 0 | 1;
+  sign: 1 | -1;
+  step: number;
+}
+
+/**
+ * Creates a null seeker.
+ * @param options partial options merged over the defaults (start [0,0], isotropic, noise 0.5 dB,
+ *   16 readings).
+ * @throws {OrthotoneError} INVALID_ARGUMENT for a bad option.
+ */
+export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): NullSeeker {
+  const o = resolveSeekerOptions(options);
+  const sigma = o.noiseDb;
+  const readings: SeekerReading[] = [];
+  let status: [AxisStatus, AxisStatus] = ['unknown', 'unknown'];
+  let stepNow: [number, number] = [0, 0];
+  let queue: PlannedProbe[] = [];
+  let startDb = Number.NaN;
+  let fit: SurfaceFit | undefined;
+  let lastJump: [number, number] | undefined;
+  let sinceJump = 0;
+  let jumpsInRow = 0;
+  let probeIndex = 0;
+  let failures = 0;
+  let stopReason: StopReason | undefined;
+  let pending: [number, number] | undefined;
+  let pendingRole: ReadingRole = 'start';
+  let pendingProbe: PlannedProbe | undefined;
+
+  const threshold = Math.max(3 * sigma, 1.5);
+
+  const clampAxis = (j: 0 | 1, v: number): number => {
+    const [lo, hi] = o.bounds[j];
+    let x = Math.min(hi, Math.max(lo, v));
+    const q = o.step[j];
+    if (q > 0) {
+      x = Math.round(x / q) * q;
+      if (x > hi) x -= q;
+      if (x < lo) x += q;
+    }
+    return x;
+  };
+
+  const floorPrior = (): { mean: number; sd: number } =>
+    o.floorDb !== undefined
+      ? { mean: o.floorDb * LN10_10, sd: 0.35 }
+      : { mean: (startDb - 40) * LN10_10, sd: 3 };
+
+  const okReadings = (): SeekerReading[] => readings.filter((r) => Number.isFinite(r.db));
+
+  /** Readings used in fits: with one axis inactive, only those with that axis at its start. */
+  const fitPoints = (): { pts: SurfacePoint[]; src: SeekerReading[] } => {
+    const src = okReadings().filter((r) =>
+      status.every((s, j) => s !== 'inactive' || r.point[j] === o.start[j as 0 | 1]),
+    );
+    return { pts: src.map((r) => ({ x: r.point[0], y: r.point[1], db: r.db })), src };
+  };
+
+  const priors = (): SurfacePriors => {
+    const span = 10 * Math.max(o.maxStep[0], o.maxStep[1]);
+    const oneD = status.includes('inactive');
+    const lc = Math.log(o.curvature);
+    const free = o.model === 'quadratic' && !oneD;
+    return {
+      cx: status[0] === 'inactive' ? { mean: o.start[0], sd: 0 } : { mean: o.start[0], sd: span },
+      cy: status[1] === 'inactive' ? { mean: o.start[1], sd: 0 } : { mean: o.start[1], sd: span },
+      logC: { mean: lc, sd: o.model === 'known-curvature' ? o.curvatureSpread : 5 },
+      logN: floorPrior(),
+      s: oneD ? { mean: 0, sd: 0 } : { mean: 0, sd: free ? 3 : o.model === 'known-curvature' ? 0.05 : 0.2 },
+      k: oneD ? { mean: 0, sd: 0 } : { mean: 0, sd: free ? 1 : o.model === 'known-curvature' ? 0.05 : 0.2 },
+    };
+  };
+
+  const refit = (): void => {
+    const { pts, src } = fitPoints();
+    if (pts.length < 2) {
+      fit = undefined;
+      return;
+    }
+    const pr = priors();
+    const floor = Math.exp(pr.logN.mean);
+    const starts: NullSurface[] = [];
+    const base = {
+      logC: pr.logC.mean,
+      logN: pr.logN.mean,
+      s: 0,
+      k: 0,
+    };
+    if (fit) starts.push(fit.surface);
+    const cNow = fit ? Math.exp(fit.surface.logC) : Math.exp(pr.logC.mean);
+    const cs = fit ? [cNow] : o.model === 'known-curvature' ? [cNow] : [cNow, cNow * 30, cNow / 30];
+    for (const c of cs) {
+      const lin = linearPowerFit(pts, 'known-curvature', Math.log(c), floor);
+      if (lin) starts.push({ ...lin, s: 0, k: 0, logC: Math.log(c) });
+    }
+    if (o.model !== 'known-curvature') {
+      const lin = linearPowerFit(pts, 'isotropic', 0, floor);
+      if (lin) starts.push({ ...lin, s: 0, k: 0 });
+    }
+    if (o.model === 'quadratic') {
+      const lin = linearPowerFit(pts, 'quadratic', 0, floor);
+      if (lin) starts.push(lin);
+    }
+    // Circle intersections from the two lowest readings, for the under-determined early fits.
+    const sorted = [...pts].sort((a, b) => a.db - b.db);
+    if (sorted.length >= 2 && pts.length <= 4) {
+      for (const c of cs) {
+        for (const cand of circleCandidates(sorted[0]!, sorted[1]!, c, floor)) {
+          starts.push({ ...base, logC: Math.log(c), cx: cand.x, cy: cand.y });
+        }
+      }
+    }
+    if (starts.length === 0) starts.push({ ...base, cx: sorted[0]!.x, cy: sorted[0]!.y });
+    for (const s of starts) {
+      if (status[0] === 'inactive') s.cx = o.start[0];
+      if (status[1] === 'inactive') s.cy = o.start[1];
+    }
+    fit = fitNullSurface(pts, { noiseDb: sigma, priors: pr, robust: o.robust, starts });
+    src.forEach((r, i) => {
+      r.weight = fit!.weights[i];
+    });
+  };
+
+  const estimate = (): SeekerEstimate | undefined => {
+    if (!fit) return undefined;
+    const s = fit.surface;
+    const [vxx, vxy, vyy] = fit.centreCov;
+    const c = Math.exp(s.logC);
+    const es = Math.exp(s.s);
+    const cEff = c * (status[0] === 'inactive' ? 1 / es : status[1] === 'inactive' ? es : (es + 1 / es) / 2);
+    const excess = c * (es * vxx + 2 * s.k * vxy + vyy / es);
+    return {
+      centre: [s.cx, s.cy],
+      centreCov: [vxx, vxy, vyy],
+      surface: s,
+      floorDb: s.logN / LN10_10,
+      floorRadius: Math.sqrt(Math.exp(s.logN) / cEff),
+      expectedTrueDb: 10 * Math.log10(Math.max(excess, 1e-30)),
+      rmsDb: fit.rmsDb,
+    };
+  };
+
+  /** Whether the fitted null is trusted as the best setting. */
+  const trusted = (): boolean => {
+    const e = estimate();
+    if (!e || !fit) return false;
+    const { pts } = fitPoints();
+    if (pts.length < fit.freeParameters - 1 || pts.length < 3) return false;
+    if (!(e.rmsDb <= Math.max(3 * sigma, 1.5))) return false;
+    if (!inBounds(e.centre)) return false;
+    // No wild extrapolation: the null must lie within the distance the lowest reading implies.
+    const lowest = [...pts].sort((a, b) => a.db - b.db)[0]!;
+    const d = Math.hypot(e.centre[0] - lowest.x, e.centre[1] - lowest.y);
+    const implied = Math.sqrt(Math.max(dbToPow(lowest.db + 3 * sigma), 0) / Math.exp(e.surface.logC));
+    const spread = Math.sqrt(e.centreCov[0] + e.centreCov[2]);
+    if (d > 2 * implied + 3 * spread + o.step[0] + o.step[1]) return false;
+    // The prediction at the null must not be worse than the lowest reading, and must be clearly
+    // better than the start (otherwise the start, or the lowest reading, is the safer answer).
+    const predicted = surfaceDb(e.surface, e.centre[0], e.centre[1]);
+    return predicted <= lowest.db + 2 * sigma && predicted <= startDb - 3 * sigma;
+  };
+
+  const inBounds = (p: readonly [number, number]): boolean =>
+    p[0] >= o.bounds[0][0] && p[0] <= o.bounds[0][1] && p[1] >= o.bounds[1][0] && p[1] <= o.bounds[1][1];
+
+  const best = (): SeekerBest => {
+    const ok = okReadings();
+    if (ok.length === 0) return { point: [...o.start], levelDb: Number.NaN, source: 'reading' };
+    if (trusted()) {
+      const e = estimate()!;
+      const p: [number, number] = [clampAxis(0, e.centre[0]), clampAxis(1, e.centre[1])];
+      return { point: p, levelDb: surfaceDb(e.surface, p[0], p[1]), source: 'fit' };
+    }
+    let b = ok[0]!;
+    for (const r of ok) if (r.db < b.db && (r.weight ?? 1) > 0) b = r;
+    return { point: [...b.point], levelDb: b.db, source: 'reading' };
+  };
+
+  const rounded = (p: [number, number]): [number, number] => [clampAxis(0, p[0]), clampAxis(1, p[1])];
+
+  const nearestRead = (p: readonly [number, number]): number => {
+    let d = Number.POSITIVE_INFINITY;
+    for (const r of okReadings()) d = Math.min(d, Math.hypot(r.point[0] - p[0], r.point[1] - p[1]));
+    return d;
+  };
+
+  /**
+   * The floor is only believed when the last few readings include a ring probe (a reading on the
+   * bowl's wall, which separates "near the null over a floor" from "on a flat misfit") and all of
+   * them agree with the fit.
+   */
+  const recentFitConsistent = (): boolean => {
+    const recent = okReadings().slice(-3);
+    if (!recent.some((r) => r.role === 'probe') || !fit) return false;
+    return recent.every(
+      (r) => Math.abs(r.db - surfaceDb(fit!.surface, r.point[0], r.point[1])) <= 2.5 * sigma,
+    );
+  };
+
+  const checkStop = (): void => {
+    if (stopReason) return;
+    if (readings.length >= o.maxReadings) {
+      stopReason = 'budget';
+      return;
+    }
+    if (failures >= 3) {
+      stopReason = 'measurement-failed';
+      return;
+    }
+    if (status[0] === 'inactive' && status[1] === 'inactive') {
+      stopReason = 'trim-inactive';
+      return;
+    }
+    if (queue.length > 0 || status.includes('unknown')) return;
+    const e = estimate();
+    if (!e || !trusted() || !lastJump) return;
+    const b = best().point;
+    const spread = Math.sqrt(e.centreCov[0] + e.centreCov[2]);
+    const atBest = Math.hypot(b[0] - lastJump[0], b[1] - lastJump[1]) <= Math.max(0.5 * spread, 1e-15);
+    if (!atBest) return;
+    if (o.targetDb !== undefined && e.expectedTrueDb + 5 <= -o.targetDb) {
+      stopReason = 'target';
+      return;
+    }
+    // A floor that high above the start's level is more likely a misfit than a result: keep reading.
+    if (
+      e.expectedTrueDb <= e.floorDb - 10 &&
+      sinceJump === 0 &&
+      e.floorDb <= startDb - 10 &&
+      recentFitConsistent()
+    ) {
+      stopReason = 'floor';
+      return;
+    }
+    const q = Math.max(o.step[0], o.step[1]);
+    if (q > 0 && Math.sqrt(Math.max(e.centreCov[0], e.centreCov[2])) < 0.3 * q) stopReason = 'resolution';
+  };
+
+  const plan = (): void => {
+    pending = undefined;
+    pendingProbe = undefined;
+    if (stopReason) return;
+    if (readings.length === 0 || okReadings().length === 0) {
+      pending = [...o.start];
+      pendingRole = 'start';
+      return;
+    }
+    const last = readings[readings.length - 1]!;
+    if (!Number.isFinite(last.db)) {
+      // Retry the setting whose reading failed.
+      pending = [...last.point];
+      pendingRole = last.role;
+      pendingProbe = lastProbe;
+      return;
+    }
+    const p0 = o.start;
+    if (queue.length > 0) {
+      const pr = queue[0]!;
+      const p: [number, number] = [...p0];
+      p[pr.axis] = p0[pr.axis] + pr.sign * pr.step;
+      let r = rounded(p);
+      if (r[pr.axis] === p0[pr.axis]) {
+        // Pushed back onto the start by rounding or a bound: step the other way, or one quantum.
+        p[pr.axis] = p0[pr.axis] - pr.sign * pr.step;
+        r = rounded(p);
+        if (r[pr.axis] === p0[pr.axis] && o.step[pr.axis] > 0) {
+          p[pr.axis] = p0[pr.axis] + pr.sign * o.step[pr.axis];
+          r = rounded(p);
+        }
+      }
+      pending = r;
+      pendingRole = 'probe';
+      pendingProbe = pr;
+      return;
+    }
+    const e = estimate();
+    const centre = e && trusted() ? e.centre : best().point;
+    const target = rounded([centre[0], centre[1]]);
+    const remaining = o.maxReadings - readings.length;
+    const spread = e ? Math.sqrt(e.centreCov[0] + e.centreCov[2]) : 0;
+    const moved =
+      lastJump === undefined || Math.hypot(target[0] - lastJump[0], target[1] - lastJump[1]) > 0.5 * spread;
+    const unread = nearestRead(target) > Math.max(0.25 * spread, 1e-15);
+    if (unread && (remaining === 1 || sinceJump > 0 || (moved && jumpsInRow < 2))) {
+      pending = target;
+      pendingRole = 'jump';
+      return;
+    }
+    // A probe on the ring: along the direction the null is least certain, alternating sides.
+    let radius: number;
+    let dir: [number, number];
+    if (e) {
+      const [a, b, c] = e.centreCov;
+      const tr = a + c;
+      const disc = Math.sqrt(Math.max(0, ((a - c) / 2) ** 2 + b * b));
+      const lmax = tr / 2 + disc;
+      const angle = 0.5 * Math.atan2(2 * b, a - c) + (probeIndex % 4 >= 2 ? Math.PI / 2 : 0);
+      dir = [Math.cos(angle), Math.sin(angle)];
+      radius = Math.max(e.floorRadius, 2 * Math.sqrt(Math.max(lmax, 0)));
+    } else {
+      dir = [1, 0];
+      radius = stepNow[0] || o.maxStep[0];
+    }
+    if (status[0] === 'inactive') dir = [0, 1];
+    if (status[1] === 'inactive') dir = [1, 0];
+    const sgn = probeIndex % 2 === 0 ? 1 : -1;
+    radius = Math.min(radius, Math.max(o.maxStep[0], o.maxStep[1]));
+    let p = rounded([centre[0] + sgn * radius * dir[0], centre[1] + sgn * radius * dir[1]]);
+    for (let grow = 0; grow < 4 && nearestRead(p) === 0; grow++) {
+      // Quantised trims: push the probe out until it reaches an unread setting.
+      radius += Math.max(o.step[0], o.step[1]);
+      p = rounded([centre[0] + sgn * radius * dir[0], centre[1] + sgn * radius * dir[1]]);
+    }
+    pending = p;
+    pendingRole = 'probe';
+  };
+
+  let lastProbe: PlannedProbe | undefined;
+
+  const afterStart = (db: number): void => {
+    startDb = db;
+    const P0 = dbToPow(db);
+    const floor = o.floorDb !== undefined ? dbToPow(o.floorDb) : 0;
+    const d0 = Math.sqrt(Math.max(P0 - floor, P0 * 0.05) / o.curvature);
+    for (const j of [0, 1] as const) {
+      stepNow[j] = Math.min(o.maxStep[j], Math.max(d0, o.step[j]));
+    }
+    queue = [
+      { axis: 0, sign: 1, step: stepNow[0] },
+      { axis: 1, sign: 1, step: stepNow[1] },
+    ];
+  };
+
+  const afterProbe = (pr: PlannedProbe, db: number): void => {
+    queue.shift();
+    const moved = Math.abs(db - startDb) > threshold;
+    if (moved) {
+      status[pr.axis] = 'active';
+      if (pr.axis === 0 && o.model !== 'known-curvature' && queue[0]?.axis === 1 && queue[0].sign === 1) {
+        // Unknown curvature: a probe far beyond the null reads ρ = P1/P0 ≫ 1, and the distance to
+        // the null is then about step/√ρ; size the second axis's probe to match.
+        const rho = dbToPow(db - startDb);
+        if (rho > 4) {
+          const s = Math.max(pr.step / Math.sqrt(rho), o.step[1], 1e-12);
+          queue[0] = { ...queue[0], step: Math.min(s, o.maxStep[1]) };
+          stepNow[1] = queue[0].step;
+        }
+      }
+      return;
+    }
+    if (pr.sign === 1) {
+      queue.push({ axis: pr.axis, sign: -1, step: pr.step });
+      return;
+    }
+    if (pr.step >= o.maxStep[pr.axis]) {
+      status[pr.axis] = 'inactive';
+      return;
+    }
+    const s = Math.min(pr.step * 4, o.maxStep[pr.axis]);
+    stepNow[pr.axis] = s;
+    queue.push({ axis: pr.axis, sign: 1, step: s });
+  };
+
+  const record = (point: readonly [number, number], db: number): void => {
+    const role = pending ? pendingRole : readings.length === 0 ? 'start' : 'probe';
+    const pr = pendingProbe;
+    readings.push({ point: [point[0], point[1]], db, role });
+    if (!Number.isFinite(db)) {
+      failures++;
+      lastProbe = pr;
+      return;
+    }
+    failures = 0;
+    if (role === 'start' && Number.isNaN(startDb)) afterStart(db);
+    else if (pr && queue[0] === pr) afterProbe(pr, db);
+    if (role === 'jump') {
+      lastJump = [point[0], point[1]];
+      sinceJump = 0;
+      jumpsInRow++;
+    } else if (role === 'probe' && !pr) {
+      sinceJump++;
+      probeIndex++;
+      jumpsInRow = 0;
+    }
+    if (queue.length === 0 && !status.includes('unknown')) refit();
+    else if (queue.length === 0) refit();
+  };
+
+  const seeker: NullSeeker = {
+    next() {
+      if (stopReason) return undefined;
+      if (!pending) plan();
+      return pending ? [pending[0], pending[1]] : undefined;
+    },
+    tell(point, db) {
+      if (stopReason) {
+        throw new OrthotoneError(
+          'INVALID_ARGUMENT',
+          `the seeker has stopped (${stopReason}): read no more settings, take best()`,
+        );
+      }
+      requireFinite('point[0]', point[0]);
+      requireFinite('point[1]', point[1]);
+      if (!pending) plan();
+      record(point, db);
+      checkStop();
+      plan();
+    },
+    undo() {
+      if (readings.length === 0) return;
+      const keep = readings.slice(0, -1).map((r) => ({ point: r.point, db: r.db }));
+      reset();
+      for (const r of keep) seeker.tell(r.point, r.db);
+    },
+    stop(reason) {
+      if (!stopReason) stopReason = reason;
+      pending = undefined;
+    },
+    get done() {
+      return stopReason !== undefined;
+    },
+    get stopReason() {
+      return stopReason;
+    },
+    get count() {
+      return readings.length;
+    },
+    best,
+    estimate,
+    readings: () => readings,
+    axes: () => [status[0], status[1]],
+    save: () => ({
+      format: 'orthotone-seeker',
+      version: 1,
+      options: { ...o },
+      readings: readings.map((r) => ({
+        point: [r.point[0], r.point[1]],
+        db: Number.isFinite(r.db) ? r.db : null,
+      })),
+    }),
+    options: o,
+  };
+
+  function reset(): void {
+    readings.length = 0;
+    status = ['unknown', 'unknown'];
+    stepNow = [0, 0];
+    queue = [];
+    startDb = Number.NaN;
+    fit = undefined;
+    lastJump = undefined;
+    sinceJump = 0;
+    jumpsInRow = 0;
+    probeIndex = 0;
+    failures = 0;
+    stopReason = undefined;
+    pending = undefined;
+    pendingProbe = undefined;
+    lastProbe = undefined;
+  }
+
+  return seeker;
+}
+
+/**
+ * Recreates a seeker from {@link NullSeeker.save} output by replaying its readings (the seeker is
+ * deterministic given its readings).
+ * @throws {OrthotoneError} INVALID_DOCUMENT when the state is not a saved seeker.
+ */
+export function restoreNullSeeker(state: unknown): NullSeeker {
+  const s = state as NullSeekerState;
+  if (
+    !s ||
+    typeof s !== 'object' ||
+    s.format !== 'orthotone-seeker' ||
+    s.version !== 1 ||
+    !Array.isArray(s.readings) ||
+    typeof s.options !== 'object'
+  ) {
+    throw new OrthotoneError(
+      'INVALID_DOCUMENT',
+      'saved seeker state must be an object with format "orthotone-seeker", version 1, options and readings: pass what save() returned',
+      state,
+    );
+  }
+  const seeker = createNullSeeker(s.options);
+  for (const r of s.readings) {
+    if (
+      !Array.isArray(r.point) ||
+      r.point.length !== 2 ||
+      !(r.db === null || (typeof r.db === 'number' && Number.isFinite(r.db)))
+    ) {
+      throw new OrthotoneError('INVALID_DOCUMENT', `saved reading ${JSON.stringify(r)} is malformed`, r);
+    }
+    if (seeker.done) break;
+    seeker.tell([r.point[0], r.point[1]], r.db ?? Number.NaN);
+  }
+  return seeker;
+}

@@ -4,3 +4,5 @@
  */
 export * from './core/index.js';
 export * from './design/index.js';
+export * from './generate/index.js';
+export * from './webaudio/index.js';

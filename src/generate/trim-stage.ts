@@ -1,0 +1,687 @@
+/**
+ * The trim stage that follows a 90° network (DESIGN.md §4), in this order:
+ *
+ * 1. sideband and gain/phase: `Q' = 10^(gainDb/20)·(s·Q·cos φ + I·sin φ)`, `I' = I`, with s = +1 for
+ *    the upper sideband and −1 for the lower (Q negated before the trims, so one set of trims,
+ *    which corrects the hardware after the library, serves both sidebands);
+ * 1b. the optional frequency-dependent correction (widely-linear FIR pair, `Correction` in
+ *    src/core/trims.ts): `Q_c = qFromQ ∗ Q' + qFromI ∗ I'`, I' delayed to stay aligned;
+ * 2. skew: Q delayed by `skewSamples` relative to I, fractional and possibly negative; both paths
+ *    carry a fixed bulk delay so that negative skew is causal (see {@link TrimStage.latencySamples});
+ * 3. DC: `I'' = I' + dcI`, `Q'' = Q' + dcQ`, last, so DC never scales.
+ *
+ * Every change of trims or sideband is ramped linearly (in the natural units `A = s·g·cos φ`,
+ * `B = g·sin φ`, skew, dcI, dcQ) over `rampSeconds`, so it does not click. The ramp advances per
+ * sample, so output never depends on block partitioning. The correction length is preallocated
+ * (`maxCorrectionTaps`) and a new correction takes effect at the next block boundary.
+ *
+ * The stage also guards the output: samples beyond full scale (|x| > 1) are counted, never clipped
+ * silently; magnitudes below 1e-30 are written as 0 (no subnormal floats leave the stage); a
+ * magnitude beyond {@link OUTPUT_LIMIT} is limited there (and counted) so the output stays finite.
+ */
+import { OrthotoneError } from '../core/errors.js';
+import { type Correction, TRIM_LIMITS, type Trims, validateTrims, ZERO_TRIMS } from '../core/trims.js';
+import { requireOneOf, requireRange, withDefaults } from '../core/validate.js';
+import { DEFAULT_MAX_CORRECTION_TAPS, validateCorrection } from './correction.js';
+import { FRACTIONAL_DELAY_TAPS, fractionalDelayTaps } from './fractional-delay.js';
+import { RUNTIME_CHUNK } from './network-runtime.js';
+
+/** Which sideband the I/Q pair selects after upconversion (DESIGN.md §2). */
+export type Sideband = 'upper' | 'lower';
+
+/** Options of a trim stage (and of a quadrature generator). */
+export interface TrimStageOptions {
+  /** Initial trims (applied at once, not ramped). Default all zero. */
+  trims: Partial<Trims>;
+  /** Initial sideband. Default 'upper'. */
+  sideband: Sideband;
+  /** Ramp time for trim, sideband changes, seconds (0 = immediate). Default 0.01. */
+  rampSeconds: number;
+  /** Largest |skewSamples| this stage supports, samples, 0 to 16. Default 16. 0 removes the skew delay. */
+  maxSkewSamples: number;
+  /** Longest correction it can run, taps (odd, up to 255), or 0 for none. Default 63. */
+  maxCorrectionTaps: number;
+  /** Initial correction, or null. Default null. */
+  correction: Correction | null;
+}
+
+/** Defaults for {@link TrimStageOptions}. */
+export const TRIM_STAGE_DEFAULTS: Readonly<TrimStageOptions> = Object.freeze({
+  trims: ZERO_TRIMS,
+  sideband: 'upper' as Sideband,
+  rampSeconds: 0.01,
+  maxSkewSamples: TRIM_LIMITS.skewSamples,
+  maxCorrectionTaps: DEFAULT_MAX_CORRECTION_TAPS,
+  correction: null,
+});
+
+/** Counters kept by a generator; read them at any time, reset with `resetStats()`. */
+export interface GeneratorStats {
+  /** Samples (I and Q counted separately) written so far. */
+  samplesOut: number;
+  /** Input samples that were NaN or ±Infinity and were replaced by 0. */
+  nonFiniteInputs: number;
+  /** Finite input samples beyond ±{@link INPUT_LIMIT}, limited there. */
+  clampedInputs: number;
+  /** Output samples (I and Q counted separately) with magnitude above full scale (1.0). */
+  overFullScale: number;
+  /** Largest output magnitude seen, full-scale units (1.0 = 0 dBFS). */
+  peak: number;
+}
+
+/** Input magnitude limit, full-scale units (+120 dBFS): beyond it input is limited and counted. */
+export const INPUT_LIMIT = 1e6;
+/** Output magnitude limit, full-scale units: keeps the output finite for any finite input. */
+export const OUTPUT_LIMIT = 1e9;
+/** Output magnitudes below this are written as exactly 0 (no subnormal floats). */
+export const OUTPUT_FLUSH = 1e-30;
+
+const SPARE = 16 * RUNTIME_CHUNK;
+const FD_TAPS = FRACTIONAL_DELAY_TAPS;
+const FD_HALF = FD_TAPS / 2 - 1;
+
+/** A new zeroed stats object. */
+export function emptyStats(): GeneratorStats {
+  return { samplesOut: 0, nonFiniteInputs: 0, clampedInputs: 0, overFullScale: 0, peak: 0 };
+}
+
+/**
+ * Validates trim stage options merged over {@link TRIM_STAGE_DEFAULTS}.
+ * @throws {OrthotoneError} INVALID_ARGUMENT naming the option, its value and the allowed range.
+ */
+export function validateTrimStageOptions(o: TrimStageOptions): TrimStageOptions {
+  validateTrims(o.trims);
+  requireOneOf('sideband', o.sideband, ['upper', 'lower'] as const);
+  requireRange('rampSeconds', o.rampSeconds, 0, 10, 's');
+  requireRange('maxSkewSamples', o.maxSkewSamples, 0, TRIM_LIMITS.skewSamples, 'samples');
+  const m = requireRange('maxCorrectionTaps', o.maxCorrectionTaps, 0, 255, 'taps');
+  if (!Number.isInteger(m) || (m !== 0 && m % 2 === 0)) {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      `maxCorrectionTaps ${m} must be 0 or an odd whole number (e.g. 63)`,
+      m,
+    );
+  }
+  if (o.correction !== null) validateCorrection(o.correction, m);
+  const skew = o.trims.skewSamples ?? 0;
+  if (Math.abs(skew) > o.maxSkewSamples) {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      `skewSamples ${skew} exceeds maxSkewSamples ${o.maxSkewSamples}: raise maxSkewSamples (up to ${TRIM_LIMITS.skewSamples})`,
+      skew,
+    );
+  }
+  return o;
+}
+
+/** Natural-unit parameters: A, B, skew, dcI, dcQ. */
+const NP = 5;
+
+function naturalParams(t: Trims, sign: number, out: Float64Array): void {
+  const g = 10 ** (t.gainDb / 20);
+  const phi = (t.phaseDeg * Math.PI) / 180;
+  out[0] = sign * g * Math.cos(phi);
+  out[1] = g * Math.sin(phi);
+  out[2] = t.skewSamples;
+  out[3] = t.dcI;
+  out[4] = t.dcQ;
+}
+
+/**
+ * Sanitises `n` input samples from `src[from…]` into `dst[0…]`: NaN/±Inf → 0 and counted, beyond
+ * ±INPUT_LIMIT limited and counted, magnitudes below OUTPUT_FLUSH → 0.
+ */
+export function sanitiseInput(
+  src: Float32Array | Float64Array,
+  from: number,
+  n: number,
+  dst: Float64Array,
+  stats: GeneratorStats,
+): void {
+  for (let j = 0; j < n; j++) {
+    let v = src[from + j]!;
+    const a = v < 0 ? -v : v;
+    if (!(a <= INPUT_LIMIT)) {
+      if (Number.isFinite(a)) {
+        stats.clampedInputs++;
+        v = v > 0 ? INPUT_LIMIT : -INPUT_LIMIT;
+      } else {
+        stats.nonFiniteInputs++;
+        v = 0;
+      }
+    } else if (a < OUTPUT_FLUSH) v = 0;
+    dst[j] = v;
+  }
+}
+
+/**
+ * The trim stage. Use it through {@link createQuadratureGenerator}, or on its own after an ideal
+ * analytic source (`process`), to compare a network against the ideal with the same trims.
+ */
+export class TrimStage {
+  /** Sample rate, Hz. */
+  readonly sampleRate: number;
+  /** Largest |skewSamples| supported, samples. */
+  readonly maxSkewSamples: number;
+  /** Longest correction supported, taps (0 = none). */
+  readonly maxCorrectionTaps: number;
+  /**
+   * Delay this stage adds to both I and Q, whole samples: `(maxCorrectionTaps − 1)/2` for the
+   * correction plus `ceil(maxSkewSamples) + 15` bulk delay for the skew interpolator (0 when off).
+   */
+  readonly latencySamples: number;
+  /** Counters (live object, updated in place). */
+  readonly stats: GeneratorStats = emptyStats();
+
+  private rampDefault: number;
+  private targetTrims: Trims;
+  private sidebandSel: Sideband;
+  private readonly cur = new Float64Array(NP);
+  private readonly start = new Float64Array(NP);
+  private readonly tgt = new Float64Array(NP);
+  private rampPos = 0;
+  private rampLen = 0;
+  // per-sample parameter values inside a ramped chunk
+  private readonly rSkew = new Float64Array(RUNTIME_CHUNK);
+  private readonly rDcI = new Float64Array(RUNTIME_CHUNK);
+  private readonly rDcQ = new Float64Array(RUNTIME_CHUNK);
+  private readonly q1 = new Float64Array(RUNTIME_CHUNK);
+  private readonly i2 = new Float64Array(RUNTIME_CHUNK);
+  private readonly q2 = new Float64Array(RUNTIME_CHUNK);
+  private readonly inI = new Float64Array(RUNTIME_CHUNK);
+  private readonly inQ = new Float64Array(RUNTIME_CHUNK);
+  // correction
+  private readonly kc: number;
+  private readonly cHistI: Float64Array;
+  private readonly cHistQ: Float64Array;
+  private cWp: number;
+  private readonly cQ: Float64Array;
+  private readonly cI: Float64Array;
+  private cLen = 0;
+  private cOff = 0;
+  private correctionDoc: Correction | null = null;
+  // skew
+  private readonly bulk: number;
+  private readonly sHistI: Float64Array;
+  private readonly sHistQ: Float64Array;
+  private readonly sKeep: number;
+  private sWp: number;
+  private readonly steadyTaps = new Float64Array(FD_TAPS);
+  private readonly rampTaps = new Float64Array(FD_TAPS);
+  private steadyInt = 0;
+  private steadyFrac = 0;
+
+  /**
+   * @param sampleRate sample rate, Hz (used for the ramp time).
+   * @param options partial options over {@link TRIM_STAGE_DEFAULTS}.
+   * @throws {OrthotoneError} INVALID_ARGUMENT for an option out of range (see
+   *   {@link validateTrimStageOptions}).
+   */
+  constructor(sampleRate: number, options?: Partial<TrimStageOptions>) {
+    const o = validateTrimStageOptions(withDefaults(TRIM_STAGE_DEFAULTS, options));
+    this.sampleRate = requireRange('sampleRate', sampleRate, 1000, 1_000_000, 'Hz');
+    this.rampDefault = Math.round(o.rampSeconds * sampleRate);
+    this.maxSkewSamples = o.maxSkewSamples;
+    this.maxCorrectionTaps = o.maxCorrectionTaps;
+    this.targetTrims = { ...ZERO_TRIMS, ...stripUndefined(o.trims) };
+    this.sidebandSel = o.sideband;
+    // correction
+    const lm = o.maxCorrectionTaps;
+    this.kc = lm > 0 ? (lm - 1) / 2 : 0;
+    this.cHistI = new Float64Array(lm > 0 ? lm - 1 + SPARE : 0);
+    this.cHistQ = new Float64Array(lm > 0 ? lm - 1 + SPARE : 0);
+    this.cWp = lm > 0 ? lm - 1 : 0;
+    this.cQ = new Float64Array(lm);
+    this.cI = new Float64Array(lm);
+    // skew: I delayed by `bulk`, Q by bulk + skew; the interpolator reaches FD_HALF samples ahead.
+    const ms = Math.ceil(o.maxSkewSamples);
+    this.bulk = ms > 0 ? ms + FD_HALF : 0;
+    this.sKeep = ms > 0 ? this.bulk + ms + FD_TAPS / 2 + 1 : 0;
+    this.sHistI = new Float64Array(ms > 0 ? this.sKeep + SPARE : 0);
+    this.sHistQ = new Float64Array(ms > 0 ? this.sKeep + SPARE : 0);
+    this.sWp = this.sKeep;
+    this.latencySamples = this.kc + this.bulk;
+    naturalParams(this.targetTrims, this.sign(), this.tgt);
+    this.cur.set(this.tgt);
+    this.updateSteadySkew();
+    if (o.correction) this.setCorrection(o.correction);
+  }
+
+  private sign(): number {
+    return this.sidebandSel === 'lower' ? -1 : 1;
+  }
+
+  /** The trims the stage is at or ramping towards. */
+  get trims(): Readonly<Trims> {
+    return this.targetTrims;
+  }
+
+  /** The selected sideband. */
+  get sideband(): Sideband {
+    return this.sidebandSel;
+  }
+
+  /** The correction in use, or null. */
+  get correction(): Correction | null {
+    return this.correctionDoc;
+  }
+
+  /** True while a trim or sideband change is still ramping. */
+  get ramping(): boolean {
+    return this.rampPos < this.rampLen;
+  }
+
+  /**
+   * Changes some trims (the others keep their values); ramps from the current values.
+   * @param t trims to change (DESIGN.md §4 units).
+   * @param opts `rampSeconds` overrides the stage's ramp time for this change (0 = immediate).
+   * @throws {OrthotoneError} INVALID_ARGUMENT when a trim is non-finite or out of range
+   *   (`validateTrims`), or |skewSamples| exceeds `maxSkewSamples`.
+   */
+  setTrims(t: Partial<Trims>, opts?: { rampSeconds?: number }): void {
+    validateTrims(t);
+    if (t.skewSamples !== undefined && Math.abs(t.skewSamples) > this.maxSkewSamples) {
+      throw new OrthotoneError(
+        'INVALID_ARGUMENT',
+        `skewSamples ${t.skewSamples} exceeds maxSkewSamples ${this.maxSkewSamples}: create the generator with a larger maxSkewSamples (up to ${TRIM_LIMITS.skewSamples})`,
+        t.skewSamples,
+      );
+    }
+    const ramp = this.rampFor(opts);
+    this.targetTrims = { ...this.targetTrims, ...stripUndefined(t) };
+    this.retarget(ramp);
+  }
+
+  /**
+   * Selects the sideband (Q negated for 'lower'), ramped like a trim change.
+   * @throws {OrthotoneError} INVALID_ARGUMENT for anything but 'upper' or 'lower'.
+   */
+  setSideband(sideband: Sideband, opts?: { rampSeconds?: number }): void {
+    requireOneOf('sideband', sideband, ['upper', 'lower'] as const);
+    const ramp = this.rampFor(opts);
+    this.sidebandSel = sideband;
+    this.retarget(ramp);
+  }
+
+  /**
+   * Sets or removes (null) the frequency-dependent correction; it takes effect at the next block.
+   * Its taps are copied into storage preallocated at construction: nothing is allocated later.
+   * @throws {OrthotoneError} INVALID_ARGUMENT when the correction is malformed or longer than
+   *   `maxCorrectionTaps` (see `validateCorrection`).
+   */
+  setCorrection(c: Correction | null): void {
+    if (c === null) {
+      this.cLen = 0;
+      this.correctionDoc = null;
+      return;
+    }
+    if (this.maxCorrectionTaps === 0) {
+      throw new OrthotoneError(
+        'INVALID_ARGUMENT',
+        'this generator was created with maxCorrectionTaps 0: create it with an odd maxCorrectionTaps (e.g. 63) to use a correction',
+        c,
+      );
+    }
+    validateCorrection(c, this.maxCorrectionTaps);
+    const n = c.qFromQ.length;
+    this.cQ.fill(0);
+    this.cI.fill(0);
+    for (let k = 0; k < n; k++) {
+      this.cQ[k] = c.qFromQ[k]!;
+      this.cI[k] = c.qFromI[k]!;
+    }
+    this.cLen = n;
+    this.cOff = this.kc - (n - 1) / 2;
+    this.correctionDoc = { qFromQ: c.qFromQ.slice(), qFromI: c.qFromI.slice() };
+  }
+
+  private rampFor(opts?: { rampSeconds?: number }): number {
+    if (opts?.rampSeconds === undefined) return this.rampDefault;
+    return Math.round(requireRange('rampSeconds', opts.rampSeconds, 0, 10, 's') * this.sampleRate);
+  }
+
+  private retarget(ramp: number): void {
+    naturalParams(this.targetTrims, this.sign(), this.tgt);
+    if (ramp <= 0) {
+      this.cur.set(this.tgt);
+      this.rampPos = 0;
+      this.rampLen = 0;
+    } else {
+      this.start.set(this.cur);
+      this.rampPos = 0;
+      this.rampLen = ramp;
+    }
+    if (!this.ramping) this.updateSteadySkew();
+  }
+
+  private updateSteadySkew(): void {
+    if (this.bulk === 0) return;
+    const t = this.bulk + this.cur[2]!;
+    const ti = Math.floor(t);
+    this.steadyInt = ti;
+    this.steadyFrac = t - ti;
+    fractionalDelayTaps(this.steadyFrac, this.steadyTaps);
+  }
+
+  /** Clears the signal state, ends any ramp at its target and zeroes the stats; keeps the settings. */
+  reset(): void {
+    this.cur.set(this.tgt);
+    this.rampPos = 0;
+    this.rampLen = 0;
+    this.updateSteadySkew();
+    this.cHistI.fill(0);
+    this.cHistQ.fill(0);
+    this.cWp = this.maxCorrectionTaps > 0 ? this.maxCorrectionTaps - 1 : 0;
+    this.sHistI.fill(0);
+    this.sHistQ.fill(0);
+    this.sWp = this.sKeep;
+    this.resetStats();
+  }
+
+  /** Zeroes the counters. */
+  resetStats(): void {
+    const s = this.stats;
+    s.samplesOut = 0;
+    s.nonFiniteInputs = 0;
+    s.clampedInputs = 0;
+    s.overFullScale = 0;
+    s.peak = 0;
+  }
+
+  /** An independent copy in the same state; its future output is bit-identical. */
+  clone(): TrimStage {
+    const c = new TrimStage(this.sampleRate, {
+      rampSeconds: this.rampDefault / this.sampleRate,
+      maxSkewSamples: this.maxSkewSamples,
+      maxCorrectionTaps: this.maxCorrectionTaps,
+    });
+    c.copyStateFrom(this);
+    return c;
+  }
+
+  private copyStateFrom(o: TrimStage): void {
+    this.rampDefault = o.rampDefault;
+    this.targetTrims = { ...o.targetTrims };
+    this.sidebandSel = o.sidebandSel;
+    this.cur.set(o.cur);
+    this.start.set(o.start);
+    this.tgt.set(o.tgt);
+    this.rampPos = o.rampPos;
+    this.rampLen = o.rampLen;
+    this.cHistI.set(o.cHistI);
+    this.cHistQ.set(o.cHistQ);
+    this.cWp = o.cWp;
+    this.cQ.set(o.cQ);
+    this.cI.set(o.cI);
+    this.cLen = o.cLen;
+    this.cOff = o.cOff;
+    this.correctionDoc = o.correctionDoc;
+    this.sHistI.set(o.sHistI);
+    this.sHistQ.set(o.sHistQ);
+    this.sWp = o.sWp;
+    this.steadyTaps.set(o.steadyTaps);
+    this.steadyInt = o.steadyInt;
+    this.steadyFrac = o.steadyFrac;
+    Object.assign(this.stats, o.stats);
+  }
+
+  /**
+   * Applies the trims to an I/Q pair (e.g. an ideal analytic source). Allocation-free.
+   * Non-finite input samples are replaced by 0 and counted.
+   * @throws {OrthotoneError} BUFFER_MISMATCH when the four arrays differ in length.
+   */
+  process(inI: Float32Array, inQ: Float32Array, outI: Float32Array, outQ: Float32Array): void {
+    const n = inI.length;
+    if (inQ.length !== n || outI.length !== n || outQ.length !== n) {
+      throw new OrthotoneError(
+        'BUFFER_MISMATCH',
+        `buffer lengths differ (inI ${n}, inQ ${inQ.length}, outI ${outI.length}, outQ ${outQ.length}): pass four arrays of the same length`,
+        [n, inQ.length, outI.length, outQ.length],
+      );
+    }
+    for (let o = 0; o < n; o += RUNTIME_CHUNK) {
+      const m = Math.min(RUNTIME_CHUNK, n - o);
+      sanitiseInput(inI, o, m, this.inI, this.stats);
+      sanitiseInput(inQ, o, m, this.inQ, this.stats);
+      this.processChunk(this.inI, this.inQ, m, outI, outQ, o);
+    }
+  }
+
+  /**
+   * Runs one chunk (n ≤ RUNTIME_CHUNK) of network output `iIn`, `qIn` (indices 0…n−1) through the
+   * trims into `outI[o…]`, `outQ[o…]`. Used by the generator; allocation-free.
+   */
+  processChunk(
+    iIn: Float64Array,
+    qIn: Float64Array,
+    n: number,
+    outI: Float32Array,
+    outQ: Float32Array,
+    o: number,
+  ): void {
+    // Step 1: sideband, gain and phase (with the ramp bookkeeping).
+    const q1 = this.q1;
+    const ramped = this.rampPos < this.rampLen;
+    const cur = this.cur;
+    if (!ramped) {
+      const a = cur[0]!;
+      const b = cur[1]!;
+      for (let j = 0; j < n; j++) q1[j] = a * qIn[j]! + b * iIn[j]!;
+    } else {
+      const st = this.start;
+      const tg = this.tgt;
+      const len = this.rampLen;
+      let pos = this.rampPos;
+      let a = cur[0]!;
+      let b = cur[1]!;
+      let sk = cur[2]!;
+      let di = cur[3]!;
+      let dq = cur[4]!;
+      for (let j = 0; j < n; j++) {
+        if (pos < len) {
+          pos++;
+          if (pos === len) {
+            a = tg[0]!;
+            b = tg[1]!;
+            sk = tg[2]!;
+            di = tg[3]!;
+            dq = tg[4]!;
+          } else {
+            const r = pos / len;
+            a = st[0]! + (tg[0]! - st[0]!) * r;
+            b = st[1]! + (tg[1]! - st[1]!) * r;
+            sk = st[2]! + (tg[2]! - st[2]!) * r;
+            di = st[3]! + (tg[3]! - st[3]!) * r;
+            dq = st[4]! + (tg[4]! - st[4]!) * r;
+          }
+        }
+        this.rSkew[j] = sk;
+        this.rDcI[j] = di;
+        this.rDcQ[j] = dq;
+        q1[j] = a * qIn[j]! + b * iIn[j]!;
+      }
+      cur[0] = a;
+      cur[1] = b;
+      cur[2] = sk;
+      cur[3] = di;
+      cur[4] = dq;
+      this.rampPos = pos;
+      if (pos >= len) {
+        this.rampPos = 0;
+        this.rampLen = 0;
+        this.updateSteadySkew();
+      }
+    }
+
+    // Step 1b: correction (I delayed by kc; Q from the widely-linear FIR pair or delayed by kc).
+    let i2: Float64Array = iIn;
+    let q2: Float64Array = q1;
+    if (this.maxCorrectionTaps > 0) {
+      const hi = this.cHistI;
+      const hq = this.cHistQ;
+      const keep = this.maxCorrectionTaps - 1;
+      let wp = this.cWp;
+      if (wp + n > hi.length) {
+        hi.copyWithin(0, wp - keep, wp);
+        hq.copyWithin(0, wp - keep, wp);
+        wp = keep;
+      }
+      for (let j = 0; j < n; j++) {
+        hi[wp + j] = iIn[j]!;
+        hq[wp + j] = q1[j]!;
+      }
+      i2 = this.i2;
+      q2 = this.q2;
+      const kc = this.kc;
+      const len = this.cLen;
+      if (len === 0) {
+        for (let j = 0; j < n; j++) {
+          i2[j] = hi[wp + j - kc]!;
+          q2[j] = hq[wp + j - kc]!;
+        }
+      } else {
+        const cq = this.cQ;
+        const ci = this.cI;
+        const off = this.cOff;
+        for (let j = 0; j < n; j++) {
+          const p = wp + j - off;
+          i2[j] = hi[wp + j - kc]!;
+          let acc = 0;
+          let acc2 = 0;
+          for (let k = 0; k < len; k++) {
+            acc += cq[k]! * hq[p - k]!;
+            acc2 += ci[k]! * hi[p - k]!;
+          }
+          q2[j] = acc + acc2;
+        }
+      }
+      this.cWp = wp + n;
+    }
+
+    // Step 2 (skew) and step 3 (DC), then the output guard.
+    const stats = this.stats;
+    let peak = stats.peak;
+    let over = 0;
+    if (this.bulk === 0) {
+      const di = cur[3]!;
+      const dq = cur[4]!;
+      for (let j = 0; j < n; j++) {
+        const vi = ramped ? i2[j]! + this.rDcI[j]! : i2[j]! + di;
+        const vq = ramped ? q2[j]! + this.rDcQ[j]! : q2[j]! + dq;
+        let ai = vi < 0 ? -vi : vi;
+        let aq = vq < 0 ? -vq : vq;
+        let wi = vi;
+        let wq = vq;
+        if (ai < OUTPUT_FLUSH) wi = 0;
+        else if (!(ai <= 1)) {
+          over++;
+          if (!(ai <= OUTPUT_LIMIT)) {
+            wi = vi > 0 ? OUTPUT_LIMIT : vi < 0 ? -OUTPUT_LIMIT : 0;
+            ai = wi < 0 ? -wi : wi;
+          }
+        }
+        if (aq < OUTPUT_FLUSH) wq = 0;
+        else if (!(aq <= 1)) {
+          over++;
+          if (!(aq <= OUTPUT_LIMIT)) {
+            wq = vq > 0 ? OUTPUT_LIMIT : vq < 0 ? -OUTPUT_LIMIT : 0;
+            aq = wq < 0 ? -wq : wq;
+          }
+        }
+        if (ai > peak) peak = ai;
+        if (aq > peak) peak = aq;
+        outI[o + j] = wi;
+        outQ[o + j] = wq;
+      }
+    } else {
+      const hi = this.sHistI;
+      const hq = this.sHistQ;
+      const keep = this.sKeep;
+      let wp = this.sWp;
+      if (wp + n > hi.length) {
+        hi.copyWithin(0, wp - keep, wp);
+        hq.copyWithin(0, wp - keep, wp);
+        wp = keep;
+      }
+      for (let j = 0; j < n; j++) {
+        hi[wp + j] = i2[j]!;
+        hq[wp + j] = q2[j]!;
+      }
+      const bulk = this.bulk;
+      const di = cur[3]!;
+      const dq = cur[4]!;
+      const sInt = this.steadyInt;
+      const sFrac = this.steadyFrac;
+      const sTaps = this.steadyTaps;
+      const rTaps = this.rampTaps;
+      for (let j = 0; j < n; j++) {
+        const p = wp + j;
+        let qd: number;
+        let ti: number;
+        let frac: number;
+        let taps: Float64Array;
+        if (ramped) {
+          const t = bulk + this.rSkew[j]!;
+          ti = Math.floor(t);
+          frac = t - ti;
+          taps = rTaps;
+          if (frac !== 0) fractionalDelayTaps(frac, rTaps);
+        } else {
+          ti = sInt;
+          frac = sFrac;
+          taps = sTaps;
+        }
+        if (frac === 0) qd = hq[p - ti]!;
+        else {
+          const base = p - ti + FD_HALF;
+          let acc = 0;
+          let acc2 = 0;
+          for (let k = 0; k < FD_TAPS; k += 2) {
+            acc += taps[k]! * hq[base - k]!;
+            acc2 += taps[k + 1]! * hq[base - k - 1]!;
+          }
+          qd = acc + acc2;
+        }
+        const vi = hi[p - bulk]! + (ramped ? this.rDcI[j]! : di);
+        const vq = qd + (ramped ? this.rDcQ[j]! : dq);
+        let ai = vi < 0 ? -vi : vi;
+        let aq = vq < 0 ? -vq : vq;
+        let wi = vi;
+        let wq = vq;
+        if (ai < OUTPUT_FLUSH) wi = 0;
+        else if (!(ai <= 1)) {
+          over++;
+          if (!(ai <= OUTPUT_LIMIT)) {
+            wi = vi > 0 ? OUTPUT_LIMIT : vi < 0 ? -OUTPUT_LIMIT : 0;
+            ai = wi < 0 ? -wi : wi;
+          }
+        }
+        if (aq < OUTPUT_FLUSH) wq = 0;
+        else if (!(aq <= 1)) {
+          over++;
+          if (!(aq <= OUTPUT_LIMIT)) {
+            wq = vq > 0 ? OUTPUT_LIMIT : vq < 0 ? -OUTPUT_LIMIT : 0;
+            aq = wq < 0 ? -wq : wq;
+          }
+        }
+        if (ai > peak) peak = ai;
+        if (aq > peak) peak = aq;
+        outI[o + j] = wi;
+        outQ[o + j] = wq;
+      }
+      this.sWp = wp + n;
+    }
+    stats.peak = peak;
+    stats.overFullScale += over;
+    stats.samplesOut += 2 * n;
+  }
+}
+
+function stripUndefined(t: Partial<Trims>): Partial<Trims> {
+  const out: Partial<Trims> = {};
+  for (const k of ['gainDb', 'phaseDeg', 'skewSamples', 'dcI', 'dcQ'] as const) {
+    const v = t[k];
+    if (v !== undefined) out[k] = v;
+  }
+  return out;
+}

@@ -6,3 +6,4 @@ export * from './core/index.js';
 export * from './design/index.js';
 export * from './generate/index.js';
 export * from './webaudio/index.js';
+export * from './measure/index.js';

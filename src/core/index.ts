@@ -5,3 +5,4 @@ export * from './rng.js';
 export * from './trims.js';
 export * from './units.js';
 export * from './validate.js';
+export * from './windows.js';

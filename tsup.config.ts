@@ -19,4 +19,12 @@ export default defineConfig([
     target: 'node20',
     banner: { js: '#!/usr/bin/env node' },
   },
+  {
+    // The AudioWorklet processor: one self-contained ES module (no imports), loaded by URL.
+    entry: { 'worklet/processor': 'src/webaudio/processor.ts' },
+    format: ['esm'],
+    platform: 'browser',
+    target: 'es2022',
+    noExternal: [/.*/],
+  },
 ]);

@@ -1,0 +1,134 @@
+/**
+ * `createTrimReader`: turns a live quadrature node and a capture node into the `measure(trims)`
+ * callback the calibrate/ functions take. Each reading sets the trims (ramped), lets the path settle
+ * for a fixed number of frames counted on the audio thread (ramp, sound-card round trip, receiver
+ * AGC and filters), captures, and hands the capture to an injected `read` function that returns a
+ * level in dB. The measuring and calibrating modules are injected, never imported: webaudio sits
+ * on the generate side of the layers (core ← design ← generate ← webaudio) and must not depend on
+ * measure/ or calibrate/.
+ */
+import { OrthotoneError } from '../core/errors.js';
+import type { Trims } from '../core/trims.js';
+import { requireRange, withDefaults } from '../core/validate.js';
+import type { CaptureNode, CaptureResult } from './capture-node.js';
+import type { QuadratureNode } from './node.js';
+
+/** Options of {@link createTrimReader}. */
+export interface TrimReaderOptions {
+  /** The generator whose trims are set (only `setTrims` and `sampleRate` are used). */
+  node: Pick<QuadratureNode, 'setTrims' | 'sampleRate'>;
+  /** Where the answer comes back: a capture node fed by the receiver audio (or by the I/Q). */
+  capture: Pick<CaptureNode, 'capture'>;
+  /**
+   * Turns one capture into the level to minimise, in dB (e.g. the unwanted sideband in dBc via
+   * measureTones or measureSideband). May throw: the reading then fails with MEASUREMENT_FAILED.
+   */
+  read: (capture: CaptureResult, sampleRate: number) => number;
+  /** Ramp applied to trim changes, seconds. */
+  rampSeconds: number;
+  /** Wait after the trims are set, before capturing, seconds (must cover the ramp and path latency). */
+  settleSeconds: number;
+  /** CaptureResult length, seconds. */
+  captureSeconds: number;
+  /** Cancels a reading in progress. */
+  signal: AbortSignal | undefined;
+}
+
+const DEFAULTS: Readonly<TrimReaderOptions> = Object.freeze({
+  node: undefined as unknown as TrimReaderOptions['node'],
+  capture: undefined as unknown as TrimReaderOptions['capture'],
+  read: undefined as unknown as TrimReaderOptions['read'],
+  rampSeconds: 0.01,
+  settleSeconds: 0.06,
+  captureSeconds: 0.1,
+  signal: undefined,
+});
+
+/**
+ * Makes a `measure(trims) => Promise<dB>` callback for calibrateSideband / calibrateCarrier that
+ * reads the live path. Readings are serialised: one at a time, in call order.
+ * @throws {OrthotoneError} INVALID_ARGUMENT when a required part is missing, when settleSeconds is
+ *   shorter than rampSeconds, or a duration is out of range (0…10 s; capture 1 ms…10 s).
+ * @returns the measure callback; its promise rejects with ABORTED when `signal` fires and with
+ *   MEASUREMENT_FAILED when `read` throws or returns a non-finite level.
+ */
+export function createTrimReader(
+  options: Partial<TrimReaderOptions> & Pick<TrimReaderOptions, 'node' | 'capture' | 'read'>,
+): (trims: Partial<Trims>) => Promise<number> {
+  const o = withDefaults(DEFAULTS, options);
+  if (!o.node || typeof o.node.setTrims !== 'function') {
+    throw new OrthotoneError('INVALID_ARGUMENT', 'node must be a quadrature node (createQuadratureNode)');
+  }
+  if (!o.capture || typeof o.capture.capture !== 'function') {
+    throw new OrthotoneError('INVALID_ARGUMENT', 'capture must be a capture node (createCaptureNode)');
+  }
+  if (typeof o.read !== 'function') {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      'read must be a function (capture, sampleRate) => level in dB',
+    );
+  }
+  requireRange('rampSeconds', o.rampSeconds, 0, 10, 's');
+  requireRange('settleSeconds', o.settleSeconds, 0, 10, 's');
+  requireRange('captureSeconds', o.captureSeconds, 0.001, 10, 's');
+  if (o.settleSeconds < o.rampSeconds) {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      `settleSeconds ${o.settleSeconds} s is shorter than rampSeconds ${o.rampSeconds} s: readings would catch the ramp; make settleSeconds at least the ramp plus the path latency`,
+      o.settleSeconds,
+    );
+  }
+  const fs = o.node.sampleRate;
+  const frames = Math.max(1, Math.round(o.captureSeconds * fs));
+  const skipFrames = Math.round(o.settleSeconds * fs);
+  let chain: Promise<unknown> = Promise.resolve();
+
+  const one = async (trims: Partial<Trims>): Promise<number> => {
+    if (o.signal?.aborted) throw new OrthotoneError('ABORTED', 'the reading was aborted');
+    o.node.setTrims(trims, { rampSeconds: o.rampSeconds });
+    const cap = await abortable(o.capture.capture(frames, { skipFrames }), o.signal);
+    let level: number;
+    try {
+      level = o.read(cap, fs);
+    } catch (e) {
+      throw new OrthotoneError(
+        'MEASUREMENT_FAILED',
+        `the reading failed: ${e instanceof Error ? e.message : String(e)}`,
+        e,
+      );
+    }
+    if (!Number.isFinite(level)) {
+      throw new OrthotoneError(
+        'MEASUREMENT_FAILED',
+        `the reading gave ${level} dB, not a finite level`,
+        level,
+      );
+    }
+    return level;
+  };
+
+  return (trims) => {
+    const p = chain.then(() => one(trims));
+    chain = p.catch(() => undefined);
+    return p;
+  };
+}
+
+function abortable<T>(p: Promise<T>, signal: AbortSignal | undefined): Promise<T> {
+  if (!signal) return p;
+  return new Promise<T>((resolve, reject) => {
+    const onAbort = (): void => reject(new OrthotoneError('ABORTED', 'the reading was aborted'));
+    if (signal.aborted) return onAbort();
+    signal.addEventListener('abort', onAbort, { once: true });
+    p.then(
+      (v) => {
+        signal.removeEventListener('abort', onAbort);
+        resolve(v);
+      },
+      (e) => {
+        signal.removeEventListener('abort', onAbort);
+        reject(e);
+      },
+    );
+  });
+}

@@ -1,0 +1,80 @@
+/**
+ * Headless Chromium (Debian's /usr/bin/chromium) driven by playwright-core, and a Vite dev server
+ * started programmatically (never `npx vite`: killing it leaves its child running).
+ * Flags per /work/shared/TOOLCHAIN.md; audio needs no user gesture; getUserMedia gets Chromium's
+ * fake input device so live-input code paths run without hardware.
+ */
+import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
+import type { AddressInfo } from 'node:net';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { type BrowserContext, chromium, type Page } from 'playwright-core';
+import { createServer, type InlineConfig, type ViteDevServer } from 'vite';
+import { REPO_ROOT } from './worklet-build.js';
+
+export const CHROMIUM_PATH = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
+export const ARTIFACTS = join(REPO_ROOT, 'tests/artifacts');
+
+export interface Browser {
+  context: BrowserContext;
+  page: Page;
+  /** Console errors and page errors seen so far. */
+  errors: string[];
+  close(): Promise<void>;
+}
+
+/** Launches one persistent headless Chromium context and opens one page that records errors. */
+export async function launchChromium(): Promise<Browser> {
+  const dir = mkdtempSync(join(tmpdir(), 'orthotone-chromium-'));
+  const context = await chromium.launchPersistentContext(dir, {
+    executablePath: CHROMIUM_PATH,
+    headless: true,
+    viewport: { width: 1280, height: 900 },
+    args: [
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+      '--autoplay-policy=no-user-gesture-required',
+      '--use-fake-ui-for-media-stream',
+      '--use-fake-device-for-media-stream',
+    ],
+  });
+  const page = context.pages()[0] ?? (await context.newPage());
+  const errors: string[] = [];
+  page.on('console', (m) => {
+    if (m.type() === 'error') errors.push(m.text());
+  });
+  page.on('pageerror', (e) => errors.push(`pageerror: ${e.message}`));
+  return {
+    context,
+    page,
+    errors,
+    async close() {
+      await context.close();
+      rmSync(dir, { recursive: true, force: true });
+    },
+  };
+}
+
+/** Starts a Vite dev server on 127.0.0.1 (free port) and returns it with its base URL. */
+export async function startVite(config: InlineConfig): Promise<{ server: ViteDevServer; url: string }> {
+  const server = await createServer({
+    logLevel: 'error',
+    ...config,
+    server: { host: '127.0.0.1', port: 0, strictPort: false, hmr: false, ...config.server },
+  });
+  await server.listen();
+  const addr = server.httpServer?.address() as AddressInfo | null;
+  if (!addr) throw new Error('vite did not start listening');
+  return { server, url: `http://127.0.0.1:${addr.port}` };
+}
+
+/** Makes the artifacts folder (git-ignored) and returns the path of a file in it. */
+export function artifactPath(name: string): string {
+  mkdirSync(ARTIFACTS, { recursive: true });
+  return join(ARTIFACTS, name);
+}

@@ -19,6 +19,7 @@
  * Written here rather than taken from a library: it needs a precomputed table shared by every
  * generator, tap interpolation without allocation, and exactness at integer delays.
  */
+import { besselI0 } from './bessel.js';
 
 /** Number of taps of the interpolator (even). */
 export const FRACTIONAL_DELAY_TAPS = 32;
@@ -28,23 +29,6 @@ export const FRACTIONAL_DELAY_PHASES = 512;
 export const FRACTIONAL_DELAY_KAISER_BETA = 9;
 /** Documented worst complex error of the interpolator, dB re the ideal delay (see module doc). */
 export const FRACTIONAL_DELAY_ACCURACY = Object.freeze({ errorDbTo025: -90, errorDbTo04: -80 });
-
-/**
- * Modified Bessel function of the first kind, order 0, by its power series
- * `I0(x) = Σ ((x/2)^k / k!)²` (Abramowitz & Stegun 9.6.12), summed to full double precision.
- * @param x argument (any finite number).
- */
-export function besselI0(x: number): number {
-  const y = (x * x) / 4;
-  let term = 1;
-  let sum = 1;
-  for (let k = 1; k < 500; k++) {
-    term *= y / (k * k);
-    sum += term;
-    if (term < sum * 1e-17) break;
-  }
-  return sum;
-}
 
 /**
  * The windowed-sinc kernel at `t` samples from its centre: `sinc(t)·w(t)`, w the Kaiser window of

@@ -20,7 +20,7 @@ import {
   requireRange,
   requireSampleRate,
 } from '../core/validate.js';
-import { besselI0 } from './fractional-delay.js';
+import { besselI0 } from './bessel.js';
 
 /** A test signal. Levels in dBFS (tones: peak; noise: RMS, AES17). */
 export type SignalSpec =

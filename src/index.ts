@@ -7,3 +7,4 @@ export * from './design/index.js';
 export * from './generate/index.js';
 export * from './webaudio/index.js';
 export * from './measure/index.js';
+export * from './calibrate/index.js';

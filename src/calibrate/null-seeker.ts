@@ -249,6 +249,7 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
   let lastJump: [number, number] | undefined;
   let sinceJump = 0;
   let jumpsInRow = 0;
+  let wideProbes = 0;
   let probeIndex = 0;
   let failures = 0;
   let stopReason: StopReason | undefined;
@@ -400,8 +401,11 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
       const p: [number, number] = [clampAxis(0, e.centre[0]), clampAxis(1, e.centre[1])];
       return { point: p, levelDb: surfaceDb(e.surface, p[0], p[1]), source: 'fit' };
     }
+    // The lowest reading, but only if it beats the start by more than the noise: otherwise the
+    // start is kept (a lucky reading is no reason to move).
     let b = ok[0]!;
     for (const r of ok) if (r.db < b.db && (r.weight ?? 1) > 0) b = r;
+    if (b.db > ok[0]!.db - 2 * sigma) b = ok[0]!;
     return { point: [...b.point], levelDb: b.db, source: 'reading' };
   };
 
@@ -530,6 +534,13 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
       dir = [1, 0];
       radius = stepNow[0] || o.maxStep[0];
     }
+    if (e && e.floorDb > startDb - 10) {
+      // The fit explains the readings by a floor close to the start's level: either the start is
+      // already at the floor or the bowl was misread (e.g. an outlier fixed its curvature).
+      // Look wider, doubling each time, until the wall of the bowl shows again.
+      wideProbes++;
+      radius = Math.max(radius, radius * 2 ** (wideProbes - 1));
+    }
     if (status[0] === 'inactive') dir = [0, 1];
     if (status[1] === 'inactive') dir = [1, 0];
     const sgn = probeIndex % 2 === 0 ? 1 : -1;
@@ -591,8 +602,16 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
   };
 
   const record = (point: readonly [number, number], db: number): void => {
-    const role = pending ? pendingRole : readings.length === 0 ? 'start' : 'probe';
-    const pr = pendingProbe;
+    // A setting the seeker did not propose (another seeker's, in a shared sequence) is an extra
+    // probe: it feeds the fit but advances no plan. A person's small deviation from the proposal
+    // (rounding on a dial) still counts as the proposed reading.
+    const proposed =
+      pending !== undefined &&
+      Math.abs(point[0] - pending[0]) <= 0.05 * (Math.abs(pending[0] - o.start[0]) + stepNow[0]) + 1e-15 &&
+      Math.abs(point[1] - pending[1]) <= 0.05 * (Math.abs(pending[1] - o.start[1]) + stepNow[1]) + 1e-15;
+    const role: ReadingRole =
+      readings.length === 0 || Number.isNaN(startDb) ? 'start' : proposed ? pendingRole : 'probe';
+    const pr = proposed ? pendingProbe : undefined;
     readings.push({ point: [point[0], point[1]], db, role });
     if (!Number.isFinite(db)) {
       failures++;
@@ -680,6 +699,7 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
     lastJump = undefined;
     sinceJump = 0;
     jumpsInRow = 0;
+    wideProbes = 0;
     probeIndex = 0;
     failures = 0;
     stopReason = undefined;

@@ -121,10 +121,14 @@ const fromVec = (v: Float64Array): NullSurface => ({
 
 type Loss = 'l2' | 'huber' | 'tukey';
 
+// Residuals are model minus reading, in σ. Outliers in level readings come mostly from added power
+// (interference, a transient, a mis-set range), so they read high: e < 0. Tukey's biweight, which
+// can reject a reading outright, is applied to those only; a reading below the model is never
+// rejected (Huber-weighted), since a floor cannot lie above what was read.
 function rho(e: number, loss: Loss): number {
   const a = Math.abs(e);
   if (loss === 'l2') return 0.5 * e * e;
-  if (loss === 'huber') return a <= HUBER ? 0.5 * e * e : HUBER * a - 0.5 * HUBER * HUBER;
+  if (loss === 'huber' || e > 0) return a <= HUBER ? 0.5 * e * e : HUBER * a - 0.5 * HUBER * HUBER;
   if (a >= TUKEY) return (TUKEY * TUKEY) / 6;
   const u = 1 - (e / TUKEY) ** 2;
   return ((TUKEY * TUKEY) / 6) * (1 - u * u * u);
@@ -133,7 +137,7 @@ function rho(e: number, loss: Loss): number {
 function weight(e: number, loss: Loss): number {
   const a = Math.abs(e);
   if (loss === 'l2') return 1;
-  if (loss === 'huber') return a <= HUBER ? 1 : HUBER / a;
+  if (loss === 'huber' || e > 0) return a <= HUBER ? 1 : HUBER / a;
   if (a >= TUKEY) return 0;
   const u = 1 - (e / TUKEY) ** 2;
   return u * u;

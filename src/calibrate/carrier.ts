@@ -1,0 +1,55 @@
+/**
+ * Carrier calibration: nulls the carrier leak with the DC trims, which are added last so they never
+ * scale (DESIGN.md §4). With a complex tone of peak amplitude A and DC (dI, dQ), the carrier
+ * relative to the tone is `|d − d*|²/A²` (REFERENCES.md §1): a bowl in (dcI, dcQ) of curvature 1/A².
+ * Callers often do not know A, so unless `toneAmplitude` is given the curvature is estimated from
+ * the readings (the first probes are sized for the largest possible tone, A = 1 full scale).
+ */
+import type { Trims } from '../core/trims.js';
+import { requireRange } from '../core/validate.js';
+import {
+  runTrimCalibration,
+  type TrimAxes,
+  type TrimCalibrationOptions,
+  type TrimCalibrationResult,
+} from './trim-calibration.js';
+
+/** Options of {@link calibrateCarrier}: the shared ones plus the tone amplitude when known. */
+export interface CarrierCalibrationOptions extends TrimCalibrationOptions {
+  /** Peak amplitude of the tone (full scale = 1), when known: fixes the bowl's curvature. */
+  toneAmplitude?: number;
+}
+
+/** Axes of the carrier calibration for a given curvature model. */
+export function carrierAxes(toneAmplitude?: number): TrimAxes {
+  const known = toneAmplitude !== undefined;
+  return {
+    quantity: 'carrier',
+    names: ['dcI', 'dcQ'],
+    toPoint: (t: Trims) => [t.dcI, t.dcQ],
+    toTrims: (p: readonly [number, number], base: Trims) => ({ ...base, dcI: p[0], dcQ: p[1] }),
+    seeker: {
+      model: known ? 'known-curvature' : 'isotropic',
+      curvature: known ? 1 / (toneAmplitude * toneAmplitude) : 1,
+      curvatureSpread: 0.1,
+      bounds: [
+        [-0.5, 0.5],
+        [-0.5, 0.5],
+      ],
+      maxStep: [0.1, 0.1],
+    },
+  };
+}
+
+/**
+ * Calibrates the DC trims for the deepest carrier null, from level readings.
+ * @param options as {@link calibrateSideband}, `measure(trims)` returning the carrier in dBc; plus
+ *   `toneAmplitude` (peak, full scale 1) when known.
+ * @returns as {@link calibrateSideband}; `diagnosis` holds TRIM_INACTIVE when DC does not reach
+ *   the output (AC coupling).
+ * @throws {OrthotoneError} INVALID_ARGUMENT for bad options.
+ */
+export function calibrateCarrier(options: CarrierCalibrationOptions): Promise<TrimCalibrationResult> {
+  if (options.toneAmplitude !== undefined) requireRange('toneAmplitude', options.toneAmplitude, 1e-6, 4);
+  return runTrimCalibration(options, carrierAxes(options.toneAmplitude));
+}

@@ -1,0 +1,70 @@
+/**
+ * Opposite-sideband calibration: nulls the unwanted sideband with the gain and phase trims.
+ *
+ * Coordinates: the gain and phase trim make `Q' = G·cos φ·Q + G·sin φ·I` (DESIGN.md §4), so the
+ * seeker works in `u = G·cos φ − 1`, `v = G·sin φ`, in which the unwanted-sideband amplitude is
+ * exactly affine; to first order u = 10^(gainDb/20) − 1 and v = φ in radians (the natural units
+ * of DESIGN.md §6). The image power relative to the wanted tone is then
+ * `P ≈ ¼·[(u − u*)² + (v − v*)²] + N`: a bowl of known curvature ¼.
+ * Reference: K. Schmidt, "Phase-Shift Network Analysis and Optimization", QEX Aug 1994, §2
+ * (IRR ≈ 4/(ε² + φ²) for small errors).
+ */
+import type { Trims } from '../core/trims.js';
+import { degToRad, radToDeg } from '../core/units.js';
+import {
+  runTrimCalibration,
+  type TrimAxes,
+  type TrimCalibrationOptions,
+  type TrimCalibrationResult,
+} from './trim-calibration.js';
+
+/** Curvature of the sideband bowl in (u, v): image/wanted power per squared unit. */
+export const SIDEBAND_CURVATURE = 0.25;
+
+/** Gain and phase trims to the sideband seeker's coordinates (u, v). */
+export function sidebandPoint(t: Pick<Trims, 'gainDb' | 'phaseDeg'>): [number, number] {
+  const g = 10 ** (t.gainDb / 20);
+  const p = degToRad(t.phaseDeg);
+  return [g * Math.cos(p) - 1, g * Math.sin(p)];
+}
+
+/** The sideband seeker's coordinates (u, v) back to trims, other trims taken from `base`. */
+export function sidebandTrims(p: readonly [number, number], base: Trims): Trims {
+  const g = Math.hypot(1 + p[0], p[1]);
+  return { ...base, gainDb: 20 * Math.log10(g), phaseDeg: radToDeg(Math.atan2(p[1], 1 + p[0])) };
+}
+
+/** Axes of the sideband calibration. */
+export const SIDEBAND_AXES: TrimAxes = Object.freeze({
+  quantity: 'sideband' as const,
+  names: ['gain', 'phase'] as [string, string],
+  toPoint: (t: Trims) => sidebandPoint(t),
+  toTrims: sidebandTrims,
+  seeker: {
+    model: 'known-curvature' as const,
+    curvature: SIDEBAND_CURVATURE,
+    // (u, v) box inside the trim limits: gain −5.2…+5.7 dB, phase within ±42°.
+    bounds: [
+      [-0.45, 0.85],
+      [-0.5, 0.5],
+    ] as [[number, number], [number, number]],
+    maxStep: [0.3, 0.3] as [number, number],
+  },
+});
+
+/**
+ * Calibrates the gain and phase trims for the deepest opposite-sideband null, from level readings.
+ * @param options `measure(trims)` returns the unwanted sideband in dBc (any repeatable dB scale
+ *   works if `model: 'isotropic'` is chosen; the known curvature ¼ assumes dBc); `start`,
+ *   `noiseDb` (0.5), `targetDb`, `maxReadings` (16), `signal`, `onReading`, `floorDb`, `resume`.
+ * @returns the best trims (always finite), the level there, readings used, history, stop reason,
+ *   diagnosis and a state to resume from.
+ * @throws {OrthotoneError} INVALID_ARGUMENT for bad options (never for a failed reading or an
+ *   abort: those end the run with `stopReason` `measurement-failed` or `aborted`).
+ * @example
+ * const r = await calibrateSideband({ measure: (t) => analyzer.unwantedDbc(t), maxReadings: 12 });
+ * generator.setTrims(r.trims);
+ */
+export function calibrateSideband(options: TrimCalibrationOptions): Promise<TrimCalibrationResult> {
+  return runTrimCalibration(options, SIDEBAND_AXES);
+}

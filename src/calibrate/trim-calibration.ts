@@ -1,0 +1,218 @@
+/**
+ * What the sideband and carrier calibrations share: options, result and history types, the mapping
+ * between a pair of trims and the seeker's natural coordinates, and the run itself.
+ */
+import { OrthotoneError } from '../core/errors.js';
+import { type Trims, validateTrims, ZERO_TRIMS } from '../core/trims.js';
+import { requireFinite, requireInteger, requirePositive } from '../core/validate.js';
+import { type Diagnosis, diagnoseSeeker } from './diagnosis.js';
+import {
+  createNullSeeker,
+  type NullSeeker,
+  type NullSeekerOptions,
+  type NullSeekerState,
+  type ReadingRole,
+  restoreNullSeeker,
+  type SeekerModel,
+  type StopReason,
+} from './null-seeker.js';
+import { runNullSeeker } from './run-null-seeker.js';
+
+/** One step of a calibration, as reported to `onReading` and kept in `history`. */
+export interface CalibrationStep {
+  /** 1-based reading number. */
+  index: number;
+  /** The trims the reading was taken with. */
+  trims: Trims;
+  /** The level read, dB (NaN when the reading failed). */
+  levelDb: number;
+  /** Why the setting was read: the start, a probe, or a jump to the fitted null. */
+  role: ReadingRole;
+  /** The best trims known after this reading. */
+  bestTrims: Trims;
+  /** The level at the best trims (fitted, or read), dB. */
+  bestLevelDb: number;
+  /** The error thrown by `measure`, when the reading failed. */
+  error?: unknown;
+}
+
+/** Options shared by {@link calibrateSideband} and {@link calibrateCarrier} (DESIGN.md §5). */
+export interface TrimCalibrationOptions {
+  /** Reads the level with the given trims applied, dB (dBc preferred). May be async. */
+  measure: (trims: Trims) => number | Promise<number>;
+  /** Trims to begin from (default all zero); the trims not calibrated are passed through. */
+  start?: Partial<Trims>;
+  /** Standard deviation of one reading, dB. Default 0.5. */
+  noiseDb?: number;
+  /** Stop once the fit puts the level below −targetDb dB. Default: none (seek to the floor). */
+  targetDb?: number;
+  /** Hard budget: `measure` is never called more often. Default 16. */
+  maxReadings?: number;
+  /** Stops the run; the result then has `stopReason: 'aborted'` and the best trims so far. */
+  signal?: AbortSignal;
+  /** Called after every reading. */
+  onReading?: (step: CalibrationStep) => void;
+  /** The measurement floor, dB, when known (otherwise estimated from the readings). */
+  floorDb?: number;
+  /** Bowl model: default per quantity; `quadratic` when the trims act through hardware. */
+  model?: SeekerModel;
+  /** Down-weight outlying readings. Default true. */
+  robust?: boolean;
+  /** A state saved from an earlier, interrupted run (`result.state`): its readings are reused. */
+  resume?: NullSeekerState;
+}
+
+/** Result of a trim calibration. */
+export interface TrimCalibrationResult {
+  /** The best trims found (always finite; the start when nothing better was found). */
+  trims: Trims;
+  /** Level at `trims`: the fit's prediction (floor included) or the reading there, dB. */
+  levelDb: number;
+  /** The level read at the start, dB. */
+  startLevelDb: number;
+  /** Number of `measure` calls (failed ones included), resumed readings included. */
+  readings: number;
+  history: CalibrationStep[];
+  stopReason: StopReason;
+  /** Findings about the trims and readings (TRIM_INACTIVE, CROSS_COUPLED, …). */
+  diagnosis: Diagnosis[];
+  /** Everything needed to resume this run later. */
+  state: NullSeekerState;
+  /** The fit at the end, when there was one. */
+  fit?: {
+    /** Fitted floor, dB. */
+    floorDb: number;
+    /** Level at the null from its remaining uncertainty alone (floor excluded), dB. */
+    expectedTrueDb: number;
+    /** Weighted RMS residual of the readings about the fit, dB. */
+    rmsDb: number;
+    /** Fitted curvature c (power ratio per squared natural unit). */
+    curvature: number;
+  };
+  /** The last measurement error, when readings failed. */
+  error?: unknown;
+}
+
+/** How a calibration maps its two trims to the seeker's natural coordinates. */
+export interface TrimAxes {
+  quantity: 'sideband' | 'carrier';
+  names: [string, string];
+  toPoint(t: Trims): [number, number];
+  toTrims(p: readonly [number, number], base: Trims): Trims;
+  seeker: Partial<NullSeekerOptions>;
+}
+
+/**
+ * Validates shared options and merges start trims over zero.
+ * @throws {OrthotoneError} INVALID_ARGUMENT for a bad option.
+ */
+export function resolveTrimOptions(o: TrimCalibrationOptions): {
+  start: Trims;
+  noiseDb: number;
+  maxReadings: number;
+} {
+  if (!o || typeof o.measure !== 'function') {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      'measure must be a function (trims) => level in dB: pass the function that reads your analyzer',
+    );
+  }
+  const start: Trims = { ...ZERO_TRIMS, ...validateTrims(o.start ?? {}) };
+  const noiseDb = o.noiseDb === undefined ? 0.5 : requirePositive('noiseDb', o.noiseDb, 'dB');
+  const maxReadings =
+    o.maxReadings === undefined ? 16 : requireInteger('maxReadings', o.maxReadings, 1, 10_000);
+  if (o.targetDb !== undefined) requireFinite('targetDb', o.targetDb, 'give a suppression in dB, e.g. 60');
+  if (o.floorDb !== undefined) requireFinite('floorDb', o.floorDb, 'give the floor in dB, e.g. -70');
+  return { start, noiseDb, maxReadings };
+}
+
+/** Creates (or resumes) the seeker for a calibration. */
+export function seekerFor(o: TrimCalibrationOptions, axes: TrimAxes): { seeker: NullSeeker; start: Trims } {
+  const { start, noiseDb, maxReadings } = resolveTrimOptions(o);
+  const opts: Partial<NullSeekerOptions> = {
+    ...axes.seeker,
+    start: axes.toPoint(start),
+    noiseDb,
+    maxReadings,
+    targetDb: o.targetDb,
+    floorDb: o.floorDb,
+    axisNames: axes.names,
+    ...(o.model ? { model: o.model } : {}),
+    ...(o.robust !== undefined ? { robust: o.robust } : {}),
+  };
+  if (o.resume) {
+    const seeker = restoreNullSeeker({ ...o.resume, options: { ...o.resume.options, maxReadings } });
+    return { seeker, start: axes.toTrims(seeker.options.start, start) };
+  }
+  return { seeker: createNullSeeker(opts), start };
+}
+
+/** Builds the result of a finished seeker. */
+export function resultOf(
+  seeker: NullSeeker,
+  axes: TrimAxes,
+  start: Trims,
+  history: CalibrationStep[],
+  error: unknown,
+): TrimCalibrationResult {
+  const best = seeker.best();
+  const e = seeker.estimate();
+  const first = seeker.readings().find((r) => Number.isFinite(r.db));
+  const trims = axes.toTrims(best.point, start);
+  const finite = Object.values(trims).every(Number.isFinite);
+  return {
+    trims: finite ? trims : { ...start },
+    levelDb: best.levelDb,
+    startLevelDb: first ? first.db : Number.NaN,
+    readings: seeker.count,
+    history,
+    stopReason: seeker.stopReason ?? 'budget',
+    diagnosis: diagnoseSeeker(seeker, { quantity: axes.quantity, relativeToWanted: true }),
+    state: seeker.save(),
+    ...(e
+      ? {
+          fit: {
+            floorDb: e.floorDb,
+            expectedTrueDb: e.expectedTrueDb,
+            rmsDb: e.rmsDb,
+            curvature: Math.exp(e.surface.logC),
+          },
+        }
+      : {}),
+    ...(error !== undefined ? { error } : {}),
+  };
+}
+
+/** Runs a two-trim calibration end to end. */
+export async function runTrimCalibration(
+  o: TrimCalibrationOptions,
+  axes: TrimAxes,
+): Promise<TrimCalibrationResult> {
+  const { seeker, start } = seekerFor(o, axes);
+  const history: CalibrationStep[] = seeker.readings().map((r, i) => ({
+    index: i + 1,
+    trims: axes.toTrims(r.point, start),
+    levelDb: r.db,
+    role: r.role,
+    bestTrims: axes.toTrims(r.point, start),
+    bestLevelDb: r.db,
+  }));
+  const { lastError } = await runNullSeeker(seeker, (p) => o.measure(axes.toTrims(p, start)), {
+    signal: o.signal,
+    onReading: (p) => {
+      const r = seeker.readings()[seeker.count - 1]!;
+      const step: CalibrationStep = {
+        index: p.index,
+        trims: axes.toTrims(p.point, start),
+        levelDb: p.db,
+        role: r.role,
+        bestTrims: axes.toTrims(p.best.point, start),
+        bestLevelDb: p.best.levelDb,
+        ...(p.error !== undefined ? { error: p.error } : {}),
+      };
+      history.push(step);
+      o.onReading?.(step);
+    },
+  });
+  return resultOf(seeker, axes, start, history, lastError);
+}

@@ -1,1 +1,3 @@
+export * from './c-header.js';
+export * from './csv.js';
 export * from './network-json.js';

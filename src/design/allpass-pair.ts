@@ -149,7 +149,7 @@ const PAIR_DEFAULTS: Readonly<
 > = Object.freeze({ form: 'first-order', maxSections: 64 });
 
 /** Largest target accepted, dB: beyond any analog path, and near the double-precision floor. */
-export const MAX_TARGET_DB = 200;
+export const MAX_DESIGN_TARGET_DB = 200;
 
 /** Phase error in rad for a given suppression in dB at unity gain: 20·log10(cot(ε/2)) = dB. */
 function phaseErrorForSuppression(db: number): number {
@@ -259,7 +259,7 @@ function validatePairSpec(spec: AllpassPairSpec): {
   const sections =
     spec.sections === undefined ? undefined : requireInteger('sections', spec.sections, 1, maxSections);
   const targetDb =
-    spec.targetDb === undefined ? undefined : requireRange('targetDb', spec.targetDb, 1, MAX_TARGET_DB, 'dB');
+    spec.targetDb === undefined ? undefined : requireRange('targetDb', spec.targetDb, 1, MAX_DESIGN_TARGET_DB, 'dB');
   return { fs, band, form, maxSections, sections, targetDb };
 }
 

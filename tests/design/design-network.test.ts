@@ -1,0 +1,243 @@
+import { describe, expect, it } from 'vitest';
+import { isOrthotoneError } from '../../src/core/errors.js';
+import { type DesignCandidate, designNetwork, type NetworkSpec } from '../../src/design/design-network.js';
+import { type AllpassBranch, type Network, validateNetwork } from '../../src/design/network.js';
+
+/** Complex response of an all-pass branch, section by section (the test's own loop, not src/). */
+function branchAt(b: AllpassBranch, w: number): [number, number] {
+  let re = Math.cos(b.delay * w);
+  let im = -Math.sin(b.delay * w);
+  for (const s of b.sections) {
+    const zr = Math.cos(s.order * w);
+    const zi = -Math.sin(s.order * w);
+    const nr = s.a + zr;
+    const dr = 1 + s.a * zr;
+    const di = s.a * zi;
+    const dd = dr * dr + di * di;
+    const hr = (nr * dr + zi * di) / dd;
+    const hi = (zi * dr - nr * di) / dd;
+    [re, im] = [re * hr - im * hi, re * hi + im * hr];
+  }
+  return [re, im];
+}
+
+/**
+ * Worst suppression over the band by the test's own dense evaluation (20 001 log-spaced plus
+ * 20 001 linear points, edges included): 20·log10(|Hi + jHq| / |Hi − jHq|), Schmidt, QEX 1994 §2.
+ */
+function ownWorstDb(net: Network): number {
+  const [lo, hi] = net.band;
+  const fs = net.sampleRate;
+  let worst = Number.POSITIVE_INFINITY;
+  const at = (f: number) => {
+    const w = (2 * Math.PI * f) / fs;
+    let ir: number;
+    let ii: number;
+    let qr: number;
+    let qi: number;
+    if (net.kind === 'allpass') {
+      [ir, ii] = branchAt(net.branches.i, w);
+      [qr, qi] = branchAt(net.branches.q, w);
+    } else {
+      const d = (net.taps.length - 1) / 2;
+      ir = Math.cos(w * d);
+      ii = -Math.sin(w * d);
+      qr = 0;
+      qi = 0;
+      net.taps.forEach((h, k) => {
+        qr += h * Math.cos(w * k);
+        qi -= h * Math.sin(w * k);
+      });
+    }
+    worst = Math.min(worst, 20 * Math.log10(Math.hypot(ir - qi, ii + qr) / Math.hypot(ir + qi, ii - qr)));
+  };
+  const n = net.kind === 'fir' ? 4000 : 20000;
+  for (let k = 0; k <= n; k++) {
+    at(lo * (hi / lo) ** (k / n));
+    at(lo + ((hi - lo) * k) / n);
+  }
+  return worst;
+}
+
+const sectionsOf = (net: Network) =>
+  net.kind === 'allpass' ? net.branches.i.sections.length + net.branches.q.sections.length : Number.NaN;
+
+function expectError(fn: () => unknown, code: string, re: RegExp): void {
+  try {
+    fn();
+    expect.unreachable();
+  } catch (e) {
+    expect(isOrthotoneError(e)).toBe(true);
+    expect((e as { code: string }).code).toBe(code);
+    expect((e as Error).message).toMatch(re);
+  }
+}
+
+describe('designNetwork: the headline all-pass design', () => {
+  it('48 kHz, 300–3000 Hz, 60 dB: meets 60 dB by independent evaluation with the fewest sections', () => {
+    // Source: the test's own evaluation loop (ownWorstDb above); suppression per Schmidt, QEX Aug 1994 §2.
+    const net = designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'allpass', targetDb: 60 });
+    expect(validateNetwork(net)).toBe(net);
+    expect(net.format).toBe('orthotone-network');
+    expect(net.version).toBe(1);
+    expect(net.kind).toBe('allpass');
+    const own = ownWorstDb(net);
+    expect(own).toBeGreaterThanOrEqual(60);
+    expect(Math.abs(net.predicted.worstSuppressionDb - own)).toBeLessThan(0.1);
+    expect(net.predicted.worstSuppressionDb).toBeLessThanOrEqual(own + 1e-9);
+    const n = sectionsOf(net);
+    expect(net.cost.multipliesPerSample).toBe(n);
+    const fewer = designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'allpass', sections: n - 1 });
+    expect(ownWorstDb(fewer)).toBeLessThan(60);
+    expect(net.design).toMatchObject({
+      sampleRate: 48000,
+      band: [300, 3000],
+      method: 'allpass',
+      targetDb: 60,
+      realised: { method: 'allpass', form: 'first-order', sections: n },
+    });
+    // A plain JSON document: survives a round trip unchanged.
+    expect(JSON.parse(JSON.stringify(net))).toEqual(net);
+  });
+
+  it('meets other targets, rates and bands, in both all-pass forms, with the fewest sections', () => {
+    const cases: NetworkSpec[] = [
+      { sampleRate: 8000, band: [300, 3400], method: 'allpass', targetDb: 40 },
+      { sampleRate: 44100, band: [100, 6000], method: 'allpass', targetDb: 80 },
+      { sampleRate: 96000, band: [50, 20000], method: 'allpass', targetDb: 100 },
+      { sampleRate: 48000, band: [200, 4000], method: 'allpass', targetDb: 70, allpassForm: 'second-order' },
+      { sampleRate: 16000, band: [150, 7850], method: 'allpass', targetDb: 55, allpassForm: 'second-order' },
+    ];
+    for (const spec of cases) {
+      const net = designNetwork(spec);
+      const own = ownWorstDb(net);
+      expect(own).toBeGreaterThanOrEqual(spec.targetDb!);
+      expect(Math.abs(net.predicted.worstSuppressionDb - own)).toBeLessThan(0.1);
+      const fewer = designNetwork({ ...spec, targetDb: undefined, sections: sectionsOf(net) - 1 });
+      expect(ownWorstDb(fewer)).toBeLessThan(spec.targetDb!);
+    }
+  });
+
+  it('defaults to 60 dB when neither a target nor a size is given, and honours a given size', () => {
+    const net = designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'allpass' });
+    expect(net.design.targetDb).toBe(60);
+    expect(ownWorstDb(net)).toBeGreaterThanOrEqual(60);
+    const four = designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'allpass', sections: 4 });
+    expect(sectionsOf(four)).toBe(4);
+    expect(four.design.targetDb).toBeUndefined();
+    expect(Math.abs(four.predicted.worstSuppressionDb - ownWorstDb(four))).toBeLessThan(0.1);
+  });
+});
+
+describe('designNetwork: Hilbert FIR', () => {
+  it('meets the target by independent evaluation; predicted within 0.1 dB; cost exploits symmetry', () => {
+    // Source: the test's own evaluation loop; antisymmetric taps need one multiply per tap pair
+    // (Reilly, Frazer & Boashash 1994 for the type III structure).
+    for (const spec of [
+      { sampleRate: 8000, band: [300, 3400], method: 'fir', targetDb: 50 },
+      { sampleRate: 48000, band: [1000, 20000], method: 'fir', targetDb: 70, firMethod: 'kaiser' },
+    ] as NetworkSpec[]) {
+      const net = designNetwork(spec);
+      if (net.kind !== 'fir') throw new Error('expected an FIR');
+      const own = ownWorstDb(net);
+      expect(own).toBeGreaterThanOrEqual(spec.targetDb!);
+      expect(Math.abs(net.predicted.worstSuppressionDb - own)).toBeLessThan(0.1);
+      const nonzero = net.taps.filter((t) => t !== 0).length;
+      expect(net.cost).toEqual({
+        multipliesPerSample: nonzero / 2,
+        latencySamples: (net.taps.length - 1) / 2,
+      });
+      expect(net.design).toMatchObject({ method: 'fir', realised: { method: 'fir', taps: net.taps.length } });
+    }
+  });
+
+  it('designs a given length and reports a given length that falls short', () => {
+    const net = designNetwork({ sampleRate: 48000, band: [2000, 22000], method: 'fir', taps: 31 });
+    expect(net.kind === 'fir' && net.taps.length).toBe(31);
+    expectError(
+      () => designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'fir', taps: 31, targetDb: 60 }),
+      'UNREACHABLE_TARGET',
+      /taps 31 .* below targetDb 60 dB/,
+    );
+  });
+});
+
+describe("designNetwork: method 'auto'", () => {
+  it('keeps the candidate with the fewest multiplies per sample and explains the choice', () => {
+    // Source: task contract — 'auto' picks the cheapest multiplies/sample meeting the target.
+    const net = designNetwork({ sampleRate: 8000, band: [300, 3400], method: 'auto', targetDb: 50 });
+    const cands = net.design.candidates as DesignCandidate[];
+    expect(cands.map((c) => `${c.method}/${c.variant}`).sort()).toEqual([
+      'allpass/first-order',
+      'allpass/second-order',
+      'fir/remez',
+    ]);
+    const made = cands.filter((c) => c.multipliesPerSample !== undefined);
+    const least = Math.min(...made.map((c) => c.multipliesPerSample!));
+    expect(net.cost.multipliesPerSample).toBe(least);
+    expect(ownWorstDb(net)).toBeGreaterThanOrEqual(50);
+    for (const c of made) expect(c.worstSuppressionDb!).toBeGreaterThanOrEqual(50);
+    const reason = net.design.reason as string;
+    expect(reason).toMatch(/^chose allpass \(second-order, \d+ sections\): \d+ multiplies\/sample, latency/);
+    expect(reason).toMatch(/fir \(remez, \d+ taps\): \d+ multiplies\/sample, latency \d+\.\d samples/);
+    expect(reason).toMatch(/allpass \(first-order, \d+ sections\)/);
+  });
+
+  it('respects maxLatencySamples, and says so when nothing fits', () => {
+    const spec: NetworkSpec = { sampleRate: 8000, band: [300, 3400], method: 'auto', targetDb: 50 };
+    const free = designNetwork(spec);
+    const cands = free.design.candidates as DesignCandidate[];
+    const second = cands.find((c) => c.variant === 'second-order')!;
+    const first = cands.find((c) => c.variant === 'first-order')!;
+    expect(second.latencySamples!).toBeGreaterThan(first.latencySamples!);
+    const limit = (first.latencySamples! + second.latencySamples!) / 2;
+    const net = designNetwork({ ...spec, maxLatencySamples: limit });
+    expect(net.cost.latencySamples).toBeLessThanOrEqual(limit);
+    expect(net.design.realised).toMatchObject({ method: 'allpass', form: 'first-order' });
+    expect(net.design.reason).toMatch(/latency above maxLatencySamples/);
+    expectError(
+      () => designNetwork({ ...spec, maxLatencySamples: 0.5 }),
+      'UNREACHABLE_TARGET',
+      /no network meets targetDb 50 dB .* within maxLatencySamples 0.5/,
+    );
+  });
+
+  it('defaults to 60 dB and produces a valid, evaluated document', () => {
+    const net = designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'auto' });
+    expect(net.design.targetDb).toBe(60);
+    expect(ownWorstDb(net)).toBeGreaterThanOrEqual(60);
+    expect(validateNetwork(net)).toBe(net);
+  });
+});
+
+describe('designNetwork: bad specs', () => {
+  it('names the value and the fix', () => {
+    const base = { sampleRate: 48000, band: [300, 3000] as [number, number] };
+    expectError(() => designNetwork({ ...base, method: 'iir' as 'fir' }), 'INVALID_ARGUMENT', /method "iir"/);
+    expectError(
+      () => designNetwork({ ...base, method: 'fir', taps: 64 }),
+      'INVALID_ARGUMENT',
+      /taps 64 must be odd .* use 63 or 65/,
+    );
+    expectError(
+      () => designNetwork({ ...base, method: 'allpass', sections: 4, targetDb: 60 }),
+      'UNREACHABLE_TARGET',
+      /sections 4 give .* below targetDb 60 dB/,
+    );
+    expectError(
+      () => designNetwork({ ...base, method: 'allpass', targetDb: 60, maxLatencySamples: 3 }),
+      'UNREACHABLE_TARGET',
+      /latency .* exceeds maxLatencySamples 3/,
+    );
+    expectError(
+      () => designNetwork({ sampleRate: 48000, band: [3000, 300], method: 'allpass' }),
+      'INVALID_BAND',
+      /lower edge 3000 Hz must be below the upper edge 300 Hz/,
+    );
+    expectError(
+      () => designNetwork({ ...base, method: 'allpass', targetDb: 500 }),
+      'INVALID_ARGUMENT',
+      /targetDb 500 dB is out of range/,
+    );
+  });
+});

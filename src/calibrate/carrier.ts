@@ -49,7 +49,7 @@ export function carrierAxes(toneAmplitude?: number): TrimAxes {
  *   the output (AC coupling).
  * @throws {OrthotoneError} INVALID_ARGUMENT for bad options.
  */
-export function calibrateCarrier(options: CarrierCalibrationOptions): Promise<TrimCalibrationResult> {
+export async function calibrateCarrier(options: CarrierCalibrationOptions): Promise<TrimCalibrationResult> {
   if (options.toneAmplitude !== undefined) requireRange('toneAmplitude', options.toneAmplitude, 1e-6, 4);
   return runTrimCalibration(options, carrierAxes(options.toneAmplitude));
 }

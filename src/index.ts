@@ -8,3 +8,4 @@ export * from './generate/index.js';
 export * from './webaudio/index.js';
 export * from './measure/index.js';
 export * from './calibrate/index.js';
+export * from './simulate/index.js';

@@ -1,0 +1,4 @@
+export * from './analyzer.js';
+export * from './exciter.js';
+export * from './model.js';
+export * from './response.js';

@@ -142,6 +142,9 @@ export function herrmannLength(delta1: number, delta2: number, transitionWidth: 
   return dinf / transitionWidth - f * transitionWidth + 1;
 }
 
+/** Number of largest grid peaks refined by direct evaluation in {@link evaluateHilbertFir}. */
+const REFINED_PEAKS = 8;
+
 /** Power of two ≥ n. */
 function nextPow2(n: number): number {
   let p = 1;
@@ -166,8 +169,9 @@ function responseAt(taps: ArrayLike<number>, w: number): { s: number; a: number 
 
 /**
  * Evaluates a Hilbert FIR (Q branch; I a delay of (N − 1)/2) from its taps alone: its response
- * relative to the delay, `S(ω) − jA(ω)`, on an FFT grid with at least 32 points per ripple
- * half-period, with parabolic refinement of each interior peak and exact values at the band edges.
+ * relative to the delay, `S(ω) − jA(ω)`, on an FFT grid (64·N points over the circle), with the
+ * largest interior peaks refined by golden-section search on the directly summed response and exact
+ * values at the band edges.
  * Suppression at each frequency is `|1 + A + jS| / |1 − A − jS|` (DESIGN.md §2 sign: ideal A = 1,
  * S = 0).
  * @param taps odd-length taps (any values; antisymmetry is not assumed).
@@ -182,7 +186,7 @@ export function evaluateHilbertFir(
 ): HilbertFirEvaluation {
   const n = taps.length;
   const c = (n - 1) >> 1;
-  const size = nextPow2(Math.max(256, 32 * n));
+  const size = nextPow2(Math.max(512, 64 * n));
   const fft = new FFT(size);
   const input = new Array<number>(size).fill(0);
   // Centre tap at index 0, later taps at m, earlier taps wrapped to size − m.
@@ -215,26 +219,62 @@ export function evaluateHilbertFir(
     worst = Math.max(worst, ratio(r.s, r.a));
     ripple = Math.max(ripple, Math.abs(r.a - 1));
   }
+  // Interior local maxima on the FFT grid, then the largest few refined by golden-section search
+  // on the directly summed response (the FFT grid alone can miss a narrow peak near a band edge).
+  const peaksQ: number[] = [];
+  const peaksD: number[] = [];
   for (let k = kLo; k <= kHi; k++) {
     const q = rk(k);
     const d = dk(k);
     if (q > worst) worst = q;
     if (d > ripple) ripple = d;
     if (k > kLo && k < kHi) {
-      // Parabolic peak through three samples refines a local maximum between bins.
-      const q0 = rk(k - 1);
-      const q2 = rk(k + 1);
-      if (q >= q0 && q >= q2) {
-        const den = q0 - 2 * q + q2;
-        if (den < 0) worst = Math.max(worst, q - ((q2 - q0) * (q2 - q0)) / (8 * den));
-      }
-      const d0 = dk(k - 1);
-      const d2 = dk(k + 1);
-      if (d >= d0 && d >= d2) {
-        const den = d0 - 2 * d + d2;
-        if (den < 0) ripple = Math.max(ripple, d - ((d2 - d0) * (d2 - d0)) / (8 * den));
+      if (q >= rk(k - 1) && q >= rk(k + 1)) peaksQ.push(k);
+      if (d >= dk(k - 1) && d >= dk(k + 1)) peaksD.push(k);
+    }
+  }
+  const wOf = (k: number): number => (2 * Math.PI * k) / size;
+  const golden = (k: number, fn: (w: number) => number): number => {
+    let a = wOf(k - 1);
+    let b = wOf(k + 1);
+    const g = (Math.sqrt(5) - 1) / 2;
+    let c = b - g * (b - a);
+    let d = a + g * (b - a);
+    let fc = fn(c);
+    let fd = fn(d);
+    for (let it = 0; it < 24; it++) {
+      if (fc > fd) {
+        b = d;
+        d = c;
+        fd = fc;
+        c = b - g * (b - a);
+        fc = fn(c);
+      } else {
+        a = c;
+        c = d;
+        fc = fd;
+        d = a + g * (b - a);
+        fd = fn(d);
       }
     }
+    return Math.max(fc, fd);
+  };
+  const top = (ks: number[], val: (k: number) => number): number[] =>
+    ks.sort((x, y) => val(y) - val(x)).slice(0, REFINED_PEAKS);
+  for (const k of top(peaksQ, rk)) {
+    worst = Math.max(
+      worst,
+      golden(k, (w) => {
+        const r = responseAt(taps, w);
+        return ratio(r.s, r.a);
+      }),
+    );
+  }
+  for (const k of top(peaksD, dk)) {
+    ripple = Math.max(
+      ripple,
+      golden(k, (w) => Math.abs(responseAt(taps, w).a - 1)),
+    );
   }
   return {
     worstSuppressionDb: worst === 0 ? Number.POSITIVE_INFINITY : -10 * Math.log10(worst),

@@ -12,6 +12,14 @@ interface Command {
 
 const COMMANDS: Record<string, Command> = {
   // Each command registers here: name → module.
+  design: {
+    summary: 'design a Hilbert FIR or all-pass 90° network for a band and sample rate',
+    load: () => import('./design.js'),
+  },
+  analyze: {
+    summary: 'evaluate a network file: phase/gain error, suppression, group delay, cost',
+    load: () => import('./analyze.js'),
+  },
 };
 
 function usage(): string {

@@ -4,7 +4,11 @@
 export function formatTable(rows: readonly (readonly string[])[]): string {
   if (rows.length === 0) return '';
   const widths: number[] = [];
-  for (const r of rows) r.forEach((c, k) => (widths[k] = Math.max(widths[k] ?? 0, c.length)));
+  for (const r of rows) {
+    r.forEach((c, k) => {
+      widths[k] = Math.max(widths[k] ?? 0, c.length);
+    });
+  }
   const numeric = (s: string): boolean => /^[-+]?[\d.]+(e[-+]?\d+)?( ?[a-zA-Z%°/]*)?$/.test(s.trim());
   const line = (r: readonly string[]): string =>
     r
@@ -19,4 +23,10 @@ export function formatTable(rows: readonly (readonly string[])[]): string {
 export function formatPairs(pairs: readonly (readonly [string, string])[]): string {
   const w = Math.max(...pairs.map(([k]) => k.length));
   return pairs.map(([k, v]) => `${k.padEnd(w)}  ${v}`).join('\n') + '\n';
+}
+
+/** `x.toFixed(digits)` without a minus sign on values that round to zero. */
+export function fixed(x: number, digits: number): string {
+  const s = x.toFixed(digits);
+  return /^-0\.?0*$/.test(s) ? s.slice(1) : s;
 }

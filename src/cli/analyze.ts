@@ -1,0 +1,105 @@
+/**
+ * `orthotone analyze FILE`: independent evaluation of a network document: phase and gain error,
+ * suppression and group delay versus frequency, worst case, cost and quantisation.
+ */
+import { readFileSync, writeFileSync } from 'node:fs';
+import { analyzeNetwork } from '../design/analysis.js';
+import { analysisToCsv } from '../export/csv.js';
+import { parseNetworkJson } from '../export/network-json.js';
+import { numberOpt, parseCommand, UsageError } from './args.js';
+import { describeNetwork } from './design.js';
+import { fixed, formatTable } from './table.js';
+
+const HELP = `usage: orthotone analyze FILE [options]
+
+Evaluates a network document (from 'orthotone design --format json') from its coefficients alone.
+
+options:
+  --points N       frequencies evaluated (default 25 for table, 2000 for json/csv)
+  --from HZ        lowest frequency (default band lower edge / 2)
+  --to HZ          highest frequency (default min(2 x band upper edge, Nyquist))
+  --format F       table (default) | json | csv
+  --out FILE       write to FILE instead of standard output
+  -h, --help       this help
+`;
+
+/** Runs `orthotone analyze`; returns the exit status. */
+export async function run(argv: string[]): Promise<number> {
+  const { values: v, positionals } = parseCommand(
+    argv,
+    {
+      points: { type: 'string' },
+      from: { type: 'string' },
+      to: { type: 'string' },
+      format: { type: 'string' },
+      out: { type: 'string' },
+      help: { type: 'boolean', short: 'h' },
+    },
+    true,
+  );
+  if (v.help) {
+    process.stdout.write(HELP);
+    return 0;
+  }
+  const file = positionals[0];
+  if (file === undefined || positionals.length > 1) throw new UsageError('give exactly one network FILE');
+  let text: string;
+  try {
+    text = readFileSync(file, 'utf8');
+  } catch (e) {
+    throw new UsageError(`cannot read ${file}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
+  }
+  const net = parseNetworkJson(text);
+  const format = (v.format as string | undefined) ?? 'table';
+  const nyq = net.sampleRate / 2;
+  const fromHz = numberOpt('from', v.from) ?? net.band[0] / 2;
+  const toHz = numberOpt('to', v.to) ?? Math.min(2 * net.band[1], nyq * 0.999);
+  const points = numberOpt('points', v.points) ?? (format === 'table' ? 25 : 2000);
+  const a = analyzeNetwork(net, { points, fromHz, toHz });
+  let out: string;
+  if (format === 'json') {
+    out = `${JSON.stringify(
+      {
+        band: a.band,
+        worst: a.worst,
+        maxPhaseErrorDeg: a.maxPhaseErrorDeg,
+        maxGainErrorDb: a.maxGainErrorDb,
+        groupDelayDifference: a.groupDelayDifference,
+        cost: a.cost,
+        points: Array.from(a.frequencyHz, (f, k) => ({
+          frequencyHz: f,
+          phaseErrorDeg: a.phaseErrorDeg[k],
+          gainErrorDb: a.gainErrorDb[k],
+          suppressionDb: a.suppressionDb[k],
+          groupDelayI: a.groupDelayI[k],
+          groupDelayQ: a.groupDelayQ[k],
+        })),
+      },
+      null,
+      2,
+    )}\n`;
+  } else if (format === 'csv') {
+    out = analysisToCsv(a);
+  } else if (format === 'table') {
+    const rows = [['frequency Hz', 'phase err °', 'gain err dB', 'suppression dB', 'delay I', 'delay Q', '']];
+    for (let k = 0; k < a.frequencyHz.length; k++) {
+      const f = a.frequencyHz[k]!;
+      const inBand = f >= net.band[0] && f <= net.band[1];
+      rows.push([
+        f.toFixed(1),
+        fixed(a.phaseErrorDeg[k]!, 4),
+        fixed(a.gainErrorDb[k]!, 4),
+        fixed(Math.min(a.suppressionDb[k]!, 200), 2),
+        fixed(a.groupDelayI[k]!, 2),
+        fixed(a.groupDelayQ[k]!, 2),
+        inBand ? '' : '*',
+      ]);
+    }
+    out = `${describeNetwork(net)}\n${formatTable(rows)}(* outside the design band)\n`;
+  } else {
+    throw new UsageError(`--format ${JSON.stringify(format)} must be table, json or csv`);
+  }
+  if (typeof v.out === 'string') writeFileSync(v.out, out);
+  else process.stdout.write(out);
+  return 0;
+}

@@ -1,0 +1,163 @@
+/**
+ * `orthotone design`: design a 90° network for a sample rate and band and print or write it as a
+ * readable table, the JSON network document, a C header or CSV.
+ */
+import { writeFileSync } from 'node:fs';
+import { analyzeNetwork } from '../design/analysis.js';
+import { designNetwork, type NetworkSpec } from '../design/design-network.js';
+import type { Network } from '../design/network.js';
+import { quantizationReport } from '../design/quantize.js';
+import { networkToCHeader } from '../export/c-header.js';
+import { networkToCsv } from '../export/csv.js';
+import { networkToJson } from '../export/network-json.js';
+import { numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
+import { fixed, formatPairs } from './table.js';
+
+const HELP = `usage: orthotone design [options]
+
+Designs the 90° network of a phasing exciter and reports the opposite-sideband suppression it allows.
+
+options:
+  --rate HZ              sample rate in Hz (default 48000)
+  --band LO:HI           audio band in Hz (default 300:3000)
+  --method M             fir | allpass | auto (default auto: the cheapest network meeting the target)
+  --target DB            suppression target in dB over the band (default 60 when no size is given)
+  --taps N               FIR length (odd); with --method fir
+  --sections N           all-pass sections, both branches together; with --method allpass
+  --fir-method M         remez (equiripple, default) | kaiser (windowed)
+  --form F               all-pass form: first-order | second-order (z^-2, band symmetric about fs/4)
+  --format F             table (default) | json | c | csv
+  --name ID              identifier prefix in the C header (default ot)
+  --out FILE             write to FILE instead of standard output
+  -h, --help             this help
+`;
+
+/** Builds the design spec from parsed CLI values. */
+export function specFromOptions(v: Record<string, unknown>): NetworkSpec {
+  const band = numberListOpt('band', v.band ?? '300:3000', ':', 2) as [number, number];
+  const method = (v.method ?? 'auto') as string;
+  if (!['fir', 'allpass', 'auto'].includes(method)) {
+    throw new UsageError(`--method ${JSON.stringify(method)} must be fir, allpass or auto`);
+  }
+  const spec: NetworkSpec = {
+    sampleRate: numberOpt('rate', v.rate ?? '48000')!,
+    band,
+    method: method as NetworkSpec['method'],
+  };
+  const target = numberOpt('target', v.target);
+  const taps = numberOpt('taps', v.taps);
+  const sections = numberOpt('sections', v.sections);
+  if (target !== undefined) spec.targetDb = target;
+  if (taps !== undefined) spec.taps = taps;
+  if (sections !== undefined) spec.sections = sections;
+  if (v['fir-method'] !== undefined) spec.firMethod = v['fir-method'] as NetworkSpec['firMethod'];
+  if (v.form !== undefined) spec.allpassForm = v.form as NetworkSpec['allpassForm'];
+  return spec;
+}
+
+/** Shared option table for commands that accept design options. */
+export const DESIGN_OPTIONS = {
+  rate: { type: 'string' },
+  band: { type: 'string' },
+  method: { type: 'string' },
+  target: { type: 'string' },
+  taps: { type: 'string' },
+  sections: { type: 'string' },
+  'fir-method': { type: 'string' },
+  form: { type: 'string' },
+} as const;
+
+/** A readable summary of a network: what it is, what it allows, what it costs. */
+export function describeNetwork(net: Network): string {
+  const a = analyzeNetwork(net, { points: 2000 });
+  const q = quantizationReport(net);
+  const size =
+    net.kind === 'fir'
+      ? `${net.taps.length} taps (${net.taps.filter((t) => t === 0).length} exactly zero)`
+      : `${net.branches.i.sections.length} + ${net.branches.q.sections.length} sections ` +
+        `(orders ${[...new Set([...net.branches.i.sections, ...net.branches.q.sections].map((s) => s.order))].join('/')}), ` +
+        `delays ${net.branches.i.delay}/${net.branches.q.delay}`;
+  const lat = net.cost.latencySamples;
+  const pairs: [string, string][] = [
+    ['network', net.kind === 'fir' ? 'Hilbert FIR (type III)' : 'all-pass pair'],
+    ['size', size],
+    ['sample rate', `${net.sampleRate} Hz`],
+    ['band', `${net.band[0]}–${net.band[1]} Hz`],
+    [
+      'worst suppression',
+      `${net.predicted.worstSuppressionDb.toFixed(2)} dB at ${a.worst.atHz.toFixed(1)} Hz (opposite sideband, dBc)`,
+    ],
+    ['max phase error', `${net.predicted.maxPhaseErrorDeg.toPrecision(4)}°`],
+    ['max gain error', `${net.predicted.maxGainErrorDb.toPrecision(4)} dB`],
+    [
+      'group delay I/Q',
+      `difference ${fixed(a.groupDelayDifference.min, 2)} to ${fixed(a.groupDelayDifference.max, 2)} samples over the band`,
+    ],
+    ['cost', `${net.cost.multipliesPerSample} multiplies/sample`],
+    ['latency', `${lat.toFixed(2)} samples (${((lat / net.sampleRate) * 1000).toFixed(3)} ms)`],
+    [
+      'after rounding',
+      `float32 ${q.float32.worstSuppressionDb.toFixed(2)} dB, Q31 ${q.q31.worstSuppressionDb.toFixed(2)} dB, Q15 ${q.q15.worstSuppressionDb.toFixed(2)} dB`,
+    ],
+  ];
+  const reason = net.design.reason;
+  if (typeof reason === 'string') pairs.push(['why this network', reason]);
+  let out = formatPairs(pairs);
+  out += '\ncoefficients:\n';
+  if (net.kind === 'fir') {
+    const d = (net.taps.length - 1) / 2;
+    net.taps.forEach((t, k) => {
+      if (k >= d && t !== 0) out += `  h[${d} ± ${k - d}] = ±${t.toPrecision(12)}\n`;
+    });
+    out +=
+      '  (antisymmetric: h[centre − m] = −h[centre + m]; Q is the FIR, I a delay of ' + `${d} samples)\n`;
+  } else {
+    for (const b of ['i', 'q'] as const) {
+      const br = net.branches[b];
+      out += `  branch ${b.toUpperCase()}: delay ${br.delay}; ${br.sections.map((s) => `${s.order === 2 ? 'z⁻²' : 'z⁻¹'} a=${s.a.toPrecision(12)}`).join(', ')}\n`;
+    }
+  }
+  return out;
+}
+
+/** Renders a network in the requested output format. */
+export function renderNetwork(net: Network, format: string, name?: string): string {
+  switch (format) {
+    case 'json':
+      return networkToJson(net);
+    case 'c':
+      return networkToCHeader(net, name === undefined ? {} : { name });
+    case 'csv':
+      return networkToCsv(net);
+    case 'table':
+      return describeNetwork(net);
+    default:
+      throw new UsageError(`--format ${JSON.stringify(format)} must be table, json, c or csv`);
+  }
+}
+
+/** Runs `orthotone design`; returns the exit status. */
+export async function run(argv: string[]): Promise<number> {
+  const { values: v } = parseCommand(argv, {
+    ...DESIGN_OPTIONS,
+    format: { type: 'string' },
+    name: { type: 'string' },
+    out: { type: 'string' },
+    help: { type: 'boolean', short: 'h' },
+  });
+  if (v.help) {
+    process.stdout.write(HELP);
+    return 0;
+  }
+  const net = designNetwork(specFromOptions(v));
+  const text = renderNetwork(net, (v.format as string | undefined) ?? 'table', v.name as string | undefined);
+  if (typeof v.out === 'string') {
+    writeFileSync(v.out, text);
+    process.stderr.write(
+      `orthotone: wrote ${v.out} (${net.kind}, worst suppression ${net.predicted.worstSuppressionDb.toFixed(2)} dB)\n`,
+    );
+  } else {
+    process.stdout.write(text);
+  }
+  return 0;
+}

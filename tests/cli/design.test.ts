@@ -1,0 +1,122 @@
+// Runs the built CLI (npm test builds first) as a user would.
+import { execFileSync, spawnSync } from 'node:child_process';
+import { mkdtempSync, readFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { evaluateBranches, suppressionFromResponse, validateNetwork } from '../../src/design/network.js';
+
+const cli = (args: string[]) => spawnSync('node', ['dist/cli.js', ...args], { encoding: 'utf8' });
+
+/** Worst suppression over [lo, hi] by a plain dense sweep of the document's coefficients. */
+function sweepWorst(doc: unknown, lo: number, hi: number): number {
+  const net = validateNetwork(doc);
+  let worst = Number.POSITIVE_INFINITY;
+  for (let k = 0; k <= 4000; k++) {
+    const f = lo * (hi / lo) ** (k / 4000);
+    worst = Math.min(worst, suppressionFromResponse(evaluateBranches(net, f)));
+  }
+  return worst;
+}
+
+describe('orthotone design', () => {
+  it.each([
+    [48000, '300:3000', 60],
+    [48000, '300:3000', 70],
+    [8000, '200:3400', 50],
+    [96000, '100:10000', 80],
+  ])(
+    'rate %d, band %s, all-pass target %d dB: the JSON document meets it and predicts honestly',
+    (rate, band, target) => {
+      const r = cli([
+        'design',
+        '--rate',
+        String(rate),
+        '--band',
+        band,
+        '--method',
+        'allpass',
+        '--target',
+        String(target),
+        '--format',
+        'json',
+      ]);
+      expect(r.status).toBe(0);
+      const doc = JSON.parse(r.stdout);
+      const [lo, hi] = band.split(':').map(Number) as [number, number];
+      const worst = sweepWorst(doc, lo, hi);
+      expect(worst).toBeGreaterThanOrEqual(target - 0.01);
+      expect(Math.abs(doc.predicted.worstSuppressionDb - worst)).toBeLessThan(0.1);
+      // No more sections than the optimum needs: one section fewer misses the target.
+      const n = doc.branches.i.sections.length + doc.branches.q.sections.length;
+      const fewer = cli([
+        'design',
+        '--rate',
+        String(rate),
+        '--band',
+        band,
+        '--method',
+        'allpass',
+        '--sections',
+        String(n - 1),
+        '--format',
+        'json',
+      ]);
+      expect(fewer.status).toBe(0);
+      expect(sweepWorst(JSON.parse(fewer.stdout), lo, hi)).toBeLessThan(target);
+    },
+  );
+
+  it('writes a C header and CSV to files, and a readable table by default', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'orthotone-cli-'));
+    expect(cli(['design', '--format', 'c', '--out', join(dir, 'n.h')]).status).toBe(0);
+    expect(readFileSync(join(dir, 'n.h'), 'utf8')).toMatch(/#ifndef OT_NETWORK_H/);
+    expect(
+      cli(['design', '--method', 'fir', '--target', '40', '--format', 'csv', '--out', join(dir, 'n.csv')])
+        .status,
+    ).toBe(0);
+    expect(readFileSync(join(dir, 'n.csv'), 'utf8')).toMatch(/^index,offset,tap\n/);
+    const table = cli(['design']).stdout;
+    expect(table).toMatch(/worst suppression\s+\d+\.\d\d dB/);
+    expect(table).toMatch(/why this network/);
+  });
+
+  it('exits 2 with one line naming the bad value', () => {
+    for (const args of [
+      ['design', '--band', '300:30000'],
+      ['design', '--band', '3000:300'],
+      ['design', '--rate', 'abc'],
+      ['design', '--method', 'iir'],
+      ['design', '--nonsense'],
+      ['design', '--method', 'allpass', '--target', '400'],
+      ['analyze', '/nonexistent.json'],
+    ]) {
+      const r = cli(args);
+      expect(r.status, args.join(' ')).toBe(2);
+      expect(r.stderr.trim().split('\n')).toHaveLength(1);
+    }
+    expect(cli(['design', '--band', '300:30000']).stderr).toMatch(/30000 Hz must be below Nyquist 24000 Hz/);
+  });
+
+  it('has --help on every command it knows', () => {
+    expect(cli(['--help']).stdout).toMatch(/dummy load/);
+    for (const c of ['design', 'analyze']) {
+      const r = cli([c, '--help']);
+      expect(r.status).toBe(0);
+      expect(r.stdout).toMatch(/^usage: orthotone /);
+    }
+  });
+});
+
+describe('orthotone analyze', () => {
+  it('evaluates a file written by design, JSON agreeing with the document', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'orthotone-cli-'));
+    const file = join(dir, 'n.json');
+    execFileSync('node', ['dist/cli.js', 'design', '--target', '60', '--format', 'json', '--out', file]);
+    const doc = JSON.parse(readFileSync(file, 'utf8'));
+    const a = JSON.parse(cli(['analyze', file, '--format', 'json']).stdout);
+    expect(Math.abs(a.worst.suppressionDb - doc.predicted.worstSuppressionDb)).toBeLessThan(0.1);
+    expect(a.points.length).toBe(2000);
+    expect(cli(['analyze', file]).stdout).toMatch(/outside the design band/);
+  });
+});

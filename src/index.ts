@@ -9,3 +9,4 @@ export * from './webaudio/index.js';
 export * from './measure/index.js';
 export * from './calibrate/index.js';
 export * from './simulate/index.js';
+export * from './export/index.js';

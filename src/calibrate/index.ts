@@ -2,6 +2,7 @@ export * from './baselines.js';
 export * from './carrier.js';
 export * from './combined.js';
 export * from './diagnosis.js';
+export * from './multitone.js';
 export * from './null-seeker.js';
 export * from './quadratic-fit.js';
 export * from './run-null-seeker.js';

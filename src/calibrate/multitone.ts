@@ -1,0 +1,433 @@
+/**
+ * Multi-tone calibration: when the imbalance changes with audio frequency (time skew between the
+ * channels, mismatched coupling and anti-imaging corners), one pair of trims nulls one frequency
+ * only. Here one probe sequence serves every tone: each reading returns the unwanted sideband of
+ * each tone (a multi-tone capture, or the tones read in turn with the same trims), the per-tone
+ * nulls are fitted from the shared readings, a smooth model of the required gain and phase versus
+ * frequency is fitted through them (including the linear phase of a channel skew), and that model
+ * is realised as a short widely-linear FIR pair inside the generator (`Correction`, DESIGN.md §4).
+ *
+ * Sequence: a null seeker on the mean image power of the tones (a bowl of the same curvature ¼
+ * centred on the mean null) spends about 60% of the budget; then the per-tone fits, refined with the
+ * rest of the budget by jumps and ring probes around the tone whose null is least certain.
+ *
+ * Correction design: with trims zero, the corrected Q of a tone at ω has the phasor
+ * `e^{jωD}·(−j·H_QQ(ω) + H_QI(ω))`, D = (L−1)/2, while the ideal correction is
+ * `Q' = α(ω)·Q + β(ω)·I` with `α + jβ = G(ω)·e^{jφ(ω)}`. Taking `H_QQ = α·e^{−jωD}` and
+ * `H_QI = β·e^{−jωD}` (symmetric taps, cosine series) and fitting each by least squares over the
+ * band gives the pair. References: widely-linear frequency-selective I/Q correction, Anttila,
+ * Valkama & Renfors, IEEE TCAS-II 55(4), Apr 2008; delay-based compensation of frequency-dependent
+ * imbalance, Kiss & Prodanov, IEEE TCAS-I 51(6), 2004; least-squares FIR design on a frequency
+ * grid, Parks & Burrus, Digital Filter Design (1987), ch. 3.
+ */
+import { OrthotoneError } from '../core/errors.js';
+import type { Correction, Trims } from '../core/trims.js';
+import { ZERO_TRIMS } from '../core/trims.js';
+import { degToRad, radToDeg } from '../core/units.js';
+import { requireFinite, requireInteger, requirePositive, requireSampleRate } from '../core/validate.js';
+import { createNullSeeker, type StopReason } from './null-seeker.js';
+import { fitNullSurface, linearPowerFit, type NullSurface, type SurfacePoint } from './quadratic-fit.js';
+import { SIDEBAND_CURVATURE, sidebandPoint, sidebandTrims } from './sideband.js';
+import { weightedLeastSquares } from './small-linear.js';
+
+/** Options of {@link calibrateMultitone}. */
+export interface MultitoneOptions {
+  /** Reads the unwanted sideband of every tone (same order as `tonesHz`) with these trims, dBc. */
+  measure: (trims: Trims) => readonly number[] | Promise<readonly number[]>;
+  /** Tone frequencies, Hz (at least 2, distinct, positive). */
+  tonesHz: readonly number[];
+  /** Sample rate the correction filter will run at, Hz. */
+  sampleRate: number;
+  /** Band over which the correction is designed, Hz. Default: the span of the tones. */
+  band?: [number, number];
+  /** Correction length, taps (odd). Default 31. */
+  taps?: number;
+  /** Trims to begin from; gain and phase are searched, the others pass through. */
+  start?: Partial<Trims>;
+  /** Standard deviation of one reading, dB. Default 0.5. */
+  noiseDb?: number;
+  /** Hard budget of `measure` calls. Default 24. */
+  maxReadings?: number;
+  signal?: AbortSignal;
+  onReading?: (step: { index: number; trims: Trims; levelsDb: number[] }) => void;
+}
+
+/** The fitted null of one tone. */
+export interface ToneOptimum {
+  frequencyHz: number;
+  /** Gain and phase trims that null this tone alone. */
+  gainDb: number;
+  phaseDeg: number;
+  /** Standard deviation of the null position, natural units (≈ fraction of gain, radians). */
+  uncertainty: number;
+  /** Fitted floor of this tone's readings, dBc. */
+  floorDb: number;
+}
+
+/** Smooth model of the required correction versus frequency. */
+export interface ImbalanceModel {
+  /** `gainDb(f) = g0 + g1·(f/f0)² + g2·(f0/f)²` coefficients, dB. */
+  gainDb: [number, number, number];
+  /** `phase(f) = p0 + p1·f + p2/f` coefficients (rad, rad/Hz, rad·Hz). */
+  phase: [number, number, number];
+  /** Reference frequency f0, Hz (geometric centre of the tones). */
+  f0: number;
+  /** The linear-phase term as the channel skew it compensates: Q lagging I by this, seconds. */
+  skewSeconds: number;
+}
+
+/** Result of {@link calibrateMultitone}. */
+export interface MultitoneResult {
+  tones: ToneOptimum[];
+  model: ImbalanceModel;
+  /** The correction filter for the generator (gain and phase trims then stay 0). */
+  correction: Correction;
+  /** Trims to use with the correction: the start's skew and DC, gain and phase 0. */
+  trims: Trims;
+  /** The best single gain/phase setting for all tones (the compromise without a correction). */
+  singleTrims: Trims;
+  /** Predicted suppression of each tone with the correction (fit and design error only), dB. */
+  predictedDb: number[];
+  /** Worst predicted suppression over the band on a fine grid (model and design error), dB. */
+  predictedWorstDb: number;
+  readings: number;
+  history: { index: number; trims: Trims; levelsDb: number[] }[];
+  stopReason: StopReason;
+}
+
+/**
+ * Evaluates an imbalance model: the gain and phase trim that nulls a tone at `hz`.
+ * @returns `{ gainDb, phaseDeg }`.
+ */
+export function evaluateImbalanceModel(m: ImbalanceModel, hz: number): { gainDb: number; phaseDeg: number } {
+  const r = hz / m.f0;
+  return {
+    gainDb: m.gainDb[0] + m.gainDb[1] * r * r + m.gainDb[2] / (r * r),
+    phaseDeg: radToDeg(m.phase[0] + m.phase[1] * hz + m.phase[2] / hz),
+  };
+}
+
+/**
+ * The gain and phase trim a correction (after `trims`) is equivalent to for a tone at `hz`: the
+ * whole path at that one frequency, so a model that knows only scalar trims can evaluate it.
+ * @param correction the FIR pair (or undefined for none).
+ * @param trims the trims before it (gain and phase used).
+ * @param hz tone frequency, Hz.
+ * @param sampleRate Hz.
+ */
+export function equivalentTrims(
+  correction: Correction | undefined,
+  trims: Partial<Trims>,
+  hz: number,
+  sampleRate: number,
+): Trims {
+  const t = { ...ZERO_TRIMS, ...trims };
+  if (!correction) return t;
+  const w = (2 * Math.PI * hz) / sampleRate;
+  const g = 10 ** (t.gainDb / 20);
+  const p = degToRad(t.phaseDeg);
+  // Q' = a0·Q + b0·I; phasor of Q' = −j·a0 + b0 (I = cos, Q = sin).
+  const a0 = g * Math.cos(p);
+  const b0 = g * Math.sin(p);
+  const d = (correction.qFromQ.length - 1) / 2;
+  let hqRe = 0;
+  let hqIm = 0;
+  let hiRe = 0;
+  let hiIm = 0;
+  for (let k = 0; k < correction.qFromQ.length; k++) {
+    const c = Math.cos(w * (k - d));
+    const s = -Math.sin(w * (k - d));
+    hqRe += correction.qFromQ[k]! * c;
+    hqIm += correction.qFromQ[k]! * s;
+    hiRe += correction.qFromI[k]! * c;
+    hiIm += correction.qFromI[k]! * s;
+  }
+  // X = H_QQ·(b0 − j·a0) + H_QI (I' = I has phasor 1), delay D removed.
+  const xRe = hqRe * b0 + hqIm * a0 + hiRe;
+  const xIm = hqIm * b0 - hqRe * a0 + hiIm;
+  const alpha = -xIm;
+  const beta = xRe;
+  return {
+    ...t,
+    gainDb: 20 * Math.log10(Math.hypot(alpha, beta)),
+    phaseDeg: radToDeg(Math.atan2(beta, alpha)),
+  };
+}
+
+/**
+ * Fits the smooth model through per-tone nulls (weighted least squares; fewer terms for fewer tones).
+ * @throws {OrthotoneError} INVALID_ARGUMENT for fewer than one tone.
+ */
+export function fitImbalanceModel(tones: readonly ToneOptimum[]): ImbalanceModel {
+  if (tones.length < 1) throw new OrthotoneError('INVALID_ARGUMENT', 'need at least one tone optimum');
+  const f0 = Math.exp(tones.reduce((s, t) => s + Math.log(t.frequencyHz), 0) / tones.length);
+  const nTerms = Math.min(3, tones.length);
+  const w = tones.map((t) => 1 / (t.uncertainty ** 2 + 1e-10));
+  const grow = (t: ToneOptimum): number[] => {
+    const r = t.frequencyHz / f0;
+    return [1, r * r, 1 / (r * r)].slice(0, nTerms);
+  };
+  const prow = (t: ToneOptimum): number[] => [1, t.frequencyHz / f0, f0 / t.frequencyHz].slice(0, nTerms);
+  // Gain in natural units (fraction) ≈ dB·ln10/20: weight by the same uncertainty.
+  const gs = weightedLeastSquares(
+    tones.map(grow),
+    tones.map((t) => t.gainDb),
+    w,
+    nTerms,
+    1e-12,
+  );
+  const ps = weightedLeastSquares(
+    tones.map(prow),
+    tones.map((t) => degToRad(t.phaseDeg)),
+    w,
+    nTerms,
+    1e-12,
+  );
+  const g = [gs?.[0] ?? 0, gs?.[1] ?? 0, gs?.[2] ?? 0] as [number, number, number];
+  const p = [ps?.[0] ?? 0, (ps?.[1] ?? 0) / f0, (ps?.[2] ?? 0) * f0] as [number, number, number];
+  return { gainDb: g, phase: p, f0, skewSeconds: p[1] / (2 * Math.PI) };
+}
+
+/**
+ * Designs the correction FIR pair realising a model over a band, by least squares on a grid.
+ * @param model gain and phase versus frequency.
+ * @param band [lo, hi] Hz.
+ * @param sampleRate Hz.
+ * @param taps odd length.
+ * @throws {OrthotoneError} INVALID_ARGUMENT for an even or too short length or a bad band.
+ */
+export function designCorrection(
+  model: ImbalanceModel,
+  band: readonly [number, number],
+  sampleRate: number,
+  taps: number,
+): Correction {
+  requireSampleRate(sampleRate);
+  requireInteger('taps', taps, 1, 255);
+  if (taps % 2 === 0) throw new OrthotoneError('INVALID_ARGUMENT', `taps ${taps} must be odd`, taps);
+  const [lo, hi] = band;
+  if (!(lo > 0 && hi > lo && hi < sampleRate / 2)) {
+    throw new OrthotoneError('INVALID_ARGUMENT', `band [${lo}, ${hi}] Hz must satisfy 0 < lo < hi < fs/2`);
+  }
+  const m = (taps - 1) / 2;
+  const grid = 96;
+  const rows: number[][] = [];
+  const ya: number[] = [];
+  const yb: number[] = [];
+  for (let i = 0; i < grid; i++) {
+    // Log-spaced grid: the band spans a decade and errors matter equally per octave.
+    const f = lo * (hi / lo) ** (i / (grid - 1));
+    const w = (2 * Math.PI * f) / sampleRate;
+    rows.push(Array.from({ length: m + 1 }, (_, k) => Math.cos(k * w)));
+    const e = evaluateImbalanceModel(model, f);
+    const G = 10 ** (e.gainDb / 20);
+    const ph = degToRad(e.phaseDeg);
+    ya.push(G * Math.cos(ph));
+    yb.push(G * Math.sin(ph));
+  }
+  const ones = rows.map(() => 1);
+  // A light ridge keeps the cosine fit bounded where the band leaves the series free (near DC, fs/2).
+  const ca = weightedLeastSquares(rows, ya, ones, m + 1, 1e-9) ?? Float64Array.of(1);
+  const cb = weightedLeastSquares(rows, yb, ones, m + 1, 1e-9) ?? Float64Array.of(0);
+  const qFromQ = new Array<number>(taps).fill(0);
+  const qFromI = new Array<number>(taps).fill(0);
+  qFromQ[m] = ca[0] ?? 1;
+  qFromI[m] = cb[0] ?? 0;
+  for (let k = 1; k <= m; k++) {
+    qFromQ[m + k] = qFromQ[m - k] = (ca[k] ?? 0) / 2;
+    qFromI[m + k] = qFromI[m - k] = (cb[k] ?? 0) / 2;
+  }
+  return { qFromQ, qFromI };
+}
+
+/**
+ * Calibrates a frequency-dependent sideband correction from one probe sequence over several tones.
+ * @param options measure (levels per tone, dBc), tones, sample rate, band, taps, budget, noise.
+ * @returns per-tone nulls, the fitted model, the correction and its predicted suppression.
+ * @throws {OrthotoneError} INVALID_ARGUMENT for bad options (a failed reading is retried once per
+ *   setting; readings that keep failing end the run with `measurement-failed`).
+ */
+export async function calibrateMultitone(options: MultitoneOptions): Promise<MultitoneResult> {
+  const o = options;
+  if (typeof o?.measure !== 'function') {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      'measure must be a function (trims) => levels per tone, dBc',
+    );
+  }
+  const fs = requireSampleRate(o.sampleRate);
+  if (!Array.isArray(o.tonesHz) || o.tonesHz.length < 2) {
+    throw new OrthotoneError('INVALID_ARGUMENT', 'tonesHz must list at least 2 tone frequencies in Hz');
+  }
+  o.tonesHz.forEach((f, i) => {
+    requirePositive(`tonesHz[${i}]`, f, 'Hz');
+    if (f >= fs / 2) throw new OrthotoneError('INVALID_ARGUMENT', `tonesHz[${i}] ${f} Hz must be below fs/2`);
+  });
+  const noiseDb = o.noiseDb === undefined ? 0.5 : requirePositive('noiseDb', o.noiseDb, 'dB');
+  const maxReadings =
+    o.maxReadings === undefined ? 24 : requireInteger('maxReadings', o.maxReadings, 4, 10_000);
+  const taps = o.taps ?? 31;
+  const band: [number, number] = o.band ?? [Math.min(...o.tonesHz), Math.max(...o.tonesHz)];
+  band.forEach((b, i) => requireFinite(`band[${i}]`, b));
+  const start: Trims = { ...ZERO_TRIMS, ...(o.start ?? {}) };
+  const K = o.tonesHz.length;
+  const pts: SurfacePoint[][] = o.tonesHz.map(() => []);
+  const history: MultitoneResult['history'] = [];
+  let failures = 0;
+  let stopReason: StopReason = 'budget';
+
+  const read = async (p: [number, number]): Promise<number[] | undefined> => {
+    const trims = sidebandTrims(p, start);
+    let levels: number[] | undefined;
+    try {
+      const r = await o.measure(trims);
+      if (Array.isArray(r) && r.length === K && r.every((x) => Number.isFinite(x))) levels = [...r];
+    } catch {
+      levels = undefined;
+    }
+    history.push({ index: history.length + 1, trims, levelsDb: levels ?? o.tonesHz.map(() => Number.NaN) });
+    if (levels) {
+      failures = 0;
+      levels.forEach((db, k) => pts[k]!.push({ x: p[0], y: p[1], db }));
+      o.onReading?.(history[history.length - 1]!);
+    } else failures++;
+    return levels;
+  };
+
+  // Stage 1: the mean image power of the tones.
+  const stage1 = Math.max(4, Math.round(0.6 * maxReadings));
+  const seeker = createNullSeeker({
+    model: 'known-curvature',
+    curvature: SIDEBAND_CURVATURE,
+    start: sidebandPoint(start),
+    noiseDb: noiseDb / Math.sqrt(K),
+    maxReadings: stage1,
+    bounds: [
+      [-0.45, 0.85],
+      [-0.5, 0.5],
+    ],
+    maxStep: [0.3, 0.3],
+    axisNames: ['gain', 'phase'],
+  });
+  for (;;) {
+    if (o.signal?.aborted) {
+      stopReason = 'aborted';
+      break;
+    }
+    const p = seeker.next();
+    if (!p) break;
+    const levels = await read(p);
+    const mean = levels ? 10 * Math.log10(levels.reduce((s, db) => s + 10 ** (db / 10), 0) / K) : Number.NaN;
+    seeker.tell(p, mean);
+  }
+  if (seeker.stopReason === 'measurement-failed') stopReason = 'measurement-failed';
+
+  // Stage 2: per-tone fits, refined by probes around the least certain tone.
+  const fits: (NullSurface & { cov: [number, number, number] })[] = [];
+  const fitTone = (k: number): void => {
+    const s = pts[k]!;
+    const floorGuess = 10 ** ((Math.min(...s.map((q) => q.db)) - 10) / 10);
+    const e = seeker.estimate();
+    const starts: NullSurface[] = [];
+    const base = { logC: Math.log(SIDEBAND_CURVATURE), logN: Math.log(floorGuess), s: 0, k: 0 };
+    if (fits[k]) starts.push(fits[k]!);
+    if (e) starts.push({ ...base, cx: e.centre[0], cy: e.centre[1] });
+    const lin = linearPowerFit(s, 'known-curvature', Math.log(SIDEBAND_CURVATURE), floorGuess);
+    if (lin) starts.push({ ...lin, s: 0, k: 0 });
+    if (starts.length === 0) starts.push({ ...base, cx: s[0]!.x, cy: s[0]!.y });
+    const f = fitNullSurface(s, {
+      noiseDb,
+      robust: true,
+      starts,
+      priors: {
+        cx: { mean: starts[0]!.cx, sd: 1 },
+        cy: { mean: starts[0]!.cy, sd: 1 },
+        logC: { mean: Math.log(SIDEBAND_CURVATURE), sd: 0.15 },
+        logN: { mean: Math.log(floorGuess), sd: 3 },
+        s: { mean: 0, sd: 0.05 },
+        k: { mean: 0, sd: 0.05 },
+      },
+    });
+    fits[k] = { ...f.surface, cov: f.centreCov };
+  };
+  const ok = pts.every((s) => s.length >= 3);
+  if (ok) for (let k = 0; k < K; k++) fitTone(k);
+  const jumped = o.tonesHz.map(() => false);
+  let probeSign = 1;
+  while (ok && stopReason === 'budget' && history.length < maxReadings && failures < 3) {
+    if (o.signal?.aborted) {
+      stopReason = 'aborted';
+      break;
+    }
+    let worst = 0;
+    let worstVar = -1;
+    fits.forEach((f, k) => {
+      const v = f.cov[0] + f.cov[2];
+      if (v > worstVar) {
+        worstVar = v;
+        worst = k;
+      }
+    });
+    const f = fits[worst]!;
+    const rf = Math.sqrt(Math.exp(f.logN) / Math.exp(f.logC));
+    let p: [number, number];
+    if (!jumped[worst]) {
+      p = [f.cx, f.cy];
+      jumped[worst] = true;
+    } else {
+      const [a, b, c] = f.cov;
+      const angle = 0.5 * Math.atan2(2 * b, a - c);
+      const r = Math.max(rf, 2 * Math.sqrt(Math.max(a + c, 0)));
+      p = [f.cx + probeSign * r * Math.cos(angle), f.cy + probeSign * r * Math.sin(angle)];
+      probeSign = -probeSign;
+      jumped[worst] = false;
+    }
+    await read(p);
+    for (let k = 0; k < K; k++) fitTone(k);
+  }
+  if (failures >= 3) stopReason = 'measurement-failed';
+  if (!ok) {
+    throw new OrthotoneError(
+      'MEASUREMENT_FAILED',
+      `multi-tone calibration needs at least 3 good readings; got ${Math.min(...pts.map((s) => s.length))}`,
+    );
+  }
+
+  const tones: ToneOptimum[] = fits.map((f, k) => {
+    const t = sidebandTrims([f.cx, f.cy], start);
+    return {
+      frequencyHz: o.tonesHz[k]!,
+      gainDb: t.gainDb,
+      phaseDeg: t.phaseDeg,
+      uncertainty: Math.sqrt(Math.max(f.cov[0] + f.cov[2], 1e-14)),
+      floorDb: (10 * f.logN) / Math.LN10,
+    };
+  });
+  const model = fitImbalanceModel(tones);
+  const correction = designCorrection(model, band, fs, taps);
+  const residualDb = (hz: number, target: { gainDb: number; phaseDeg: number }): number => {
+    const eq = equivalentTrims(correction, {}, hz, fs);
+    const [u1, v1] = sidebandPoint(eq);
+    const [u0, v0] = sidebandPoint(target);
+    return -10 * Math.log10(SIDEBAND_CURVATURE * ((u1 - u0) ** 2 + (v1 - v0) ** 2) + 1e-30);
+  };
+  const predictedDb = tones.map((t) => residualDb(t.frequencyHz, t));
+  let predictedWorstDb = Number.POSITIVE_INFINITY;
+  for (let i = 0; i < 64; i++) {
+    const f = band[0] * (band[1] / band[0]) ** (i / 63);
+    predictedWorstDb = Math.min(predictedWorstDb, residualDb(f, evaluateImbalanceModel(model, f)));
+  }
+  const single = seeker.best().point;
+  return {
+    tones,
+    model,
+    correction,
+    trims: { ...start, gainDb: 0, phaseDeg: 0 },
+    singleTrims: sidebandTrims(single, start),
+    predictedDb,
+    predictedWorstDb,
+    readings: history.length,
+    history,
+    stopReason,
+  };
+}

@@ -268,7 +268,7 @@ export async function calibrateMultitone(options: MultitoneOptions): Promise<Mul
     o.maxReadings === undefined ? 24 : requireInteger('maxReadings', o.maxReadings, 4, 10_000);
   const taps = o.taps ?? 31;
   const band: [number, number] = o.band ?? [Math.min(...o.tonesHz), Math.max(...o.tonesHz)];
-  band.forEach((b, i) => requireFinite(`band[${i}]`, b));
+  for (const [i, b] of band.entries()) requireFinite(`band[${i}]`, b);
   const start: Trims = { ...ZERO_TRIMS, ...(o.start ?? {}) };
   const K = o.tonesHz.length;
   const pts: SurfacePoint[][] = o.tonesHz.map(() => []);
@@ -288,7 +288,7 @@ export async function calibrateMultitone(options: MultitoneOptions): Promise<Mul
     history.push({ index: history.length + 1, trims, levelsDb: levels ?? o.tonesHz.map(() => Number.NaN) });
     if (levels) {
       failures = 0;
-      levels.forEach((db, k) => pts[k]!.push({ x: p[0], y: p[1], db }));
+      for (const [k, db] of levels.entries()) pts[k]!.push({ x: p[0], y: p[1], db });
       o.onReading?.(history[history.length - 1]!);
     } else failures++;
     return levels;

@@ -6,9 +6,10 @@
  * Each section is one multiply per sample in the form `y[n] = a·(x[n] − y[n−m]) + x[n−m]`
  * (m = 1 or 2), the classic one-multiplier all-pass (S. K. Mitra, Digital Signal Processing, 4th
  * ed., §9.7 on all-pass realisations; the same form as used for polyphase IIR half-band and 90°
- * filters). A chunk is run section by section (each section's recursion in a tight loop with its
- * state in locals), which is exact and independent of block partitioning because every section is
- * causal and its state is carried between chunks.
+ * filters). A chunk is run section by section, two sections of each branch per pass with their
+ * states in locals, so four independent recursions overlap in the CPU (one recursion alone is bound
+ * by its own latency). This is exact and independent of block partitioning: every section is causal
+ * and its state is carried between chunks. Branch delays are read from one shared input history.
  *
  * Denormals: a recursion fed silence decays geometrically into subnormal numbers, which slow some
  * CPUs by orders of magnitude. Each branch therefore adds a constant 1e-20 (−400 dBFS) at its input
@@ -25,21 +26,16 @@ export const ANTI_DENORMAL_OFFSET = 1e-20;
 
 const HISTORY_SPARE = 16 * RUNTIME_CHUNK;
 
-/** One branch's coefficients (immutable) and state (copied by clone). */
+/** One branch: coefficients and orders (immutable) and per-section state (copied by clone). */
 interface BranchState {
-  /** Section orders, 1 or 2. */
-  orders: Uint8Array;
   /** Section coefficients. */
   coef: Float64Array;
+  /** Section orders (1 or 2). */
+  order: Uint8Array;
   /** Per section: x[n−1], x[n−2], y[n−1], y[n−2]. */
-  state: Float64Array;
-  /** Integer delay, samples. */
+  st: Float64Array;
+  /** Integer delay, samples, applied at the branch input (a delay commutes with the sections). */
   delay: number;
-  /** Delay line history (linear, over-allocated) and write position. */
-  hist: Float64Array;
-  wp: number;
-  /** Working chunk. */
-  work: Float64Array;
 }
 
 function checkBranch(name: string, b: AllpassBranch): void {
@@ -63,91 +59,211 @@ function checkBranch(name: string, b: AllpassBranch): void {
 
 function newBranch(b: AllpassBranch): BranchState {
   return {
-    orders: Uint8Array.from(b.sections.map((s) => s.order)),
     coef: Float64Array.from(b.sections.map((s) => s.a)),
-    state: new Float64Array(4 * b.sections.length),
+    order: Uint8Array.from(b.sections.map((s) => s.order)),
+    st: new Float64Array(4 * b.sections.length),
     delay: b.delay,
-    hist: new Float64Array(b.delay > 0 ? b.delay + HISTORY_SPARE : 0),
-    wp: b.delay,
-    work: new Float64Array(RUNTIME_CHUNK),
   };
 }
 
 function copyBranch(s: BranchState): BranchState {
-  return {
-    orders: s.orders,
-    coef: s.coef,
-    state: s.state.slice(),
-    delay: s.delay,
-    hist: s.hist.slice(),
-    wp: s.wp,
-    work: new Float64Array(RUNTIME_CHUNK),
-  };
+  return { ...s, st: s.st.slice() };
 }
 
-/** Runs one branch over `n` samples of `x` into `out`. */
-function runBranch(b: BranchState, x: Float64Array, n: number, out: Float64Array): void {
-  const w = b.work;
-  for (let j = 0; j < n; j++) w[j] = x[j]! + ANTI_DENORMAL_OFFSET;
-  const st = b.state;
-  const ns = b.orders.length;
-  for (let s = 0; s < ns; s++) {
-    const a = b.coef[s]!;
-    const o = 4 * s;
-    if (b.orders[s] === 1) {
-      let x1 = st[o]!;
-      let y1 = st[o + 2]!;
-      for (let j = 0; j < n; j++) {
-        const xn = w[j]!;
-        const yn = a * (xn - y1) + x1;
-        x1 = xn;
-        y1 = yn;
-        w[j] = yn;
-      }
-      st[o] = x1;
-      st[o + 2] = y1;
-    } else {
-      let x1 = st[o]!;
-      let x2 = st[o + 1]!;
-      let y1 = st[o + 2]!;
-      let y2 = st[o + 3]!;
-      for (let j = 0; j < n; j++) {
-        const xn = w[j]!;
-        const yn = a * (xn - y2) + x2;
-        x2 = x1;
-        x1 = xn;
-        y2 = y1;
-        y1 = yn;
-        w[j] = yn;
-      }
-      st[o] = x1;
-      st[o + 1] = x2;
-      st[o + 2] = y1;
-      st[o + 3] = y2;
+/** One section over `n` samples of `w`, in place: `y = a·(x − y[n−m]) + x[n−m]`. */
+function runSection(b: BranchState, s: number, w: Float64Array, n: number): void {
+  const a = b.coef[s]!;
+  const st = b.st;
+  const o = 4 * s;
+  let x1 = st[o]!;
+  let x2 = st[o + 1]!;
+  let y1 = st[o + 2]!;
+  let y2 = st[o + 3]!;
+  if (b.order[s] === 1) {
+    for (let j = 0; j < n; j++) {
+      const xn = w[j]!;
+      const yn = a * (xn - y1) + x1;
+      x1 = xn;
+      y1 = yn;
+      w[j] = yn;
+    }
+  } else {
+    for (let j = 0; j < n; j++) {
+      const xn = w[j]!;
+      const yn = a * (xn - y2) + x2;
+      x2 = x1;
+      x1 = xn;
+      y2 = y1;
+      y1 = yn;
+      w[j] = yn;
     }
   }
-  const d = b.delay;
-  if (d === 0) {
-    for (let j = 0; j < n; j++) out[j] = w[j]! - ANTI_DENORMAL_OFFSET;
-    return;
-  }
-  const h = b.hist;
-  let wp = b.wp;
-  if (wp + n > h.length) {
-    h.copyWithin(0, wp - d, wp);
-    wp = d;
-  }
-  for (let j = 0; j < n; j++) {
-    h[wp + j] = w[j]!;
-    out[j] = h[wp + j - d]! - ANTI_DENORMAL_OFFSET;
-  }
-  b.wp = wp + n;
+  st[o] = x1;
+  st[o + 1] = x2;
+  st[o + 2] = y1;
+  st[o + 3] = y2;
 }
 
-function resetBranch(b: BranchState): void {
-  b.state.fill(0);
-  b.hist.fill(0);
-  b.wp = b.delay;
+/**
+ * Sections s and s+1 of both branches in one pass (all four first order): four independent
+ * recursions per loop, which the CPU overlaps, instead of one recursion's latency per loop.
+ * Each recursion computes exactly what {@link runSection} computes.
+ */
+function runQuad1(
+  bi: BranchState,
+  bq: BranchState,
+  s: number,
+  wi: Float64Array,
+  wq: Float64Array,
+  n: number,
+): void {
+  const si = bi.st;
+  const sq = bq.st;
+  const o = 4 * s;
+  const a0 = bi.coef[s]!;
+  const a1 = bi.coef[s + 1]!;
+  const b0 = bq.coef[s]!;
+  const b1 = bq.coef[s + 1]!;
+  let ix0 = si[o]!;
+  let iy0 = si[o + 2]!;
+  let ix1 = si[o + 4]!;
+  let iy1 = si[o + 6]!;
+  let qx0 = sq[o]!;
+  let qy0 = sq[o + 2]!;
+  let qx1 = sq[o + 4]!;
+  let qy1 = sq[o + 6]!;
+  for (let j = 0; j < n; j++) {
+    const xi = wi[j]!;
+    const xq = wq[j]!;
+    const ti = a0 * (xi - iy0) + ix0;
+    const tq = b0 * (xq - qy0) + qx0;
+    ix0 = xi;
+    iy0 = ti;
+    qx0 = xq;
+    qy0 = tq;
+    const ui = a1 * (ti - iy1) + ix1;
+    const uq = b1 * (tq - qy1) + qx1;
+    ix1 = ti;
+    iy1 = ui;
+    qx1 = tq;
+    qy1 = uq;
+    wi[j] = ui;
+    wq[j] = uq;
+  }
+  si[o] = ix0;
+  si[o + 2] = iy0;
+  si[o + 4] = ix1;
+  si[o + 6] = iy1;
+  sq[o] = qx0;
+  sq[o + 2] = qy0;
+  sq[o + 4] = qx1;
+  sq[o + 6] = qy1;
+}
+
+/** As {@link runQuad1} for four second-order (z⁻²) sections. */
+function runQuad2(
+  bi: BranchState,
+  bq: BranchState,
+  s: number,
+  wi: Float64Array,
+  wq: Float64Array,
+  n: number,
+): void {
+  const si = bi.st;
+  const sq = bq.st;
+  const o = 4 * s;
+  const a0 = bi.coef[s]!;
+  const a1 = bi.coef[s + 1]!;
+  const b0 = bq.coef[s]!;
+  const b1 = bq.coef[s + 1]!;
+  let ix01 = si[o]!;
+  let ix02 = si[o + 1]!;
+  let iy01 = si[o + 2]!;
+  let iy02 = si[o + 3]!;
+  let ix11 = si[o + 4]!;
+  let ix12 = si[o + 5]!;
+  let iy11 = si[o + 6]!;
+  let iy12 = si[o + 7]!;
+  let qx01 = sq[o]!;
+  let qx02 = sq[o + 1]!;
+  let qy01 = sq[o + 2]!;
+  let qy02 = sq[o + 3]!;
+  let qx11 = sq[o + 4]!;
+  let qx12 = sq[o + 5]!;
+  let qy11 = sq[o + 6]!;
+  let qy12 = sq[o + 7]!;
+  for (let j = 0; j < n; j++) {
+    const xi = wi[j]!;
+    const xq = wq[j]!;
+    const ti = a0 * (xi - iy02) + ix02;
+    const tq = b0 * (xq - qy02) + qx02;
+    ix02 = ix01;
+    ix01 = xi;
+    iy02 = iy01;
+    iy01 = ti;
+    qx02 = qx01;
+    qx01 = xq;
+    qy02 = qy01;
+    qy01 = tq;
+    const ui = a1 * (ti - iy12) + ix12;
+    const uq = b1 * (tq - qy12) + qx12;
+    ix12 = ix11;
+    ix11 = ti;
+    iy12 = iy11;
+    iy11 = ui;
+    qx12 = qx11;
+    qx11 = tq;
+    qy12 = qy11;
+    qy11 = uq;
+    wi[j] = ui;
+    wq[j] = uq;
+  }
+  si[o] = ix01;
+  si[o + 1] = ix02;
+  si[o + 2] = iy01;
+  si[o + 3] = iy02;
+  si[o + 4] = ix11;
+  si[o + 5] = ix12;
+  si[o + 6] = iy11;
+  si[o + 7] = iy12;
+  sq[o] = qx01;
+  sq[o + 1] = qx02;
+  sq[o + 2] = qy01;
+  sq[o + 3] = qy02;
+  sq[o + 4] = qx11;
+  sq[o + 5] = qx12;
+  sq[o + 6] = qy11;
+  sq[o + 7] = qy12;
+}
+
+/** Execution plan: per step, 0 = quad of first-order, 1 = quad of z⁻², 2 = singles at index s. */
+function makePlan(bi: BranchState, bq: BranchState): { kind: Uint8Array; index: Int32Array } {
+  const kinds: number[] = [];
+  const idx: number[] = [];
+  const ni = bi.order.length;
+  const nq = bq.order.length;
+  let s = 0;
+  while (s < Math.max(ni, nq)) {
+    if (s + 1 < ni && s + 1 < nq) {
+      const o = bi.order[s];
+      if (bi.order[s + 1] === o && bq.order[s] === o && bq.order[s + 1] === o) {
+        kinds.push(o === 1 ? 0 : 1);
+        idx.push(s);
+        s += 2;
+        continue;
+      }
+    }
+    kinds.push(2);
+    idx.push(s);
+    s += 1;
+  }
+  return { kind: Uint8Array.from(kinds), index: Int32Array.from(idx) };
+}
+
+/** Shared input history (x + offset) for the branch delays: linear, over-allocated, one span. */
+interface InputHistory {
+  h: Float64Array;
+  wp: number;
 }
 
 /**
@@ -161,20 +277,58 @@ export function createAllpassRuntime(branches: { i: AllpassBranch; q: AllpassBra
   checkBranch('i', branches.i);
   checkBranch('q', branches.q);
   const multipliesPerSample = branches.i.sections.length + branches.q.sections.length;
-  const make = (bi: BranchState, bq: BranchState): NetworkRuntime => ({
+  const keep = Math.max(branches.i.delay, branches.q.delay);
+  const plan = makePlan(newBranch(branches.i), newBranch(branches.q));
+  const steps = plan.kind.length;
+  const wi = new Float64Array(RUNTIME_CHUNK);
+  const wq = new Float64Array(RUNTIME_CHUNK);
+  const make = (bi: BranchState, bq: BranchState, hist: InputHistory): NetworkRuntime => ({
     kind: 'allpass',
     multipliesPerSample,
     process(x, n, outI, outQ) {
-      runBranch(bi, x, n, outI);
-      runBranch(bq, x, n, outQ);
+      const h = hist.h;
+      let wp = hist.wp;
+      if (wp + n > h.length) {
+        h.copyWithin(0, wp - keep, wp);
+        wp = keep;
+      }
+      for (let j = 0; j < n; j++) h[wp + j] = x[j]! + ANTI_DENORMAL_OFFSET;
+      const pi = wp - bi.delay;
+      const pq = wp - bq.delay;
+      for (let j = 0; j < n; j++) {
+        wi[j] = h[pi + j]!;
+        wq[j] = h[pq + j]!;
+      }
+      hist.wp = wp + n;
+      const ni = bi.coef.length;
+      const nq = bq.coef.length;
+      for (let k = 0; k < steps; k++) {
+        const s = plan.index[k]!;
+        const kind = plan.kind[k];
+        if (kind === 0) runQuad1(bi, bq, s, wi, wq, n);
+        else if (kind === 1) runQuad2(bi, bq, s, wi, wq, n);
+        else {
+          if (s < ni) runSection(bi, s, wi, n);
+          if (s < nq) runSection(bq, s, wq, n);
+        }
+      }
+      for (let j = 0; j < n; j++) {
+        outI[j] = wi[j]! - ANTI_DENORMAL_OFFSET;
+        outQ[j] = wq[j]! - ANTI_DENORMAL_OFFSET;
+      }
     },
     reset() {
-      resetBranch(bi);
-      resetBranch(bq);
+      bi.st.fill(0);
+      bq.st.fill(0);
+      hist.h.fill(0);
+      hist.wp = keep;
     },
     clone() {
-      return make(copyBranch(bi), copyBranch(bq));
+      return make(copyBranch(bi), copyBranch(bq), { h: hist.h.slice(), wp: hist.wp });
     },
   });
-  return make(newBranch(branches.i), newBranch(branches.q));
+  return make(newBranch(branches.i), newBranch(branches.q), {
+    h: new Float64Array(keep + HISTORY_SPARE),
+    wp: keep,
+  });
 }

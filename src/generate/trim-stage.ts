@@ -185,27 +185,25 @@ export class TrimStage {
   private readonly rSkew = new Float64Array(RUNTIME_CHUNK);
   private readonly rDcI = new Float64Array(RUNTIME_CHUNK);
   private readonly rDcQ = new Float64Array(RUNTIME_CHUNK);
-  private readonly q1 = new Float64Array(RUNTIME_CHUNK);
-  private readonly i2 = new Float64Array(RUNTIME_CHUNK);
-  private readonly q2 = new Float64Array(RUNTIME_CHUNK);
   private readonly inI = new Float64Array(RUNTIME_CHUNK);
   private readonly inQ = new Float64Array(RUNTIME_CHUNK);
+  // One linear history per signal, shared write position: I' and Q' after step 1, and the
+  // corrected Q (only written while a correction is set). Every later step reads spans of these.
+  private readonly keep: number;
+  private readonly hI: Float64Array;
+  private readonly hQ: Float64Array;
+  private readonly hC: Float64Array;
+  private wp: number;
   // correction
   private readonly kc: number;
-  private readonly cHistI: Float64Array;
-  private readonly cHistQ: Float64Array;
-  private cWp: number;
   private readonly cQ: Float64Array;
   private readonly cI: Float64Array;
   private cLen = 0;
   private cOff = 0;
+  private cBackfill = false;
   private correctionDoc: Correction | null = null;
   // skew
   private readonly bulk: number;
-  private readonly sHistI: Float64Array;
-  private readonly sHistQ: Float64Array;
-  private readonly sKeep: number;
-  private sWp: number;
   private readonly steadyTaps = new Float64Array(FD_TAPS);
   private readonly rampTaps = new Float64Array(FD_TAPS);
   private steadyInt = 0;
@@ -225,21 +223,20 @@ export class TrimStage {
     this.maxCorrectionTaps = o.maxCorrectionTaps;
     this.targetTrims = { ...ZERO_TRIMS, ...stripUndefined(o.trims) };
     this.sidebandSel = o.sideband;
-    // correction
     const lm = o.maxCorrectionTaps;
     this.kc = lm > 0 ? (lm - 1) / 2 : 0;
-    this.cHistI = new Float64Array(lm > 0 ? lm - 1 + SPARE : 0);
-    this.cHistQ = new Float64Array(lm > 0 ? lm - 1 + SPARE : 0);
-    this.cWp = lm > 0 ? lm - 1 : 0;
     this.cQ = new Float64Array(lm);
     this.cI = new Float64Array(lm);
     // skew: I delayed by `bulk`, Q by bulk + skew; the interpolator reaches FD_HALF samples ahead.
     const ms = Math.ceil(o.maxSkewSamples);
     this.bulk = ms > 0 ? ms + FD_HALF : 0;
-    this.sKeep = ms > 0 ? this.bulk + ms + FD_TAPS / 2 + 1 : 0;
-    this.sHistI = new Float64Array(ms > 0 ? this.sKeep + SPARE : 0);
-    this.sHistQ = new Float64Array(ms > 0 ? this.sKeep + SPARE : 0);
-    this.sWp = this.sKeep;
+    // Oldest sample any step reads: the skewed Q (bulk + ms + TAPS/2 back) of the correction output,
+    // which itself reaches 2·kc back into Q' and I'.
+    this.keep = 2 * this.kc + (ms > 0 ? this.bulk + ms + FD_TAPS / 2 : 0) + 1;
+    this.hI = new Float64Array(this.keep + SPARE);
+    this.hQ = new Float64Array(this.keep + SPARE);
+    this.hC = new Float64Array(lm > 0 ? this.keep + SPARE : 0);
+    this.wp = this.keep;
     this.latencySamples = this.kc + this.bulk;
     naturalParams(this.targetTrims, this.sign(), this.tgt);
     this.cur.set(this.tgt);
@@ -313,6 +310,7 @@ export class TrimStage {
     if (c === null) {
       this.cLen = 0;
       this.correctionDoc = null;
+      this.cBackfill = false;
       return;
     }
     if (this.maxCorrectionTaps === 0) {
@@ -332,6 +330,9 @@ export class TrimStage {
     }
     this.cLen = n;
     this.cOff = this.kc - (n - 1) / 2;
+    // The skew interpolator reads corrected Q from before this block: recompute that history
+    // with the new correction at the next block (as if it had always been set).
+    this.cBackfill = true;
     this.correctionDoc = { qFromQ: c.qFromQ.slice(), qFromI: c.qFromI.slice() };
   }
 
@@ -369,12 +370,11 @@ export class TrimStage {
     this.rampPos = 0;
     this.rampLen = 0;
     this.updateSteadySkew();
-    this.cHistI.fill(0);
-    this.cHistQ.fill(0);
-    this.cWp = this.maxCorrectionTaps > 0 ? this.maxCorrectionTaps - 1 : 0;
-    this.sHistI.fill(0);
-    this.sHistQ.fill(0);
-    this.sWp = this.sKeep;
+    this.hI.fill(0);
+    this.hQ.fill(0);
+    this.hC.fill(0);
+    this.wp = this.keep;
+    this.cBackfill = this.cLen > 0;
     this.resetStats();
   }
 
@@ -408,17 +408,16 @@ export class TrimStage {
     this.tgt.set(o.tgt);
     this.rampPos = o.rampPos;
     this.rampLen = o.rampLen;
-    this.cHistI.set(o.cHistI);
-    this.cHistQ.set(o.cHistQ);
-    this.cWp = o.cWp;
+    this.hI.set(o.hI);
+    this.hQ.set(o.hQ);
+    this.hC.set(o.hC);
+    this.wp = o.wp;
     this.cQ.set(o.cQ);
     this.cI.set(o.cI);
     this.cLen = o.cLen;
     this.cOff = o.cOff;
+    this.cBackfill = o.cBackfill;
     this.correctionDoc = o.correctionDoc;
-    this.sHistI.set(o.sHistI);
-    this.sHistQ.set(o.sHistQ);
-    this.sWp = o.sWp;
     this.steadyTaps.set(o.steadyTaps);
     this.steadyInt = o.steadyInt;
     this.steadyFrac = o.steadyFrac;
@@ -447,6 +446,23 @@ export class TrimStage {
     }
   }
 
+  /** Corrected Q at history position p (aligned with I' at p − kc). */
+  private correctedAt(p: number): number {
+    const cq = this.cQ;
+    const ci = this.cI;
+    const hq = this.hQ;
+    const hi = this.hI;
+    const len = this.cLen;
+    const base = p - this.cOff;
+    let acc = 0;
+    let acc2 = 0;
+    for (let k = 0; k < len; k++) {
+      acc += cq[k]! * hq[base - k]!;
+      acc2 += ci[k]! * hi[base - k]!;
+    }
+    return acc + acc2;
+  }
+
   /**
    * Runs one chunk (n ≤ RUNTIME_CHUNK) of network output `iIn`, `qIn` (indices 0…n−1) through the
    * trims into `outI[o…]`, `outQ[o…]`. Used by the generator; allocation-free.
@@ -459,14 +475,28 @@ export class TrimStage {
     outQ: Float32Array,
     o: number,
   ): void {
-    // Step 1: sideband, gain and phase (with the ramp bookkeeping).
-    const q1 = this.q1;
+    const hI = this.hI;
+    const hQ = this.hQ;
+    const hC = this.hC;
+    const keep = this.keep;
+    let wp = this.wp;
+    if (wp + n > hI.length) {
+      hI.copyWithin(0, wp - keep, wp);
+      hQ.copyWithin(0, wp - keep, wp);
+      if (this.cLen > 0) hC.copyWithin(0, wp - keep, wp);
+      wp = keep;
+    }
+    // Step 1: sideband, gain and phase, written straight into the histories (with the ramp).
     const ramped = this.rampPos < this.rampLen;
     const cur = this.cur;
     if (!ramped) {
       const a = cur[0]!;
       const b = cur[1]!;
-      for (let j = 0; j < n; j++) q1[j] = a * qIn[j]! + b * iIn[j]!;
+      for (let j = 0; j < n; j++) {
+        const vi = iIn[j]!;
+        hI[wp + j] = vi;
+        hQ[wp + j] = a * qIn[j]! + b * vi;
+      }
     } else {
       const st = this.start;
       const tg = this.tgt;
@@ -498,7 +528,9 @@ export class TrimStage {
         this.rSkew[j] = sk;
         this.rDcI[j] = di;
         this.rDcQ[j] = dq;
-        q1[j] = a * qIn[j]! + b * iIn[j]!;
+        const vi = iIn[j]!;
+        hI[wp + j] = vi;
+        hQ[wp + j] = a * qIn[j]! + b * vi;
       }
       cur[0] = a;
       cur[1] = b;
@@ -513,168 +545,97 @@ export class TrimStage {
       }
     }
 
-    // Step 1b: correction (I delayed by kc; Q from the widely-linear FIR pair or delayed by kc).
-    let i2: Float64Array = iIn;
-    let q2: Float64Array = q1;
-    if (this.maxCorrectionTaps > 0) {
-      const hi = this.cHistI;
-      const hq = this.cHistQ;
-      const keep = this.maxCorrectionTaps - 1;
-      let wp = this.cWp;
-      if (wp + n > hi.length) {
-        hi.copyWithin(0, wp - keep, wp);
-        hq.copyWithin(0, wp - keep, wp);
-        wp = keep;
+    // Step 1b: the correction's output history (Qc[p] aligned with I'[p − kc]).
+    const corrected = this.cLen > 0;
+    if (corrected) {
+      if (this.cBackfill) {
+        for (let p = wp - (keep - 2 * this.kc) + 1; p < wp; p++) hC[p] = this.correctedAt(p);
+        this.cBackfill = false;
       }
-      for (let j = 0; j < n; j++) {
-        hi[wp + j] = iIn[j]!;
-        hq[wp + j] = q1[j]!;
-      }
-      i2 = this.i2;
-      q2 = this.q2;
-      const kc = this.kc;
-      const len = this.cLen;
-      if (len === 0) {
-        for (let j = 0; j < n; j++) {
-          i2[j] = hi[wp + j - kc]!;
-          q2[j] = hq[wp + j - kc]!;
-        }
-      } else {
-        const cq = this.cQ;
-        const ci = this.cI;
-        const off = this.cOff;
-        for (let j = 0; j < n; j++) {
-          const p = wp + j - off;
-          i2[j] = hi[wp + j - kc]!;
-          let acc = 0;
-          let acc2 = 0;
-          for (let k = 0; k < len; k++) {
-            acc += cq[k]! * hq[p - k]!;
-            acc2 += ci[k]! * hi[p - k]!;
-          }
-          q2[j] = acc + acc2;
-        }
-      }
-      this.cWp = wp + n;
+      for (let j = 0; j < n; j++) hC[wp + j] = this.correctedAt(wp + j);
     }
+    // Q is read from the corrected history, or from Q' with the correction's delay kc.
+    const qh = corrected ? hC : hQ;
+    const qoff = corrected ? 0 : this.kc;
+    const ioff = this.kc + this.bulk;
 
     // Step 2 (skew) and step 3 (DC), then the output guard.
     const stats = this.stats;
     let peak = stats.peak;
     let over = 0;
-    if (this.bulk === 0) {
-      const di = cur[3]!;
-      const dq = cur[4]!;
-      for (let j = 0; j < n; j++) {
-        const vi = ramped ? i2[j]! + this.rDcI[j]! : i2[j]! + di;
-        const vq = ramped ? q2[j]! + this.rDcQ[j]! : q2[j]! + dq;
-        let ai = vi < 0 ? -vi : vi;
-        let aq = vq < 0 ? -vq : vq;
-        let wi = vi;
-        let wq = vq;
-        if (ai < OUTPUT_FLUSH) wi = 0;
-        else if (!(ai <= 1)) {
-          over++;
-          if (!(ai <= OUTPUT_LIMIT)) {
-            wi = vi > 0 ? OUTPUT_LIMIT : vi < 0 ? -OUTPUT_LIMIT : 0;
-            ai = wi < 0 ? -wi : wi;
-          }
-        }
-        if (aq < OUTPUT_FLUSH) wq = 0;
-        else if (!(aq <= 1)) {
-          over++;
-          if (!(aq <= OUTPUT_LIMIT)) {
-            wq = vq > 0 ? OUTPUT_LIMIT : vq < 0 ? -OUTPUT_LIMIT : 0;
-            aq = wq < 0 ? -wq : wq;
-          }
-        }
-        if (ai > peak) peak = ai;
-        if (aq > peak) peak = aq;
-        outI[o + j] = wi;
-        outQ[o + j] = wq;
-      }
-    } else {
-      const hi = this.sHistI;
-      const hq = this.sHistQ;
-      const keep = this.sKeep;
-      let wp = this.sWp;
-      if (wp + n > hi.length) {
-        hi.copyWithin(0, wp - keep, wp);
-        hq.copyWithin(0, wp - keep, wp);
-        wp = keep;
-      }
-      for (let j = 0; j < n; j++) {
-        hi[wp + j] = i2[j]!;
-        hq[wp + j] = q2[j]!;
-      }
-      const bulk = this.bulk;
-      const di = cur[3]!;
-      const dq = cur[4]!;
-      const sInt = this.steadyInt;
-      const sFrac = this.steadyFrac;
-      const sTaps = this.steadyTaps;
-      const rTaps = this.rampTaps;
-      for (let j = 0; j < n; j++) {
-        const p = wp + j;
-        let qd: number;
-        let ti: number;
-        let frac: number;
-        let taps: Float64Array;
-        if (ramped) {
-          const t = bulk + this.rSkew[j]!;
-          ti = Math.floor(t);
-          frac = t - ti;
-          taps = rTaps;
-          if (frac !== 0) fractionalDelayTaps(frac, rTaps);
-        } else {
-          ti = sInt;
-          frac = sFrac;
-          taps = sTaps;
-        }
-        if (frac === 0) qd = hq[p - ti]!;
+    const bulk = this.bulk;
+    const sFrac = this.steadyFrac;
+    const sTaps = this.steadyTaps;
+    const rTaps = this.rampTaps;
+    const sBase = qoff + this.steadyInt;
+    for (let j = 0; j < n; j++) {
+      const p = wp + j;
+      let qd: number;
+      let di: number;
+      let dq: number;
+      if (!ramped) {
+        di = cur[3]!;
+        dq = cur[4]!;
+        if (sFrac === 0) qd = qh[p - sBase]!;
+        else qd = fractional(sTaps, qh, p - sBase + FD_HALF);
+      } else {
+        di = this.rDcI[j]!;
+        dq = this.rDcQ[j]!;
+        if (bulk === 0) qd = qh[p - qoff]!;
         else {
-          const base = p - ti + FD_HALF;
-          let acc = 0;
-          let acc2 = 0;
-          for (let k = 0; k < FD_TAPS; k += 2) {
-            acc += taps[k]! * hq[base - k]!;
-            acc2 += taps[k + 1]! * hq[base - k - 1]!;
-          }
-          qd = acc + acc2;
-        }
-        const vi = hi[p - bulk]! + (ramped ? this.rDcI[j]! : di);
-        const vq = qd + (ramped ? this.rDcQ[j]! : dq);
-        let ai = vi < 0 ? -vi : vi;
-        let aq = vq < 0 ? -vq : vq;
-        let wi = vi;
-        let wq = vq;
-        if (ai < OUTPUT_FLUSH) wi = 0;
-        else if (!(ai <= 1)) {
-          over++;
-          if (!(ai <= OUTPUT_LIMIT)) {
-            wi = vi > 0 ? OUTPUT_LIMIT : vi < 0 ? -OUTPUT_LIMIT : 0;
-            ai = wi < 0 ? -wi : wi;
+          const t = bulk + this.rSkew[j]!;
+          const ti = Math.floor(t);
+          const frac = t - ti;
+          if (frac === 0) qd = qh[p - qoff - ti]!;
+          else {
+            fractionalDelayTaps(frac, rTaps);
+            qd = fractional(rTaps, qh, p - qoff - ti + FD_HALF);
           }
         }
-        if (aq < OUTPUT_FLUSH) wq = 0;
-        else if (!(aq <= 1)) {
-          over++;
-          if (!(aq <= OUTPUT_LIMIT)) {
-            wq = vq > 0 ? OUTPUT_LIMIT : vq < 0 ? -OUTPUT_LIMIT : 0;
-            aq = wq < 0 ? -wq : wq;
-          }
-        }
-        if (ai > peak) peak = ai;
-        if (aq > peak) peak = aq;
-        outI[o + j] = wi;
-        outQ[o + j] = wq;
       }
-      this.sWp = wp + n;
+      const vi = hI[p - ioff]! + di;
+      const vq = qd + dq;
+      let ai = vi < 0 ? -vi : vi;
+      let aq = vq < 0 ? -vq : vq;
+      let wi = vi;
+      let wq = vq;
+      if (ai < OUTPUT_FLUSH) wi = 0;
+      else if (!(ai <= 1)) {
+        over++;
+        if (!(ai <= OUTPUT_LIMIT)) {
+          wi = vi > 0 ? OUTPUT_LIMIT : vi < 0 ? -OUTPUT_LIMIT : 0;
+          ai = wi < 0 ? -wi : wi;
+        }
+      }
+      if (aq < OUTPUT_FLUSH) wq = 0;
+      else if (!(aq <= 1)) {
+        over++;
+        if (!(aq <= OUTPUT_LIMIT)) {
+          wq = vq > 0 ? OUTPUT_LIMIT : vq < 0 ? -OUTPUT_LIMIT : 0;
+          aq = wq < 0 ? -wq : wq;
+        }
+      }
+      if (ai > peak) peak = ai;
+      if (aq > peak) peak = aq;
+      outI[o + j] = wi;
+      outQ[o + j] = wq;
     }
+    this.wp = wp + n;
     stats.peak = peak;
     stats.overFullScale += over;
     stats.samplesOut += 2 * n;
   }
+}
+
+/** `Σ_k taps[k]·h[base − k]` over the interpolator's taps (two accumulators, fixed order). */
+function fractional(taps: Float64Array, h: Float64Array, base: number): number {
+  let acc = 0;
+  let acc2 = 0;
+  for (let k = 0; k < FD_TAPS; k += 2) {
+    acc += taps[k]! * h[base - k]!;
+    acc2 += taps[k + 1]! * h[base - k - 1]!;
+  }
+  return acc + acc2;
 }
 
 function stripUndefined(t: Partial<Trims>): Partial<Trims> {

@@ -12,6 +12,14 @@ interface Command {
 
 const COMMANDS: Record<string, Command> = {
   // Each command registers here: name → module.
+  measure: {
+    summary: 'read sideband, carrier, two-tone products or tone levels from a WAV capture',
+    load: () => import('./measure.js'),
+  },
+  simulate: {
+    summary: 'run an I/Q file through a virtual exciter and write what a receiver captures',
+    load: () => import('./simulate.js'),
+  },
   design: {
     summary: 'design a Hilbert FIR or all-pass 90° network for a band and sample rate',
     load: () => import('./design.js'),

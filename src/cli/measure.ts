@@ -1,0 +1,245 @@
+/**
+ * `orthotone measure`: read tone levels, opposite-sideband and carrier suppression, or two-tone
+ * products from a WAV capture (receiver audio, or I/Q with I left and Q right).
+ *
+ * WAV input: src/node/wav.ts (being written by another helper) had not landed when this command
+ * was written, so the minimal reader below uses wavefile directly; switch to the shared reader
+ * when it exists.
+ */
+import { readFileSync, writeFileSync } from 'node:fs';
+import * as wavefileNs from 'wavefile';
+import { cautionsText } from '../core/cautions.js';
+import type { WindowName } from '../core/windows.js';
+import { measureSideband } from '../measure/sideband.js';
+import type { ToneReading } from '../measure/tones.js';
+import { measureTones } from '../measure/tones.js';
+import { measureTwoTone } from '../measure/two-tone.js';
+import { numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
+import { fixed, formatPairs, formatTable } from './table.js';
+
+const HELP = `usage: orthotone measure FILE.wav (--tone HZ (--iq | --offset HZ) | --two-tone HZ,HZ | --tones HZ,...) [options]
+
+Reads a capture of your exciter's output and prints the levels in it.
+
+  --tone HZ              single-tone test: wanted sideband, unwanted sideband and carrier
+  --iq                   the file is an I/Q capture (I left, Q right) around the carrier
+  --offset HZ            the file is receiver audio with the carrier at HZ in the audio
+  --receiver-sideband S  upper (default: receiver tuned below the carrier) | lower
+  --sideband S           the sideband you transmit: upper (default) | lower
+  --two-tone HZ,HZ       two-tone test: tones, PEP, 3rd- and 5th-order products
+                         (with --iq or --offset the tones are audio frequencies, placed as above)
+  --tones HZ,...         plain tone levels at these frequencies in the capture
+  --channel N            audio channel to read (default 0, the left)
+  --window W             blackman-harris (default) | hann | flattop
+  --resolution HZ        frame resolution (bin width) in Hz; default: from the capture length
+  --format F             table (default) | json
+  --out FILE             write to FILE instead of standard output
+  -h, --help             this help
+`;
+
+const OPTIONS = {
+  tone: { type: 'string' },
+  iq: { type: 'boolean' },
+  offset: { type: 'string' },
+  'receiver-sideband': { type: 'string' },
+  sideband: { type: 'string' },
+  'two-tone': { type: 'string' },
+  tones: { type: 'string' },
+  channel: { type: 'string' },
+  window: { type: 'string' },
+  resolution: { type: 'string' },
+  format: { type: 'string' },
+  out: { type: 'string' },
+  help: { type: 'boolean', short: 'h' },
+} as const;
+
+interface WaveFileLike {
+  fmt: { numChannels: number; sampleRate: number };
+  bitDepth: string;
+  getSamples(interleaved?: boolean, out?: unknown): Float64Array | Float64Array[];
+  fromScratch(ch: number, sr: number, depth: string, samples: ArrayLike<number>[] | ArrayLike<number>): void;
+  toBuffer(): Uint8Array;
+}
+type WaveFileCtor = new (buf?: Uint8Array) => WaveFileLike;
+const ns = wavefileNs as unknown as { WaveFile?: WaveFileCtor; default?: { WaveFile?: WaveFileCtor } };
+const WaveFile = (ns.WaveFile ?? ns.default?.WaveFile) as WaveFileCtor;
+
+/** A decoded WAV file: channels in full-scale units (−1…1). */
+export interface WavData {
+  sampleRate: number;
+  channels: Float64Array[];
+}
+
+/**
+ * Reads a WAV file into full-scale channels (integer formats divided by 2^(bits−1); 8-bit
+ * unsigned re-centred).
+ * @throws {UsageError} when the file cannot be read or decoded.
+ */
+export function readWav(path: string): WavData {
+  let wav: WaveFileLike;
+  try {
+    wav = new WaveFile(readFileSync(path));
+  } catch (e) {
+    throw new UsageError(`cannot read WAV file ${path}: ${(e as Error).message}`);
+  }
+  const raw = wav.getSamples(false, Float64Array);
+  const chans = (wav.fmt.numChannels === 1 ? [raw] : raw) as Float64Array[];
+  const depth = wav.bitDepth;
+  const bits = Number.parseInt(depth, 10);
+  const float = depth === '32f' || depth === '64';
+  const channels = chans.map((c) => {
+    if (float) return c;
+    const out = new Float64Array(c.length);
+    const scale = 2 ** (bits - 1);
+    const off = bits === 8 ? 128 : 0;
+    for (let k = 0; k < c.length; k++) out[k] = (c[k]! - off) / scale;
+    return out;
+  });
+  return { sampleRate: wav.fmt.sampleRate, channels };
+}
+
+/** Writes channels as a 32-bit float WAV file. */
+export function writeWav(path: string, sampleRate: number, channels: ArrayLike<number>[]): void {
+  const wav = new WaveFile();
+  wav.fromScratch(channels.length, sampleRate, '32f', channels.length === 1 ? channels[0]! : channels);
+  writeFileSync(path, wav.toBuffer());
+}
+
+const round = (x: number, d: number): number => (Number.isFinite(x) ? Number(x.toFixed(d)) : x);
+
+function toneRow(name: string, r: ToneReading, refDbfs?: number): string[] {
+  return [
+    name,
+    fixed(r.frequencyHz, 2),
+    fixed(r.levelDbfs, 2),
+    refDbfs === undefined ? '' : fixed(r.levelDbfs - refDbfs, 2),
+    fixed(r.aboveFloorDb, 1) + (r.atFloor ? ' (at floor)' : ''),
+  ];
+}
+
+const HEAD = ['component', 'Hz', 'dBFS', 'dBc', 'above floor dB'];
+
+/** `orthotone measure` entry point. */
+export async function run(argv: string[]): Promise<number> {
+  const { values: v, positionals } = parseCommand(argv, OPTIONS, true);
+  if (v.help) {
+    process.stdout.write(HELP);
+    return 0;
+  }
+  if (positionals.length !== 1)
+    throw new UsageError('measure needs one WAV file: orthotone measure FILE.wav --tone HZ --iq');
+  const format = (v.format ?? 'table') as string;
+  if (format !== 'table' && format !== 'json')
+    throw new UsageError(`--format ${JSON.stringify(format)} must be table or json`);
+  const modes = ['tone', 'two-tone', 'tones'].filter((k) => v[k] !== undefined);
+  if (modes.length !== 1)
+    throw new UsageError('give exactly one of --tone HZ, --two-tone HZ,HZ or --tones HZ,...');
+  if (v.iq && v.offset !== undefined)
+    throw new UsageError('--iq and --offset exclude each other: an I/Q file has no audio offset');
+  const wav = readWav(positionals[0]!);
+  const fs = wav.sampleRate;
+  const opts = {
+    window: v.window as WindowName | undefined,
+    resolutionHz: numberOpt('resolution', v.resolution),
+  };
+  const sideband = (v.sideband ?? 'upper') as 'upper' | 'lower';
+  const rxSideband = (v['receiver-sideband'] ?? 'upper') as 'upper' | 'lower';
+  let i: Float64Array;
+  let q: Float64Array | null = null;
+  if (v.iq) {
+    if (wav.channels.length < 2)
+      throw new UsageError(`--iq needs a stereo file (I left, Q right); ${positionals[0]} has 1 channel`);
+    i = wav.channels[0]!;
+    q = wav.channels[1]!;
+  } else {
+    const ch = numberOpt('channel', v.channel ?? '0')!;
+    if (!Number.isInteger(ch) || ch < 0 || ch >= wav.channels.length) {
+      throw new UsageError(
+        `--channel ${ch} does not exist: the file has ${wav.channels.length} channel(s), numbered from 0`,
+      );
+    }
+    i = wav.channels[ch]!;
+  }
+  const offset = numberOpt('offset', v.offset);
+  let text = '';
+  let json: unknown;
+  if (v.tone !== undefined) {
+    const toneHz = numberOpt('tone', v.tone)!;
+    if (!v.iq && offset === undefined) {
+      throw new UsageError('--tone needs --iq (I/Q capture) or --offset HZ (receiver audio, carrier at HZ)');
+    }
+    const r = measureSideband(i, q, fs, {
+      toneHz,
+      sideband,
+      offsetHz: offset,
+      receiverSideband: rxSideband,
+      ...opts,
+    });
+    json = {
+      file: positionals[0],
+      sampleRate: fs,
+      capture: v.iq ? 'iq' : 'audio',
+      ...r,
+    };
+    const ref = r.wanted.levelDbfs;
+    text =
+      formatTable([
+        HEAD,
+        toneRow('wanted', r.wanted, ref),
+        toneRow('unwanted', r.unwanted, ref),
+        toneRow('carrier', r.carrier, ref),
+      ]) +
+      '\n' +
+      formatPairs([
+        ['opposite-sideband suppression', `${fixed(r.sidebandSuppressionDb, 2)} dB`],
+        ['carrier suppression', `${fixed(r.carrierSuppressionDb, 2)} dB`],
+        ['floor near the wanted tone', `${fixed(r.floorDbc, 1)} dBc per bin`],
+        [
+          'largest suppression readable',
+          `${fixed(r.sidebandMeasurableDb, 1)} dB (sideband), ${fixed(r.carrierMeasurableDb, 1)} dB (carrier)`,
+        ],
+        ['frequency error', `${fixed(r.frequencyErrorHz, 3)} Hz`],
+      ]);
+  } else if (v['two-tone'] !== undefined) {
+    const [a, b] = numberListOpt('two-tone', v['two-tone'], ',', 2) as [number, number];
+    const place = (f: number): number => {
+      if (v.iq) return sideband === 'upper' ? f : -f;
+      if (offset !== undefined) {
+        const d = sideband === 'upper' ? f : -f;
+        return rxSideband === 'upper' ? offset + d : offset - d;
+      }
+      return f;
+    };
+    const capture = q ? { i, q } : i;
+    const r = measureTwoTone(capture, fs, [place(a), place(b)], opts);
+    json = { file: positionals[0], sampleRate: fs, capture: v.iq ? 'iq' : 'audio', ...r };
+    const ref = r.toneDbfs;
+    text =
+      formatTable([
+        [...HEAD, 'dB re PEP'],
+        [...toneRow('tone 1', r.tones[0], ref), fixed(r.tones[0].levelDbfs - r.pepDbfs, 2)],
+        [...toneRow('tone 2', r.tones[1], ref), fixed(r.tones[1].levelDbfs - r.pepDbfs, 2)],
+        ...r.products.map((p) => [...toneRow(`IM${p.order} ${p.side}`, p.reading, ref), fixed(p.dbPep, 2)]),
+      ]) +
+      '\n' +
+      formatPairs([
+        ['PEP', `${fixed(r.pepDbfs, 2)} dBFS`],
+        ['3rd order, worst', `${fixed(r.imd3Dbc, 2)} dBc (one tone), ${fixed(r.imd3DbPep, 2)} dB re PEP`],
+        ['5th order, worst', `${fixed(r.imd5Dbc, 2)} dBc (one tone), ${fixed(r.imd5DbPep, 2)} dB re PEP`],
+        ['tone imbalance', `${fixed(r.toneImbalanceDb, 2)} dB`],
+      ]);
+  } else {
+    const freqs = numberListOpt('tones', v.tones, ',')!;
+    const capture = q ? { i, q } : i;
+    const r = measureTones(capture, fs, freqs, opts);
+    json = { file: positionals[0], sampleRate: fs, capture: q ? 'iq' : 'audio', tones: r };
+    text = formatTable([HEAD, ...r.map((t) => toneRow(`${t.nominalHz} Hz`, t))]);
+  }
+  const out =
+    format === 'json'
+      ? `${JSON.stringify(json, (_k, x) => (typeof x === 'number' ? round(x, 6) : x), 2)}\n`
+      : `${text}\n${cautionsText()}\n`;
+  if (v.out !== undefined) writeFileSync(v.out as string, out);
+  else process.stdout.write(out);
+  return 0;
+}

@@ -208,7 +208,8 @@ function worstPhaseError(
   branches: { i: AllpassBranch; q: AllpassBranch },
   fs: number,
   band: readonly [number, number],
-): { eps: number; atHz: number } {
+  stopAbove?: number,
+): { eps: number; atHz: number; refined: boolean } {
   const prep = (b: AllpassBranch) => ({
     d: b.delay,
     r: b.sections.map((s) => (1 - s.a) / (1 + s.a)),
@@ -236,8 +237,12 @@ function worstPhaseError(
     (f) => Math.log(Math.tan((Math.PI * f) / fs)),
     (x) => (Math.atan(Math.exp(x)) * fs) / Math.PI,
   );
-  const best = maximizeOnGrid(err, grid, { refine: sections + 4, iterations: 36 });
-  return { eps: best.value, atHz: best.at };
+  const best = maximizeOnGrid(err, grid, {
+    refine: sections + 4,
+    iterations: 36,
+    ...(stopAbove === undefined ? {} : { stopAbove }),
+  });
+  return { eps: best.value, atHz: best.at, refined: best.refined };
 }
 
 function validatePairSpec(spec: AllpassPairSpec): {
@@ -287,18 +292,21 @@ export function designAllpassPair(spec: AllpassPairSpec): AllpassPairDesign {
 
   const build = (size: number): Built =>
     form === 'first-order' ? buildFirstOrder(size, fs, designBand) : buildSecondOrder(size, fs, designBand);
-  const cache = new Map<number, { built: Built; eps: number }>();
-  const evaluate = (size: number) => {
+  // Phase error that just meets the target; a size whose unrefined grid error already exceeds it fails.
+  const epsTarget = targetDb === undefined ? undefined : phaseErrorForSuppression(targetDb);
+  const cache = new Map<number, { built: Built; eps: number; refined: boolean }>();
+  const evaluate = (size: number, stopAbove?: number) => {
     let r = cache.get(size);
-    if (!r) {
-      const built = build(size);
-      r = { built, eps: worstPhaseError(built.branches, fs, band).eps };
+    if (!r || (!r.refined && stopAbove === undefined)) {
+      const built = r?.built ?? build(size);
+      const w = worstPhaseError(built.branches, fs, band, stopAbove);
+      r = { built, eps: w.eps, refined: w.refined };
       cache.set(size, r);
     }
     return r;
   };
   const meets = (size: number): boolean =>
-    targetDb === undefined || suppressionForPhaseError(evaluate(size).eps) >= targetDb;
+    epsTarget === undefined || evaluate(size, epsTarget).eps <= epsTarget;
 
   let size: number;
   if (sections !== undefined) {
@@ -353,8 +361,8 @@ export function designAllpassPair(spec: AllpassPairSpec): AllpassPairDesign {
     return undefined;
   }
 
-  const { built } = evaluate(size);
-  const worst = worstPhaseError(built.branches, fs, band);
+  const { built, eps } = evaluate(size);
+  const worst = { eps };
   return {
     branches: built.branches,
     form,

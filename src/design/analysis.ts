@@ -167,14 +167,15 @@ function gainOf(buf: Float64Array): number {
 
 /**
  * Finds the maximum of `fn` over a sorted grid, refining each of the largest grid maxima by
- * golden-section search between its neighbours. Returns the value and where it occurs.
+ * golden-section search between its neighbours. Returns the value and where it occurs; with
+ * `stopAbove`, returns the unrefined grid maximum (`refined: false`) as soon as it exceeds that.
  * @internal shared with the all-pass designer.
  */
 export function maximizeOnGrid(
   fn: (x: number) => number,
   grid: Float64Array,
-  opts: { refine?: number; iterations?: number } = {},
-): { value: number; at: number } {
+  opts: { refine?: number; iterations?: number; stopAbove?: number } = {},
+): { value: number; at: number; refined: boolean } {
   const refine = opts.refine ?? 24;
   const iterations = opts.iterations ?? 40;
   const n = grid.length;
@@ -187,8 +188,10 @@ export function maximizeOnGrid(
     if (v[k]! >= left && v[k]! >= right) peaks.push(k);
   }
   peaks.sort((x, y) => v[y]! - v[x]!);
-  let best = { value: Number.NEGATIVE_INFINITY, at: grid[0]! };
-  for (let k = 0; k < n; k++) if (v[k]! > best.value) best = { value: v[k]!, at: grid[k]! };
+  let best = { value: Number.NEGATIVE_INFINITY, at: grid[0]!, refined: true };
+  for (let k = 0; k < n; k++) if (v[k]! > best.value) best = { value: v[k]!, at: grid[k]!, refined: true };
+  // A grid value above `stopAbove` already settles a yes/no question: skip the refinement.
+  if (opts.stopAbove !== undefined && best.value > opts.stopAbove) return { ...best, refined: false };
   const invPhi = (Math.sqrt(5) - 1) / 2;
   for (const k of peaks.slice(0, refine)) {
     let a = grid[Math.max(0, k - 1)]!;
@@ -212,8 +215,8 @@ export function maximizeOnGrid(
         f1 = fn(x1);
       }
     }
-    if (f1 > best.value) best = { value: f1, at: x1 };
-    if (f2 > best.value) best = { value: f2, at: x2 };
+    if (f1 > best.value) best = { value: f1, at: x1, refined: true };
+    if (f2 > best.value) best = { value: f2, at: x2, refined: true };
   }
   return best;
 }

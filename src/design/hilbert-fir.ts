@@ -242,7 +242,7 @@ export function evaluateHilbertFir(
     let d = a + g * (b - a);
     let fc = fn(c);
     let fd = fn(d);
-    for (let it = 0; it < 24; it++) {
+    for (let it = 0; it < 14; it++) {
       if (fc > fd) {
         b = d;
         d = c;

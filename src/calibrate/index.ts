@@ -4,6 +4,7 @@ export * from './combined.js';
 export * from './diagnosis.js';
 export * from './multitone.js';
 export * from './null-seeker.js';
+export * from './profile.js';
 export * from './quadratic-fit.js';
 export * from './run-null-seeker.js';
 export * from './sideband.js';

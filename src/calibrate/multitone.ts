@@ -14,8 +14,9 @@
  * Correction design: with trims zero, the corrected Q of a tone at ω has the phasor
  * `e^{jωD}·(−j·H_QQ(ω) + H_QI(ω))`, D = (L−1)/2, while the ideal correction is
  * `Q' = α(ω)·Q + β(ω)·I` with `α + jβ = G(ω)·e^{jφ(ω)}`. Taking `H_QQ = α·e^{−jωD}` and
- * `H_QI = β·e^{−jωD}` (symmetric taps, cosine series) and fitting each by least squares over the
- * band gives the pair. References: widely-linear frequency-selective I/Q correction, Anttila,
+ * `H_QI = β·e^{−jωD}` in the form `e^{−jωD}·(C(ω) − j·S(ω))` (cosine series from symmetric taps,
+ * sine series from antisymmetric ones) and fitting α and β by least squares over the band gives
+ * the pair: `α = C_QQ + S_QI`, `β = C_QI − S_QQ`. References: widely-linear frequency-selective I/Q correction, Anttila,
  * Valkama & Renfors, IEEE TCAS-II 55(4), Apr 2008; delay-based compensation of frequency-dependent
  * imbalance, Kiss & Prodanov, IEEE TCAS-I 51(6), 2004; least-squares FIR design on a frequency
  * grid, Parks & Burrus, Digital Filter Design (1987), ch. 3.
@@ -210,7 +211,7 @@ export function designCorrection(
     throw new OrthotoneError('INVALID_ARGUMENT', `band [${lo}, ${hi}] Hz must satisfy 0 < lo < hi < fs/2`);
   }
   const m = (taps - 1) / 2;
-  const grid = 96;
+  const grid = 128;
   const rows: number[][] = [];
   const ya: number[] = [];
   const yb: number[] = [];
@@ -218,7 +219,10 @@ export function designCorrection(
     // Log-spaced grid: the band spans a decade and errors matter equally per octave.
     const f = lo * (hi / lo) ** (i / (grid - 1));
     const w = (2 * Math.PI * f) / sampleRate;
-    rows.push(Array.from({ length: m + 1 }, (_, k) => Math.cos(k * w)));
+    const row: number[] = [];
+    for (let k = 0; k <= m; k++) row.push(Math.cos(k * w));
+    for (let k = 1; k <= m; k++) row.push(Math.sin(k * w));
+    rows.push(row);
     const e = evaluateImbalanceModel(model, f);
     const G = 10 ** (e.gainDb / 20);
     const ph = degToRad(e.phaseDeg);
@@ -226,16 +230,25 @@ export function designCorrection(
     yb.push(G * Math.sin(ph));
   }
   const ones = rows.map(() => 1);
-  // A light ridge keeps the cosine fit bounded where the band leaves the series free (near DC, fs/2).
-  const ca = weightedLeastSquares(rows, ya, ones, m + 1, 1e-9) ?? Float64Array.of(1);
-  const cb = weightedLeastSquares(rows, yb, ones, m + 1, 1e-9) ?? Float64Array.of(0);
+  const n = 2 * m + 1;
+  // α = A_c + B_s and β = B_c − A_s (cosine parts from symmetric taps, sine parts from
+  // antisymmetric taps); a light ridge keeps the series bounded outside the band.
+  const ca =
+    weightedLeastSquares(rows, ya, ones, n, 1e-10) ?? Float64Array.from({ length: n }, (_, k) => +(k === 0));
+  const cb = weightedLeastSquares(rows, yb, ones, n, 1e-10) ?? new Float64Array(n);
   const qFromQ = new Array<number>(taps).fill(0);
   const qFromI = new Array<number>(taps).fill(0);
-  qFromQ[m] = ca[0] ?? 1;
-  qFromI[m] = cb[0] ?? 0;
+  qFromQ[m] = ca[0]!;
+  qFromI[m] = cb[0]!;
   for (let k = 1; k <= m; k++) {
-    qFromQ[m + k] = qFromQ[m - k] = (ca[k] ?? 0) / 2;
-    qFromI[m + k] = qFromI[m - k] = (cb[k] ?? 0) / 2;
+    const aC = ca[k]!; // A_c
+    const bS = ca[m + k]!; // B_s
+    const bC = cb[k]!; // B_c
+    const aS = -cb[m + k]!; // A_s
+    qFromQ[m + k] = (aC + aS) / 2;
+    qFromQ[m - k] = (aC - aS) / 2;
+    qFromI[m + k] = (bC + bS) / 2;
+    qFromI[m - k] = (bC - bS) / 2;
   }
   return { qFromQ, qFromI };
 }

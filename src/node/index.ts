@@ -1,2 +1,4 @@
 /** Node-only entry: files, WAV, streams. */
 export * from '../index.js';
+export * from './iq-stream.js';
+export * from './wav.js';

@@ -313,7 +313,7 @@ export function designAllpassPair(spec: AllpassPairSpec): AllpassPairDesign {
     size = sections;
     if (!meets(size)) {
       const got = suppressionForPhaseError(evaluate(size).eps);
-      const need = findSize(targetDb!, maxSections, 256);
+      const need = findSize(targetDb!, size + 1, 256);
       throw new OrthotoneError(
         'UNREACHABLE_TARGET',
         `sections ${size} give ${got.toFixed(2)} dB worst suppression over [${band[0]}, ${band[1]}] Hz, below targetDb ${targetDb} dB: ` +

@@ -264,7 +264,9 @@ function validatePairSpec(spec: AllpassPairSpec): {
   const sections =
     spec.sections === undefined ? undefined : requireInteger('sections', spec.sections, 1, maxSections);
   const targetDb =
-    spec.targetDb === undefined ? undefined : requireRange('targetDb', spec.targetDb, 1, MAX_DESIGN_TARGET_DB, 'dB');
+    spec.targetDb === undefined
+      ? undefined
+      : requireRange('targetDb', spec.targetDb, 1, MAX_DESIGN_TARGET_DB, 'dB');
   return { fs, band, form, maxSections, sections, targetDb };
 }
 

@@ -109,6 +109,25 @@ export function frequencyBin(s: Pick<FramePlan, 'fftSize' | 'binHz' | 'complex'>
   return s.complex ? ((k % s.fftSize) + s.fftSize) % s.fftSize : k;
 }
 
+// Windows and FFT plans are costly to build (a cosine per sample, fft.js's twiddle table) and a
+// session reads many captures of one length: keep the last few, read-only.
+const windowCache = new Map<string, Float64Array>();
+const fftCache = new Map<number, ReturnType<typeof createFft>>();
+function remember<K, V>(m: Map<K, V>, k: K, make: () => V): V {
+  let v = m.get(k);
+  if (v === undefined) {
+    v = make();
+    if (m.size >= 8) m.delete(m.keys().next().value as K);
+    m.set(k, v);
+  }
+  return v;
+}
+
+/** The periodic window `name` of `length` samples, shared (do not modify). */
+export function sharedWindow(name: WindowName, length: number): Float64Array {
+  return remember(windowCache, `${name}:${length}`, () => createWindow(name, length));
+}
+
 function hopFor(n: number, overlap: number): number {
   return Math.max(1, Math.round(n * (1 - overlap)));
 }
@@ -180,7 +199,7 @@ export function planFrames(
   const fftSize = Math.max(4, nextPowerOfTwo(n));
   const hop = hopFor(n, overlap);
   const frames = Math.floor((length - n) / hop) + 1;
-  const w = createWindow(window, n);
+  const w = sharedWindow(window, n);
   let s1 = 0;
   let s2 = 0;
   for (let k = 0; k < n; k++) {
@@ -238,8 +257,8 @@ export function computeSpectrum(
   const complex = isIqCapture(capture);
   const plan = planFrames(length, sampleRate, complex, opts, minSpacingHz);
   const { frameLength: n, fftSize, hop, frames } = plan;
-  const w = createWindow(plan.window, n);
-  const fft = createFft(fftSize);
+  const w = sharedWindow(plan.window, n);
+  const fft = remember(fftCache, fftSize, () => createFft(fftSize));
   const frame = new Float64Array(complex ? 2 * fftSize : fftSize);
   const spec = new Float64Array(2 * fftSize);
   const bins = complex ? fftSize : fftSize / 2 + 1;

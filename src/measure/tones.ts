@@ -13,7 +13,7 @@
  */
 import { OrthotoneError } from '../core/errors.js';
 import { requireFinite, requireRange, requireSampleRate } from '../core/validate.js';
-import { createWindow, WINDOW_MAIN_LOBE_HALF_WIDTH_BINS } from '../core/windows.js';
+import { WINDOW_MAIN_LOBE_HALF_WIDTH_BINS } from '../core/windows.js';
 import { type Capture, isIqCapture } from './signal.js';
 import {
   binFrequency,
@@ -24,6 +24,7 @@ import {
   powerAt,
   type Spectrum,
   type SpectrumOptions,
+  sharedWindow,
 } from './spectrum.js';
 
 /** Options for tone readings (frame options plus how tones are sought). */
@@ -182,7 +183,7 @@ export function createToneReader(
   const features = [...featuresHz];
   const spacing = leastSpacingHz(features, sampleRate, complex);
   const spectrum = computeSpectrum(capture, sampleRate, opts, spacing);
-  const window = createWindow(spectrum.window, spectrum.frameLength);
+  const window = sharedWindow(spectrum.window, spectrum.frameLength);
   // One Float64 copy so the direct evaluations below run on a single array type.
   const f64 = (a: ArrayLike<number>): Float64Array => (a instanceof Float64Array ? a : Float64Array.from(a));
   const data: Capture = isIqCapture(capture) ? { i: f64(capture.i), q: f64(capture.q) } : f64(capture);

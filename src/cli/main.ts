@@ -12,6 +12,10 @@ interface Command {
 
 const COMMANDS: Record<string, Command> = {
   // Each command registers here: name → module.
+  calibrate: {
+    summary: 'null the unwanted sideband and the carrier from level readings (simulated, typed or scripted)',
+    load: () => import('./calibrate.js'),
+  },
   measure: {
     summary: 'read sideband, carrier, two-tone products or tone levels from a WAV capture',
     load: () => import('./measure.js'),

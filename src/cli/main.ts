@@ -12,6 +12,10 @@ interface Command {
 
 const COMMANDS: Record<string, Command> = {
   // Each command registers here: name → module.
+  start: {
+    summary: 'a first run: design, render a two-tone, calibrate a virtual exciter, write ./out',
+    load: () => import('./start.js'),
+  },
   calibrate: {
     summary: 'null the unwanted sideband and the carrier from level readings (simulated, typed or scripted)',
     load: () => import('./calibrate.js'),

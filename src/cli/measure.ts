@@ -1,19 +1,17 @@
 /**
  * `orthotone measure`: read tone levels, opposite-sideband and carrier suppression, or two-tone
  * products from a WAV capture (receiver audio, or I/Q with I left and Q right).
- *
- * WAV input: src/node/wav.ts (being written by another helper) had not landed when this command
- * was written, so the minimal reader below uses wavefile directly; switch to the shared reader
- * when it exists.
+ * WAV files are read with the shared reader in src/node/wav.ts.
  */
-import { readFileSync, writeFileSync } from 'node:fs';
-import * as wavefileNs from 'wavefile';
+import { writeFileSync } from 'node:fs';
 import { cautionsText } from '../core/cautions.js';
+import { isOrthotoneError } from '../core/errors.js';
 import type { WindowName } from '../core/windows.js';
 import { measureSideband } from '../measure/sideband.js';
 import type { ToneReading } from '../measure/tones.js';
 import { measureTones } from '../measure/tones.js';
 import { measureTwoTone } from '../measure/two-tone.js';
+import { readWavFile, type WavData, writeWavFile } from '../node/wav.js';
 import { numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
 import { fixed, formatPairs, formatTable } from './table.js';
 
@@ -53,56 +51,22 @@ const OPTIONS = {
   help: { type: 'boolean', short: 'h' },
 } as const;
 
-interface WaveFileLike {
-  fmt: { numChannels: number; sampleRate: number };
-  bitDepth: string;
-  getSamples(interleaved?: boolean, out?: unknown): Float64Array | Float64Array[];
-  fromScratch(ch: number, sr: number, depth: string, samples: ArrayLike<number>[] | ArrayLike<number>): void;
-  toBuffer(): Uint8Array;
-}
-type WaveFileCtor = new (buf?: Uint8Array) => WaveFileLike;
-const ns = wavefileNs as unknown as { WaveFile?: WaveFileCtor; default?: { WaveFile?: WaveFileCtor } };
-const WaveFile = (ns.WaveFile ?? ns.default?.WaveFile) as WaveFileCtor;
-
-/** A decoded WAV file: channels in full-scale units (−1…1). */
-export interface WavData {
-  sampleRate: number;
-  channels: Float64Array[];
-}
-
 /**
- * Reads a WAV file into full-scale channels (integer formats divided by 2^(bits−1); 8-bit
- * unsigned re-centred).
- * @throws {UsageError} when the file cannot be read or decoded.
+ * Reads a WAV file into full-scale channels through the shared reader (src/node/wav.ts).
+ * @throws {UsageError} when the file cannot be opened; OrthotoneError when it is not a WAV file.
  */
-export function readWav(path: string): WavData {
-  let wav: WaveFileLike;
+export async function readWav(path: string): Promise<WavData> {
   try {
-    wav = new WaveFile(readFileSync(path));
+    return await readWavFile(path);
   } catch (e) {
+    if (isOrthotoneError(e)) throw e;
     throw new UsageError(`cannot read WAV file ${path}: ${(e as Error).message}`);
   }
-  const raw = wav.getSamples(false, Float64Array);
-  const chans = (wav.fmt.numChannels === 1 ? [raw] : raw) as Float64Array[];
-  const depth = wav.bitDepth;
-  const bits = Number.parseInt(depth, 10);
-  const float = depth === '32f' || depth === '64';
-  const channels = chans.map((c) => {
-    if (float) return c;
-    const out = new Float64Array(c.length);
-    const scale = 2 ** (bits - 1);
-    const off = bits === 8 ? 128 : 0;
-    for (let k = 0; k < c.length; k++) out[k] = (c[k]! - off) / scale;
-    return out;
-  });
-  return { sampleRate: wav.fmt.sampleRate, channels };
 }
 
-/** Writes channels as a 32-bit float WAV file. */
-export function writeWav(path: string, sampleRate: number, channels: ArrayLike<number>[]): void {
-  const wav = new WaveFile();
-  wav.fromScratch(channels.length, sampleRate, '32f', channels.length === 1 ? channels[0]! : channels);
-  writeFileSync(path, wav.toBuffer());
+/** Writes channels as a 32-bit float WAV file through the shared writer. */
+export async function writeWav(path: string, sampleRate: number, channels: Float32Array[]): Promise<void> {
+  await writeWavFile(path, channels, sampleRate, 'float32');
 }
 
 const round = (x: number, d: number): number => (Number.isFinite(x) ? Number(x.toFixed(d)) : x);
@@ -136,7 +100,7 @@ export async function run(argv: string[]): Promise<number> {
     throw new UsageError('give exactly one of --tone HZ, --two-tone HZ,HZ or --tones HZ,...');
   if (v.iq && v.offset !== undefined)
     throw new UsageError('--iq and --offset exclude each other: an I/Q file has no audio offset');
-  const wav = readWav(positionals[0]!);
+  const wav = await readWav(positionals[0]!);
   const fs = wav.sampleRate;
   const opts = {
     window: v.window as WindowName | undefined,
@@ -144,8 +108,8 @@ export async function run(argv: string[]): Promise<number> {
   };
   const sideband = (v.sideband ?? 'upper') as 'upper' | 'lower';
   const rxSideband = (v['receiver-sideband'] ?? 'upper') as 'upper' | 'lower';
-  let i: Float64Array;
-  let q: Float64Array | null = null;
+  let i: Float32Array;
+  let q: Float32Array | null = null;
   if (v.iq) {
     if (wav.channels.length < 2)
       throw new UsageError(`--iq needs a stereo file (I left, Q right); ${positionals[0]} has 1 channel`);

@@ -65,7 +65,7 @@ export async function run(argv: string[]): Promise<number> {
   const floorDbc = numberOpt('floor', v.floor ?? '-130')!;
   const harmonic = numberOpt('harmonic', v.harmonic ?? '1')!;
   const offset = numberOpt('offset', v.offset);
-  const wav = readWav(positionals[0]!);
+  const wav = await readWav(positionals[0]!);
   if (wav.channels.length < 2)
     throw new UsageError(`${positionals[0]} has 1 channel: simulate needs I/Q (I left, Q right)`);
   const fs = wav.sampleRate;
@@ -75,8 +75,8 @@ export async function run(argv: string[]): Promise<number> {
   const model = drawDevice(preset, deviceSeed);
   const ex = createVirtualExciter(model, { sampleRate: fs, seed, floorDbc, harmonic });
   const n = wav.channels[0]!.length;
-  const i = Float32Array.from(wav.channels[0]!);
-  const q = Float32Array.from(wav.channels[1]!);
+  const i = wav.channels[0]!;
+  const q = wav.channels[1]!;
   const re = new Float32Array(n);
   const im = new Float32Array(n);
   const block = 4096;
@@ -89,9 +89,9 @@ export async function run(argv: string[]): Promise<number> {
     const audio = new Float32Array(n);
     const w = (2 * Math.PI * offset) / fs;
     for (let k = 0; k < n; k++) audio[k] = re[k]! * Math.cos(w * k) - im[k]! * Math.sin(w * k);
-    writeWav(v.out as string, fs, [audio]);
+    await writeWav(v.out as string, fs, [audio]);
   } else {
-    writeWav(v.out as string, fs, [re, im]);
+    await writeWav(v.out as string, fs, [re, im]);
   }
   const freqs = [300, 700, 1000, 1800, 1900, 3000].filter((f) => f < 0.45 * fs);
   const pred = predictedSuppression(model, freqs);

@@ -1,0 +1,142 @@
+// Runs the built CLI (npm test builds first) as a user would.
+import { spawn, spawnSync } from 'node:child_process';
+import { mkdtempSync, readFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { validateProfile } from '../../src/calibrate/profile.js';
+import { TRANSMIT_CAUTIONS } from '../../src/core/cautions.js';
+import { createRng } from '../../src/core/rng.js';
+import { drawAnalyticDevice, trueCarrierDbc, trueSidebandDbc } from '../calibrate/analytic-exciter.js';
+
+const cli = (args: string[]) => spawnSync('node', ['dist/cli.js', ...args], { encoding: 'utf8' });
+
+describe('orthotone calibrate --simulate', () => {
+  it('nulls both on the virtual hand-built exciter within budget and writes a valid profile and header', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'ot-cal-'));
+    const r = cli([
+      'calibrate',
+      '--simulate',
+      '--seed',
+      '3',
+      '--format',
+      'json',
+      '--profile',
+      join(dir, 'p.json'),
+      '--header',
+      join(dir, 'p.h'),
+    ]);
+    expect(r.status).toBe(0);
+    const out = JSON.parse(r.stdout);
+    for (const run of out.runs) {
+      expect(run.readings).toBeLessThanOrEqual(16);
+      expect(run.trueStartDb).toBeLessThan(46);
+      expect(run.trueEndDb).toBeGreaterThan(65);
+    }
+    const p = validateProfile(JSON.parse(readFileSync(join(dir, 'p.json'), 'utf8')));
+    expect(p.trims).toEqual(out.trims);
+    expect(p.results.source).toBe('simulated');
+    expect(readFileSync(join(dir, 'p.h'), 'utf8')).toMatch(/#define OT_CAL_GAIN_DB/);
+  });
+  it('prints the convergence table, the result and the cautions', () => {
+    const r = cli(['calibrate', '--simulate', '--what', 'sideband', '--tolerance', 'resistorPct=1']);
+    expect(r.status).toBe(0);
+    expect(r.stdout).toMatch(/== sideband null: gain and phase trims ==/);
+    expect(r.stdout).toMatch(/#\s+role\s+setting\s+read dB/);
+    expect(r.stdout).toMatch(/true end dB/);
+    for (const c of TRANSMIT_CAUTIONS) expect(r.stdout).toContain(c);
+  });
+  it('reports DC that cannot reach the output (ac-coupled preset) as TRIM_INACTIVE', () => {
+    const r = cli([
+      'calibrate',
+      '--simulate',
+      '--what',
+      'carrier',
+      '--preset',
+      'ac-coupled',
+      '--max-readings',
+      '20',
+    ]);
+    expect(r.status).toBe(0);
+    expect(r.stdout).toMatch(/note \[TRIM_INACTIVE\]: dcI does not move the carrier reading/);
+    expect(r.stdout).toMatch(/stop: trim-inactive/);
+  });
+  it('refuses a missing or doubled mode with a usage error', () => {
+    expect(cli(['calibrate']).status).toBe(2);
+    const r = cli(['calibrate', '--simulate', '--prompt']);
+    expect(r.status).toBe(2);
+    expect(r.stderr).toMatch(/exactly one of --simulate, --prompt or --measure-command/);
+  });
+});
+
+describe('orthotone calibrate --measure-command', () => {
+  it('reads levels printed by a command given the trims in the environment', () => {
+    // The command computes the exact IRR formula (Schmidt, QEX 1994) for a fixed imperfect path.
+    const cmd =
+      'node -e "const g=1.012*10**(+process.env.OT_GAIN_DB/20),p=0.021+process.env.OT_PHASE_DEG*Math.PI/180;const c=2*g*Math.cos(p);console.log((-10*Math.log10((1+c+g*g)/(1-c+g*g))).toFixed(3))"';
+    const r = cli([
+      'calibrate',
+      '--measure-command',
+      cmd,
+      '--what',
+      'sideband',
+      '--format',
+      'json',
+      '--noise',
+      '0.1',
+    ]);
+    expect(r.status).toBe(0);
+    const out = JSON.parse(r.stdout);
+    const g = 1.012 * 10 ** (out.trims.gainDb / 20);
+    const p = 0.021 + (out.trims.phaseDeg * Math.PI) / 180;
+    // Readings are noiseless here and unbounded below: the null is found to better than 80 dB.
+    expect(
+      10 * Math.log10((1 + 2 * g * Math.cos(p) + g * g) / (1 - 2 * g * Math.cos(p) + g * g)),
+    ).toBeGreaterThan(80);
+  });
+});
+
+describe('orthotone calibrate --prompt', () => {
+  it('asks for each reading, accepts retry and undo, and finishes with the null', async () => {
+    const dev = drawAnalyticDevice(createRng(77));
+    const rng = createRng(78);
+    const child = spawn('node', ['dist/cli.js', 'calibrate', '--prompt', '--max-readings', '14']);
+    let buf = '';
+    let all = '';
+    let answered = 0;
+    let lastSetting = '';
+    const done = new Promise<number>((resolve) => child.on('close', (code) => resolve(code ?? -1)));
+    child.stdout.on('data', (d: Buffer) => {
+      buf += d.toString();
+      all += d.toString();
+      for (;;) {
+        const k = buf.indexOf('(retry | undo | quit): ');
+        if (k < 0) break;
+        const chunk = buf.slice(0, k);
+        buf = buf.slice(k + 1);
+        const m =
+          /set (gain ([-+\d.]+) dB, phase ([-+\d.]+)°|dcI ([-+\d.]+), dcQ ([-+\d.]+))\s*\n[^\n]*$/.exec(
+            chunk,
+          );
+        if (!m) continue;
+        answered++;
+        lastSetting = m[0];
+        let level: number;
+        if (m[2] !== undefined) level = trueSidebandDbc(dev, { gainDb: +m[2], phaseDeg: +m[3]! });
+        else level = trueCarrierDbc(dev, { dcI: +m[4]!, dcQ: +m[5]! });
+        level = 10 * Math.log10(10 ** (level / 10) + 1e-7) + 0.3 * rng.normal();
+        if (answered === 3) child.stdin.write('retry\n');
+        else if (answered === 5) child.stdin.write('-10\n');
+        else if (answered === 6) child.stdin.write('undo\n');
+        else child.stdin.write(`${level.toFixed(2)}\n`);
+      }
+    });
+    const code = await done;
+    expect(code).toBe(0);
+    expect(answered).toBeGreaterThan(10);
+    expect(lastSetting).toMatch(/set /);
+    expect(all).toMatch(/dropped reading 4/);
+    expect(all).toMatch(/result \(levels as read/);
+    expect(all).toMatch(/stop: (floor|budget|target)/);
+  });
+});

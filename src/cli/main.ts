@@ -36,6 +36,10 @@ const COMMANDS: Record<string, Command> = {
     summary: 'evaluate a network file: phase/gain error, suppression, group delay, cost',
     load: () => import('./analyze.js'),
   },
+  render: {
+    summary: 'run a test signal or recording through a network and trims into an I/Q WAV',
+    load: () => import('./render.js'),
+  },
 };
 
 function usage(): string {

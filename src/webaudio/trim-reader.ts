@@ -14,16 +14,17 @@ import type { CaptureNode, CaptureResult } from './capture-node.js';
 import type { QuadratureNode } from './node.js';
 
 /** Options of {@link createTrimReader}. */
-export interface TrimReaderOptions {
+export interface TrimReaderOptions<T = number> {
   /** The generator whose trims are set (only `setTrims` and `sampleRate` are used). */
   node: Pick<QuadratureNode, 'setTrims' | 'sampleRate'>;
   /** Where the answer comes back: a capture node fed by the receiver audio (or by the I/Q). */
   capture: Pick<CaptureNode, 'capture'>;
   /**
-   * Turns one capture into the level to minimise, in dB (e.g. the unwanted sideband in dBc via
-   * measureTones or measureSideband). May throw: the reading then fails with MEASUREMENT_FAILED.
+   * Turns one capture into the reading: a level in dB (e.g. the unwanted sideband in dBc via
+   * measureSideband), or an object of levels (e.g. `{ sidebandDb, carrierDb }` for
+   * calibrateSidebandAndCarrier). May throw: the reading then fails with MEASUREMENT_FAILED.
    */
-  read: (capture: CaptureResult, sampleRate: number) => number;
+  read: (capture: CaptureResult, sampleRate: number) => T;
   /** Ramp applied to trim changes, seconds. */
   rampSeconds: number;
   /** Wait after the trims are set, before capturing, seconds (must cover the ramp and path latency). */
@@ -34,10 +35,10 @@ export interface TrimReaderOptions {
   signal: AbortSignal | undefined;
 }
 
-const DEFAULTS: Readonly<TrimReaderOptions> = Object.freeze({
+const DEFAULTS: Readonly<TrimReaderOptions<unknown>> = Object.freeze({
   node: undefined as unknown as TrimReaderOptions['node'],
   capture: undefined as unknown as TrimReaderOptions['capture'],
-  read: undefined as unknown as TrimReaderOptions['read'],
+  read: undefined as unknown as TrimReaderOptions<unknown>['read'],
   rampSeconds: 0.01,
   settleSeconds: 0.06,
   captureSeconds: 0.1,
@@ -49,13 +50,13 @@ const DEFAULTS: Readonly<TrimReaderOptions> = Object.freeze({
  * reads the live path. Readings are serialised: one at a time, in call order.
  * @throws {OrthotoneError} INVALID_ARGUMENT when a required part is missing, when settleSeconds is
  *   shorter than rampSeconds, or a duration is out of range (0…10 s; capture 1 ms…10 s).
- * @returns the measure callback; its promise rejects with ABORTED when `signal` fires and with
+ * @returns the measure callback (resolving to what `read` returns); its promise rejects with ABORTED when `signal` fires and with
  *   MEASUREMENT_FAILED when `read` throws or returns a non-finite level.
  */
-export function createTrimReader(
-  options: Partial<TrimReaderOptions> & Pick<TrimReaderOptions, 'node' | 'capture' | 'read'>,
-): (trims: Partial<Trims>) => Promise<number> {
-  const o = withDefaults(DEFAULTS, options);
+export function createTrimReader<T = number>(
+  options: Partial<TrimReaderOptions<T>> & Pick<TrimReaderOptions<T>, 'node' | 'capture' | 'read'>,
+): (trims: Partial<Trims>) => Promise<T> {
+  const o = withDefaults(DEFAULTS as Readonly<TrimReaderOptions<T>>, options);
   if (!o.node || typeof o.node.setTrims !== 'function') {
     throw new OrthotoneError('INVALID_ARGUMENT', 'node must be a quadrature node (createQuadratureNode)');
   }
@@ -83,11 +84,11 @@ export function createTrimReader(
   const skipFrames = Math.round(o.settleSeconds * fs);
   let chain: Promise<unknown> = Promise.resolve();
 
-  const one = async (trims: Partial<Trims>): Promise<number> => {
+  const one = async (trims: Partial<Trims>): Promise<T> => {
     if (o.signal?.aborted) throw new OrthotoneError('ABORTED', 'the reading was aborted');
     o.node.setTrims(trims, { rampSeconds: o.rampSeconds });
     const cap = await abortable(o.capture.capture(frames, { skipFrames }), o.signal);
-    let level: number;
+    let level: T;
     try {
       level = o.read(cap, fs);
     } catch (e) {
@@ -97,10 +98,11 @@ export function createTrimReader(
         e,
       );
     }
-    if (!Number.isFinite(level)) {
+    const bad = nonFinite(level);
+    if (bad !== null) {
       throw new OrthotoneError(
         'MEASUREMENT_FAILED',
-        `the reading gave ${level} dB, not a finite level`,
+        `the reading gave ${bad}, not a finite level in dB`,
         level,
       );
     }
@@ -112,6 +114,18 @@ export function createTrimReader(
     chain = p.catch(() => undefined);
     return p;
   };
+}
+
+/** Describes the first non-finite level in a reading (a number or an object of numbers), or null. */
+function nonFinite(r: unknown): string | null {
+  if (typeof r === 'number') return Number.isFinite(r) ? null : String(r);
+  if (r && typeof r === 'object') {
+    for (const [k, v] of Object.entries(r)) {
+      if (typeof v === 'number' && !Number.isFinite(v)) return `${k} = ${v}`;
+    }
+    return null;
+  }
+  return String(r);
 }
 
 function abortable<T>(p: Promise<T>, signal: AbortSignal | undefined): Promise<T> {

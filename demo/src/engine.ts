@@ -1,0 +1,127 @@
+/**
+ * The page's audio engine: one AudioContext at the network's sample rate, the orthotone generator
+ * node (left I, right Q) feeding the sound card through an output switch, and a capture node on the
+ * generator's output for the monitor and the in-page virtual exciter. The processor module is the
+ * library's own worklet (src/webaudio/processor.ts), bundled by Vite as a separate module.
+ */
+import type { Network } from '../../src/design/network.js';
+import { type CaptureNode, createCaptureNode } from '../../src/webaudio/capture-node.js';
+import type { SourceSpec } from '../../src/webaudio/messages.js';
+import { createQuadratureNode, type QuadratureNode } from '../../src/webaudio/node.js';
+import workletUrl from '../../src/webaudio/processor.ts?worker&url';
+
+export { workletUrl };
+
+export interface Running {
+  ctx: AudioContext;
+  node: QuadratureNode;
+  /** Records the generator's I/Q (2 channels). */
+  iq: CaptureNode;
+  /** Gain between the generator and the sound card: 1 = output on, 0 = off. */
+  out: GainNode;
+}
+
+type Listener = (r: Running | null) => void;
+
+/** Holds the running audio graph and the settings it was made with. */
+export class Engine {
+  running: Running | null = null;
+  source: SourceSpec = { kind: 'tone', frequencyHz: 1800 };
+  levelDb = -10;
+  sideband: 'upper' | 'lower' = 'upper';
+  outputOn = true;
+  private mic: MediaStreamAudioSourceNode | null = null;
+  private listeners: Listener[] = [];
+
+  constructor(public network: Network) {}
+
+  onChange(f: Listener): void {
+    this.listeners.push(f);
+  }
+
+  private emit(): void {
+    for (const f of this.listeners) f(this.running);
+  }
+
+  /** Starts audio (call from a user action: browsers start audio only after one). */
+  async start(): Promise<Running> {
+    if (this.running) return this.running;
+    const ctx = new AudioContext({ sampleRate: this.network.sampleRate, latencyHint: 'interactive' });
+    await ctx.resume();
+    const node = await createQuadratureNode(ctx, this.network, {
+      moduleUrl: workletUrl,
+      source: this.source.kind === 'input' ? { kind: 'silence' } : this.source,
+      levelDb: this.levelDb,
+      sideband: this.sideband,
+    });
+    const iq = await createCaptureNode(ctx, { moduleUrl: workletUrl, channels: 2 });
+    const out = new GainNode(ctx, { gain: this.outputOn ? 1 : 0 });
+    const sink = new GainNode(ctx, { gain: 0 });
+    node.node.connect(out as never);
+    out.connect(ctx.destination);
+    node.node.connect(iq.node as never);
+    // Keeps the capture node in the rendered graph without sending its pass-through anywhere audible.
+    (iq.node as unknown as AudioNode).connect(sink);
+    sink.connect(ctx.destination);
+    node.onfault = (f) => console.warn(`generator fault ${f.faults}: ${f.message}`);
+    this.running = { ctx, node, iq, out };
+    if (this.source.kind === 'input') await this.setSource(this.source);
+    this.emit();
+    return this.running;
+  }
+
+  async stop(): Promise<void> {
+    const r = this.running;
+    if (!r) return;
+    this.running = null;
+    for (const t of this.mic?.mediaStream.getTracks() ?? []) t.stop();
+    this.mic = null;
+    r.node.dispose();
+    r.iq.dispose();
+    await r.ctx.close();
+    this.emit();
+  }
+
+  /** Uses `net`; a different sample rate restarts the audio context. */
+  async setNetwork(net: Network): Promise<void> {
+    const rateChanged = net.sampleRate !== this.network.sampleRate;
+    this.network = net;
+    if (!this.running) return;
+    if (rateChanged) {
+      await this.stop();
+      await this.start();
+    } else await this.running.node.setNetwork(net);
+  }
+
+  async setSource(s: SourceSpec): Promise<void> {
+    this.source = s;
+    const r = this.running;
+    if (!r) return;
+    if (s.kind === 'input') {
+      if (!this.mic) {
+        const stream = await navigator.mediaDevices.getUserMedia({
+          audio: { echoCancellation: false, noiseSuppression: false, autoGainControl: false },
+        });
+        this.mic = new MediaStreamAudioSourceNode(r.ctx, { mediaStream: stream });
+        this.mic.connect(r.node.node as unknown as AudioNode);
+      }
+    }
+    await r.node.setSource(s);
+  }
+
+  setLevel(db: number): void {
+    this.levelDb = db;
+    this.running?.node.setLevel(db);
+  }
+
+  async setSideband(sb: 'upper' | 'lower'): Promise<void> {
+    this.sideband = sb;
+    await this.running?.node.setSideband(sb);
+  }
+
+  setOutput(on: boolean): void {
+    this.outputOn = on;
+    const r = this.running;
+    if (r) r.out.gain.setTargetAtTime(on ? 1 : 0, r.ctx.currentTime, 0.01);
+  }
+}

@@ -386,3 +386,36 @@ describe('bad input and robustness', () => {
     }
   });
 });
+
+describe('networks from designNetwork (the project designer)', () => {
+  const specs = [
+    { sampleRate: 48000, band: [300, 3000], method: 'allpass', targetDb: 50, allpassForm: 'first-order' },
+    { sampleRate: 48000, band: [300, 3000], method: 'allpass', targetDb: 50, allpassForm: 'second-order' },
+    { sampleRate: 8000, band: [300, 3700], method: 'fir', targetDb: 50 },
+  ] as const;
+  for (const spec of specs) {
+    it(`${spec.method} ${'allpassForm' in spec ? spec.allpassForm : ''}: tone phase difference within the document's prediction`, async () => {
+      const { designNetwork } = await import('../../src/design/design-network.js');
+      const net = designNetwork({ ...spec, band: [...spec.band] as [number, number] });
+      const fs = net.sampleRate;
+      const n = 8000;
+      const settle = 30000;
+      const gen = createQuadratureGenerator(net);
+      for (const f0 of [400, 1000, 2900]) {
+        const f = (Math.round((f0 * n) / fs) * fs) / n;
+        gen.reset();
+        const { i, q } = run(gen, tone(settle + n, f, fs, 0.5));
+        const w = dftBinIq(i, q, settle, n, f, fs);
+        const u = dftBinIq(i, q, settle, n, -f, fs);
+        const read = 20 * Math.log10(Math.hypot(w.re, w.im) / Math.hypot(u.re, u.im));
+        expect(read).toBeGreaterThanOrEqual(net.predicted.worstSuppressionDb - 0.1);
+        const r = evaluateBranches(net, f);
+        const xi = dftBin(i, settle, n, f, fs);
+        const xq = dftBin(q, settle, n, f, fs);
+        const errDeg = deg(Math.atan2(xi.im, xi.re) - Math.atan2(xq.im, xq.re)) - 90;
+        const wrapped = ((((errDeg + 180) % 360) + 360) % 360) - 180;
+        expect(wrapped).toBeCloseTo(phaseErrorDegFromResponse(r), 3);
+      }
+    });
+  }
+});

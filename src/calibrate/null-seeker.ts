@@ -133,7 +133,10 @@ export interface SeekerEstimate {
 /** The best setting so far. */
 export interface SeekerBest {
   point: [number, number];
-  /** Level there: the fit's prediction when `source` is `fit`, else the reading, dB. */
+  /**
+   * Level there, dB: when `source` is `fit`, the fitted level (floor included) plus the excess the
+   * null's remaining uncertainty is expected to add; else the reading.
+   */
   levelDb: number;
   /** `fit`: the fitted null (trusted); `reading`: the lowest reading. */
   source: 'fit' | 'reading';
@@ -399,7 +402,9 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
     if (trusted()) {
       const e = estimate()!;
       const p: [number, number] = [clampAxis(0, e.centre[0]), clampAxis(1, e.centre[1])];
-      return { point: p, levelDb: surfaceDb(e.surface, p[0], p[1]), source: 'fit' };
+      // The fitted level there plus what the null's remaining uncertainty is expected to add.
+      const levelDb = 10 * Math.log10(dbToPow(surfaceDb(e.surface, p[0], p[1])) + dbToPow(e.expectedTrueDb));
+      return { point: p, levelDb, source: 'fit' };
     }
     // The lowest reading, but only if it beats the start by more than the noise: otherwise the
     // start is kept (a lucky reading is no reason to move).

@@ -137,8 +137,8 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
     series: [
       { label: 'sideband read', color: '#c8452b', points: true },
       { label: 'carrier read', color: '#6b4fbb', points: true },
-      { label: 'sideband best', color: '#c8452b', dash: [5, 4] },
-      { label: 'carrier best', color: '#6b4fbb', dash: [5, 4] },
+      { label: 'sideband lowest so far', color: '#c8452b', dash: [5, 4] },
+      { label: 'carrier lowest so far', color: '#6b4fbb', dash: [5, 4] },
     ],
   });
 

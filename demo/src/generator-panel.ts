@@ -104,11 +104,7 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
           h('legend', {}, 'Source'),
           field('Signal', kind),
           h('div', { class: 'row' }, field('Tone, Hz', f1), field('Second tone, Hz', f2)),
-          field(
-            'Level',
-            h('div', { class: 'trim' }, h('span'), level, levelOut),
-            'peak dBFS (two tones: PEP)',
-          ),
+          field('Level', h('div', { class: 'level' }, level, levelOut), 'peak dBFS (two tones: PEP)'),
           field('Sideband', sideband),
         ),
         status,

@@ -21,6 +21,8 @@ beforeAll(async () => {
   vite = v.server;
   base = v.url;
   browser = await launchChromium();
+  // Tall enough that each panel fits above the fixed cautions bar in one viewport screenshot.
+  await browser.page.setViewportSize({ width: 1280, height: 1500 });
 });
 
 afterAll(async () => {
@@ -52,7 +54,7 @@ describe('demo page', () => {
     expect(Number.parseFloat(worst ?? '')).toBeGreaterThanOrEqual(40);
     await page.fill('#panel-design input[type=number] >> nth=2', '60');
     await page.click('#design-run');
-    await page.screenshot({ path: artifactPath('demo-design.png'), fullPage: true });
+    await page.screenshot({ path: artifactPath('demo-design.png'), fullPage: false });
     expect(errors).toEqual([]);
   });
 
@@ -70,7 +72,7 @@ describe('demo page', () => {
         },
       )
       .toBeGreaterThan(55);
-    await page.screenshot({ path: artifactPath('demo-generate.png'), fullPage: true });
+    await page.screenshot({ path: artifactPath('demo-generate.png'), fullPage: false });
     expect(errors).toEqual([]);
   });
 
@@ -89,7 +91,7 @@ describe('demo page', () => {
         (await page.getAttribute('#panel-calibrate', 'data-result')) ?? '{}',
       ) as (typeof results)[number];
       results.push(r);
-      if (seed === 711) await page.screenshot({ path: artifactPath('demo-calibrate.png'), fullPage: true });
+      if (seed === 711) await page.screenshot({ path: artifactPath('demo-calibrate.png'), fullPage: false });
     }
     console.log('in-page calibration (virtual exciter), per unit:', JSON.stringify(results));
     for (const r of results) expect(r.readings).toBeLessThanOrEqual(10);

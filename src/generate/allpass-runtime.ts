@@ -292,10 +292,12 @@ export function createAllpassRuntime(branches: { i: AllpassBranch; q: AllpassBra
         h.copyWithin(0, wp - keep, wp);
         wp = keep;
       }
-      for (let j = 0; j < n; j++) h[wp + j] = x[j]! + ANTI_DENORMAL_OFFSET;
       const pi = wp - bi.delay;
       const pq = wp - bq.delay;
+      // One pass: append the input, read both branches' (delayed) inputs; a delayed read never
+      // reaches past the sample just written.
       for (let j = 0; j < n; j++) {
+        h[wp + j] = x[j]! + ANTI_DENORMAL_OFFSET;
         wi[j] = h[pi + j]!;
         wq[j] = h[pq + j]!;
       }

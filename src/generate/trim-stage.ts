@@ -562,69 +562,81 @@ export class TrimStage {
     // Step 2 (skew) and step 3 (DC), then the output guard.
     const stats = this.stats;
     let peak = stats.peak;
-    let over = 0;
     const bulk = this.bulk;
     const sFrac = this.steadyFrac;
-    const sTaps = this.steadyTaps;
-    const rTaps = this.rampTaps;
     const sBase = qoff + this.steadyInt;
-    for (let j = 0; j < n; j++) {
-      const p = wp + j;
-      let qd: number;
-      let di: number;
-      let dq: number;
-      if (!ramped) {
-        di = cur[3]!;
-        dq = cur[4]!;
-        if (sFrac === 0) qd = qh[p - sBase]!;
-        else qd = fractional(sTaps, qh, p - sBase + FD_HALF);
-      } else {
-        di = this.rDcI[j]!;
-        dq = this.rDcQ[j]!;
-        if (bulk === 0) qd = qh[p - qoff]!;
-        else {
-          const t = bulk + this.rSkew[j]!;
-          const ti = Math.floor(t);
-          const frac = t - ti;
-          if (frac === 0) qd = qh[p - qoff - ti]!;
+    if (!ramped && sFrac === 0) {
+      // Steady trims, whole-sample skew: pure delays, DC, guard.
+      const di = cur[3]!;
+      const dq = cur[4]!;
+      for (let j = 0; j < n; j++) {
+        const p = wp + j;
+        let vi = hI[p - ioff]! + di;
+        let vq = qh[p - sBase]! + dq;
+        const ai = Math.abs(vi);
+        const aq = Math.abs(vq);
+        if (!(ai >= OUTPUT_FLUSH && ai <= 1)) vi = guard(vi, stats);
+        if (!(aq >= OUTPUT_FLUSH && aq <= 1)) vq = guard(vq, stats);
+        if (ai > peak) peak = Math.min(ai, OUTPUT_LIMIT);
+        if (aq > peak) peak = Math.min(aq, OUTPUT_LIMIT);
+        outI[o + j] = vi;
+        outQ[o + j] = vq;
+      }
+    } else {
+      const sTaps = this.steadyTaps;
+      const rTaps = this.rampTaps;
+      for (let j = 0; j < n; j++) {
+        const p = wp + j;
+        let qd: number;
+        let di: number;
+        let dq: number;
+        if (!ramped) {
+          di = cur[3]!;
+          dq = cur[4]!;
+          qd = fractional(sTaps, qh, p - sBase + FD_HALF);
+        } else {
+          di = this.rDcI[j]!;
+          dq = this.rDcQ[j]!;
+          if (bulk === 0) qd = qh[p - qoff]!;
           else {
-            fractionalDelayTaps(frac, rTaps);
-            qd = fractional(rTaps, qh, p - qoff - ti + FD_HALF);
+            const t = bulk + this.rSkew[j]!;
+            const ti = Math.floor(t);
+            const frac = t - ti;
+            if (frac === 0) qd = qh[p - qoff - ti]!;
+            else {
+              fractionalDelayTaps(frac, rTaps);
+              qd = fractional(rTaps, qh, p - qoff - ti + FD_HALF);
+            }
           }
         }
+        let vi = hI[p - ioff]! + di;
+        let vq = qd + dq;
+        const ai = Math.abs(vi);
+        const aq = Math.abs(vq);
+        if (!(ai >= OUTPUT_FLUSH && ai <= 1)) vi = guard(vi, stats);
+        if (!(aq >= OUTPUT_FLUSH && aq <= 1)) vq = guard(vq, stats);
+        if (ai > peak) peak = Math.min(ai, OUTPUT_LIMIT);
+        if (aq > peak) peak = Math.min(aq, OUTPUT_LIMIT);
+        outI[o + j] = vi;
+        outQ[o + j] = vq;
       }
-      const vi = hI[p - ioff]! + di;
-      const vq = qd + dq;
-      let ai = vi < 0 ? -vi : vi;
-      let aq = vq < 0 ? -vq : vq;
-      let wi = vi;
-      let wq = vq;
-      if (ai < OUTPUT_FLUSH) wi = 0;
-      else if (!(ai <= 1)) {
-        over++;
-        if (!(ai <= OUTPUT_LIMIT)) {
-          wi = vi > 0 ? OUTPUT_LIMIT : vi < 0 ? -OUTPUT_LIMIT : 0;
-          ai = wi < 0 ? -wi : wi;
-        }
-      }
-      if (aq < OUTPUT_FLUSH) wq = 0;
-      else if (!(aq <= 1)) {
-        over++;
-        if (!(aq <= OUTPUT_LIMIT)) {
-          wq = vq > 0 ? OUTPUT_LIMIT : vq < 0 ? -OUTPUT_LIMIT : 0;
-          aq = wq < 0 ? -wq : wq;
-        }
-      }
-      if (ai > peak) peak = ai;
-      if (aq > peak) peak = aq;
-      outI[o + j] = wi;
-      outQ[o + j] = wq;
     }
     this.wp = wp + n;
     stats.peak = peak;
-    stats.overFullScale += over;
     stats.samplesOut += 2 * n;
   }
+}
+
+/**
+ * The rare output cases: below OUTPUT_FLUSH → 0 (no subnormal floats); above full scale → counted;
+ * beyond OUTPUT_LIMIT (or NaN, which cannot arise from finite input) → limited.
+ */
+function guard(v: number, stats: GeneratorStats): number {
+  const a = Math.abs(v);
+  if (a < OUTPUT_FLUSH) return 0;
+  stats.overFullScale++;
+  if (a <= OUTPUT_LIMIT) return v;
+  return v > 0 ? OUTPUT_LIMIT : v < 0 ? -OUTPUT_LIMIT : 0;
 }
 
 /** `Σ_k taps[k]·h[base − k]` over the interpolator's taps (two accumulators, fixed order). */

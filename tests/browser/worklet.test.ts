@@ -76,6 +76,17 @@ describe('quadrature worklet in Chromium', () => {
     }
   });
 
+  it('works with standardized-audio-context 25.3.77 (its OfflineAudioContext and AudioWorkletNode)', async () => {
+    const toneHz = 1900;
+    const r = await render({
+      library: 'standardized-audio-context',
+      options: { source: { kind: 'tone', frequencyHz: toneHz }, levelDb: -6 },
+    });
+    expect(r.i.length).toBe(FS);
+    const m = suppression(r, 4800, FS, toneHz);
+    expect(Math.abs(m.sidebandSuppressionDb - predictSuppressionDb(net60, toneHz))).toBeLessThan(0.5);
+  });
+
   it('any source node can feed the input: an OscillatorNode gives the same reading', async () => {
     const toneHz = 1000;
     const r = await render({ oscillatorHz: toneHz, options: { source: { kind: 'input' }, levelDb: 0 } });

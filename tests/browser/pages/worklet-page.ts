@@ -2,7 +2,12 @@
  * Test harness page (served by Vite from the repository root): renders through the built
  * AudioWorklet processor in an OfflineAudioContext and hands the samples back to the test.
  */
+import {
+  AudioWorkletNode as SacAudioWorkletNode,
+  OfflineAudioContext as SacOfflineAudioContext,
+} from 'standardized-audio-context';
 import type { Network } from '../../../src/design/network.js';
+import type { WorkletNodeConstructor } from '../../../src/webaudio/audio-types.js';
 import type { QuadratureNodeOptions, SwapAck } from '../../../src/webaudio/node.js';
 import { createQuadratureNode } from '../../../src/webaudio/node.js';
 
@@ -27,6 +32,8 @@ export interface RenderRequest {
   /** Swap in this network at `swapAt` seconds (the context is suspended there). */
   swapNetwork?: Network;
   swapAt?: number;
+  /** Build the graph with standardized-audio-context 25.3.77 instead of the native classes. */
+  library?: 'native' | 'standardized-audio-context';
 }
 
 export interface RenderResult {
@@ -39,12 +46,20 @@ export interface RenderResult {
 
 async function render(req: RenderRequest): Promise<RenderResult> {
   const fs = req.sampleRate;
-  const ctx = new OfflineAudioContext({
-    numberOfChannels: 2,
-    length: Math.round(req.seconds * fs),
-    sampleRate: fs,
+  const length = Math.round(req.seconds * fs);
+  const sac = req.library === 'standardized-audio-context';
+  const ctx = sac
+    ? (new SacOfflineAudioContext({
+        numberOfChannels: 2,
+        length,
+        sampleRate: fs,
+      }) as unknown as OfflineAudioContext)
+    : new OfflineAudioContext({ numberOfChannels: 2, length, sampleRate: fs });
+  const q = await createQuadratureNode(ctx, req.network, {
+    ...req.options,
+    moduleUrl: req.processorUrl,
+    ...(sac ? { AudioWorkletNode: SacAudioWorkletNode as unknown as WorkletNodeConstructor } : {}),
   });
-  const q = await createQuadratureNode(ctx, req.network, { ...req.options, moduleUrl: req.processorUrl });
   q.node.connect(ctx.destination as never);
   for (const e of req.events) {
     const p = q.params[e.param];

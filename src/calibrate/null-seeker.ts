@@ -16,6 +16,7 @@
  * bowl, its priors and stop rules are this library's own (DESIGN.md §6, REFERENCES.md §6).
  */
 import { OrthotoneError } from '../core/errors.js';
+import { dbToPow } from '../core/units.js';
 import { requireFinite, requireInteger, requirePositive } from '../core/validate.js';
 import {
   circleCandidates,
@@ -178,7 +179,6 @@ export interface NullSeeker {
 }
 
 const LN10_10 = Math.LN10 / 10;
-const dbToPow = (db: number): number => Math.exp(db * LN10_10);
 
 /**
  * Validates null-seeker options merged over the defaults.

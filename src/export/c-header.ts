@@ -3,9 +3,9 @@
  * and Q31 (int32_t), with a comment block stating the transfer function, section order, sign
  * convention, sample rate, band and the predicted suppression (also after rounding to each format).
  */
-import { OrthotoneError } from '../core/errors.js';
 import type { Network } from '../design/network.js';
 import { quantizationReport, quantizeCoefficient } from '../design/quantize.js';
+import { cArray, cFloat, requireCIdentifier } from './c-format.js';
 
 /** Options for {@link networkToCHeader}. */
 export interface CHeaderOptions {
@@ -18,21 +18,6 @@ function fixed(x: number, fracBits: 15 | 31): number {
   return Math.round(quantizeCoefficient(x, fracBits === 15 ? 'q15' : 'q31') * 2 ** fracBits);
 }
 
-const f32 = (x: number): string => {
-  const v = Math.fround(x);
-  const s = v.toPrecision(9);
-  return `${s.includes('e') || s.includes('.') ? s : `${s}.0`}f`;
-};
-
-function array(type: string, ident: string, values: readonly (string | number)[]): string {
-  const perLine = 6;
-  const lines: string[] = [];
-  for (let k = 0; k < values.length; k += perLine) {
-    lines.push(`  ${values.slice(k, k + perLine).join(', ')},`);
-  }
-  return `static const ${type} ${ident}[${values.length}] = {\n${lines.join('\n')}\n};\n`;
-}
-
 /**
  * Renders a network document as a C header.
  * @param net a network document (DESIGN.md §3).
@@ -41,14 +26,7 @@ function array(type: string, ident: string, values: readonly (string | number)[]
  * @throws {OrthotoneError} INVALID_ARGUMENT when `name` is not a C identifier.
  */
 export function networkToCHeader(net: Network, options: CHeaderOptions = {}): string {
-  const name = options.name ?? 'ot';
-  if (!/^[A-Za-z_][A-Za-z0-9_]{0,40}$/.test(name)) {
-    throw new OrthotoneError(
-      'INVALID_ARGUMENT',
-      `name ${JSON.stringify(name)} is not a C identifier: use letters, digits and _, not starting with a digit`,
-      name,
-    );
-  }
+  const name = requireCIdentifier(options.name ?? 'ot');
   const up = name.toUpperCase();
   const q = quantizationReport(net);
   const p = net.predicted;
@@ -80,13 +58,13 @@ export function networkToCHeader(net: Network, options: CHeaderOptions = {}): st
       ' */',
     );
     body += `#define ${up}_TAPS ${n}\n#define ${up}_I_DELAY ${d}\n\n`;
-    body += array('float', `${name}_taps_f32`, net.taps.map(f32));
-    body += array(
+    body += cArray('float', `${name}_taps_f32`, net.taps.map(cFloat));
+    body += cArray(
       'int16_t',
       `${name}_taps_q15`,
       net.taps.map((t) => fixed(t, 15)),
     );
-    body += array(
+    body += cArray(
       'int32_t',
       `${name}_taps_q31`,
       net.taps.map((t) => fixed(t, 31)),
@@ -109,18 +87,18 @@ export function networkToCHeader(net: Network, options: CHeaderOptions = {}): st
         body += '\n';
         continue;
       }
-      body += array(
+      body += cArray(
         'unsigned char',
         `${name}_${b}_order`,
         br.sections.map((s) => s.order),
       );
-      body += array('float', `${name}_${b}_a_f32`, a.map(f32));
-      body += array(
+      body += cArray('float', `${name}_${b}_a_f32`, a.map(cFloat));
+      body += cArray(
         'int16_t',
         `${name}_${b}_a_q15`,
         a.map((x) => fixed(x, 15)),
       );
-      body += array(
+      body += cArray(
         'int32_t',
         `${name}_${b}_a_q31`,
         a.map((x) => fixed(x, 31)),

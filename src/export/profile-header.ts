@@ -6,29 +6,12 @@
  */
 
 import { type CalibrationProfile, validateProfile } from '../calibrate/profile.js';
-import { OrthotoneError } from '../core/errors.js';
+import { cArray, cFloat, requireCIdentifier } from './c-format.js';
 
 /** Options of {@link profileToCHeader}. */
 export interface ProfileHeaderOptions {
   /** Prefix of every identifier, a C identifier (default `ot`). */
   name?: string;
-}
-
-const f32 = (x: number): string => {
-  const s = Math.fround(x).toPrecision(9);
-  return `${s.includes('e') || s.includes('.') ? s : `${s}.0`}f`;
-};
-
-function floatArray(ident: string, values: readonly number[]): string {
-  const lines: string[] = [];
-  for (let k = 0; k < values.length; k += 6)
-    lines.push(
-      `  ${values
-        .slice(k, k + 6)
-        .map(f32)
-        .join(', ')},`,
-    );
-  return `static const float ${ident}[${values.length}] = {\n${lines.join('\n')}\n};\n`;
 }
 
 /**
@@ -41,14 +24,7 @@ function floatArray(ident: string, values: readonly number[]): string {
  */
 export function profileToCHeader(profile: CalibrationProfile, options: ProfileHeaderOptions = {}): string {
   const p = validateProfile(profile);
-  const name = options.name ?? 'ot';
-  if (!/^[A-Za-z_][A-Za-z0-9_]{0,40}$/.test(name)) {
-    throw new OrthotoneError(
-      'INVALID_ARGUMENT',
-      `name ${JSON.stringify(name)} is not a C identifier: use letters, digits and _, not starting with a digit`,
-      name,
-    );
-  }
+  const name = requireCIdentifier(options.name ?? 'ot');
   const up = name.toUpperCase();
   const guard = `${up}_CALIBRATION_H`;
   const r = p.results;
@@ -77,17 +53,17 @@ export function profileToCHeader(profile: CalibrationProfile, options: ProfileHe
     '',
     `#define ${up}_CAL_SAMPLE_RATE_HZ ${p.sampleRate}`,
     `#define ${up}_CAL_UPPER_SIDEBAND ${p.sideband === 'upper' ? 1 : 0}`,
-    `#define ${up}_CAL_GAIN_DB ${f32(p.trims.gainDb)}`,
-    `#define ${up}_CAL_PHASE_DEG ${f32(p.trims.phaseDeg)}`,
-    `#define ${up}_CAL_SKEW_SAMPLES ${f32(p.trims.skewSamples)}`,
-    `#define ${up}_CAL_DC_I ${f32(p.trims.dcI)}`,
-    `#define ${up}_CAL_DC_Q ${f32(p.trims.dcQ)}`,
+    `#define ${up}_CAL_GAIN_DB ${cFloat(p.trims.gainDb)}`,
+    `#define ${up}_CAL_PHASE_DEG ${cFloat(p.trims.phaseDeg)}`,
+    `#define ${up}_CAL_SKEW_SAMPLES ${cFloat(p.trims.skewSamples)}`,
+    `#define ${up}_CAL_DC_I ${cFloat(p.trims.dcI)}`,
+    `#define ${up}_CAL_DC_Q ${cFloat(p.trims.dcQ)}`,
     `#define ${up}_CAL_CORRECTION_TAPS ${p.correction ? p.correction.qFromQ.length : 0}`,
     '',
   ];
   if (p.correction) {
-    lines.push(floatArray(`${name}_cal_q_from_q`, p.correction.qFromQ));
-    lines.push(floatArray(`${name}_cal_q_from_i`, p.correction.qFromI));
+    lines.push(cArray('float', `${name}_cal_q_from_q`, p.correction.qFromQ.map(cFloat)));
+    lines.push(cArray('float', `${name}_cal_q_from_i`, p.correction.qFromI.map(cFloat)));
   }
   lines.push(`#endif /* ${guard} */`, '');
   return lines.join('\n');

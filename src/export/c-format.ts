@@ -1,0 +1,33 @@
+/**
+ * Shared pieces of the C headers orthotone writes: identifier checks, float literals and array
+ * declarations laid out six values a line.
+ */
+import { OrthotoneError } from '../core/errors.js';
+
+/**
+ * Checks an identifier prefix for generated C code.
+ * @throws {OrthotoneError} INVALID_ARGUMENT when `name` is not a C identifier.
+ */
+export function requireCIdentifier(name: string): string {
+  if (!/^[A-Za-z_][A-Za-z0-9_]{0,40}$/.test(name)) {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      `name ${JSON.stringify(name)} is not a C identifier: use letters, digits and _, not starting with a digit`,
+      name,
+    );
+  }
+  return name;
+}
+
+/** A C float literal of `x` rounded to single precision, 9 significant digits (round-trips binary32). */
+export function cFloat(x: number): string {
+  const s = Math.fround(x).toPrecision(9);
+  return `${s.includes('e') || s.includes('.') ? s : `${s}.0`}f`;
+}
+
+/** `static const <type> <ident>[n] = { ... };` with six values a line. */
+export function cArray(type: string, ident: string, values: readonly (string | number)[]): string {
+  const lines: string[] = [];
+  for (let k = 0; k < values.length; k += 6) lines.push(`  ${values.slice(k, k + 6).join(', ')},`);
+  return `static const ${type} ${ident}[${values.length}] = {\n${lines.join('\n')}\n};\n`;
+}

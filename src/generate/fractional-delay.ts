@@ -19,7 +19,7 @@
  * Written here rather than taken from a library: it needs a precomputed table shared by every
  * generator, tap interpolation without allocation, and exactness at integer delays.
  */
-import { besselI0 } from './bessel.js';
+import { besselI0 } from '../design/kaiser.js';
 
 /** Number of taps of the interpolator (even). */
 export const FRACTIONAL_DELAY_TAPS = 32;

@@ -20,7 +20,7 @@ import {
   requireRange,
   requireSampleRate,
 } from '../core/validate.js';
-import { besselI0 } from './bessel.js';
+import { kaiserBeta, kaiserWindow } from '../design/kaiser.js';
 
 /** A test signal. Levels in dBFS (tones: peak; noise: RMS, AES17). */
 export type SignalSpec =
@@ -218,16 +218,14 @@ export function bandNoiseFilters(
   let n = Math.ceil((10 * sampleRate) / lo);
   n = Math.min(2047, Math.max(63, n | 1));
   const c = (n - 1) / 2;
-  const beta = 0.1102 * (80 - 8.7);
+  const win = kaiserWindow(n, kaiserBeta(80));
   const w1 = (TWO_PI * lo) / sampleRate;
   const w2 = (TWO_PI * hi) / sampleRate;
   const bp = new Float64Array(n);
   const hb = new Float64Array(n);
-  const i0b = besselI0(beta);
   for (let m = 0; m < n; m++) {
     const k = m - c;
-    const u = k / c;
-    const w = besselI0(beta * Math.sqrt(Math.max(0, 1 - u * u))) / i0b;
+    const w = win[m]!;
     if (k === 0) {
       bp[m] = ((w2 - w1) / Math.PI) * w;
       hb[m] = 0;

@@ -55,6 +55,43 @@ export function numberListOpt(name: string, v: unknown, sep: string, count?: num
   return parts;
 }
 
+/** `a`, `a or b`, `a, b or c`: the words an option may take, for usage messages. */
+function orList(words: readonly string[]): string {
+  return words.length < 2 ? words.join('') : `${words.slice(0, -1).join(', ')} or ${words[words.length - 1]}`;
+}
+
+/**
+ * Parses an option that takes one of a few words; `fallback` when the option is absent.
+ * @throws {UsageError} `--NAME "x" must be a, b or c` for any other value.
+ */
+export function choiceOpt<T extends string>(name: string, v: unknown, choices: readonly T[], fallback: T): T {
+  const x = v ?? fallback;
+  if (typeof x !== 'string' || !(choices as readonly string[]).includes(x)) {
+    throw new UsageError(`--${name} ${JSON.stringify(x)} must be ${orList(choices)}`);
+  }
+  return x as T;
+}
+
+/**
+ * Looks up a named entry of `table` (e.g. a preset); the entry named `fallback` when the option is absent.
+ * @throws {UsageError} `--NAME "x" is not known: use one of a, b` for a name the table lacks.
+ */
+export function lookupOpt<T>(
+  name: string,
+  v: unknown,
+  table: Readonly<Record<string, T>>,
+  fallback: string,
+): T {
+  const key = (v ?? fallback) as string;
+  const entry = Object.hasOwn(table, key) ? table[key] : undefined;
+  if (entry === undefined) {
+    throw new UsageError(
+      `--${name} ${JSON.stringify(key)} is not known: use one of ${Object.keys(table).join(', ')}`,
+    );
+  }
+  return entry;
+}
+
 /** Runs a command body, mapping usage and library errors to one line on stderr and exit status 2. */
 export async function runGuarded(body: () => Promise<number> | number): Promise<number> {
   try {

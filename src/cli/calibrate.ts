@@ -30,7 +30,7 @@ import {
   TOLERANCE_PRESETS,
   type TolerancePreset,
 } from '../simulate/model.js';
-import { numberOpt, parseCommand, UsageError } from './args.js';
+import { choiceOpt, lookupOpt, numberOpt, parseCommand, UsageError } from './args.js';
 import { formatTable } from './table.js';
 
 const HELP = `usage: orthotone calibrate (--simulate | --prompt | --measure-command CMD) [options]
@@ -205,13 +205,8 @@ export async function run(argv: string[]): Promise<number> {
   if (modes !== 1) {
     throw new UsageError('calibrate needs exactly one of --simulate, --prompt or --measure-command CMD');
   }
-  const what = (v.what ?? 'both') as string;
-  if (!['sideband', 'carrier', 'both'].includes(what)) {
-    throw new UsageError(`--what ${JSON.stringify(what)} must be sideband, carrier or both`);
-  }
-  const format = (v.format ?? 'table') as string;
-  if (format !== 'table' && format !== 'json')
-    throw new UsageError(`--format ${JSON.stringify(format)} must be table or json`);
+  const what = choiceOpt('what', v.what, ['sideband', 'carrier', 'both'], 'both');
+  const format = choiceOpt('format', v.format, ['table', 'json'], 'table');
   const toneHz = numberOpt('tone', v.tone ?? '1000')!;
   const toneAmplitude = numberOpt('tone-amplitude', v['tone-amplitude']);
   const maxReadings = numberOpt('max-readings', v['max-readings'] ?? '16')!;
@@ -228,11 +223,7 @@ export async function run(argv: string[]): Promise<number> {
   const simAmplitude = toneAmplitude ?? 0.5;
   if (v.simulate) {
     const presetName = (v.preset ?? 'homebrew-bench') as string;
-    const preset = TOLERANCE_PRESETS[presetName];
-    if (!preset)
-      throw new UsageError(
-        `--preset ${JSON.stringify(presetName)} is not known: use one of ${Object.keys(TOLERANCE_PRESETS).join(', ')}`,
-      );
+    const preset = lookupOpt('preset', presetName, TOLERANCE_PRESETS, 'homebrew-bench');
     const tol = parseTolerance(v.tolerance as string | undefined, preset);
     const deviceSeed = numberOpt('device-seed', v['device-seed'] ?? String(HOMEBREW_BENCH_SEED))!;
     const seed = numberOpt('seed', v.seed ?? '1')!;

@@ -10,7 +10,7 @@ import { quantizationReport } from '../design/quantize.js';
 import { networkToCHeader } from '../export/c-header.js';
 import { networkToCsv } from '../export/csv.js';
 import { networkToJson } from '../export/network-json.js';
-import { numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
+import { choiceOpt, numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
 import { fixed, formatPairs } from './table.js';
 
 const HELP = `usage: orthotone design [options]
@@ -35,10 +35,7 @@ options:
 /** Builds the design spec from parsed CLI values. */
 export function specFromOptions(v: Record<string, unknown>): NetworkSpec {
   const band = numberListOpt('band', v.band ?? '300:3000', ':', 2) as [number, number];
-  const method = (v.method ?? 'auto') as string;
-  if (!['fir', 'allpass', 'auto'].includes(method)) {
-    throw new UsageError(`--method ${JSON.stringify(method)} must be fir, allpass or auto`);
-  }
+  const method = choiceOpt('method', v.method, ['fir', 'allpass', 'auto'], 'auto');
   const spec: NetworkSpec = {
     sampleRate: numberOpt('rate', v.rate ?? '48000')!,
     band,

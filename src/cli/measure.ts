@@ -12,7 +12,7 @@ import type { ToneReading } from '../measure/tones.js';
 import { measureTones } from '../measure/tones.js';
 import { measureTwoTone } from '../measure/two-tone.js';
 import { readWavFile, type WavData, writeWavFile } from '../node/wav.js';
-import { numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
+import { choiceOpt, numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
 import { fixed, formatPairs, formatTable } from './table.js';
 
 const HELP = `usage: orthotone measure FILE.wav (--tone HZ (--iq | --offset HZ) | --two-tone HZ,HZ | --tones HZ,...) [options]
@@ -92,9 +92,7 @@ export async function run(argv: string[]): Promise<number> {
   }
   if (positionals.length !== 1)
     throw new UsageError('measure needs one WAV file: orthotone measure FILE.wav --tone HZ --iq');
-  const format = (v.format ?? 'table') as string;
-  if (format !== 'table' && format !== 'json')
-    throw new UsageError(`--format ${JSON.stringify(format)} must be table or json`);
+  const format = choiceOpt('format', v.format, ['table', 'json'], 'table');
   const modes = ['tone', 'two-tone', 'tones'].filter((k) => v[k] !== undefined);
   if (modes.length !== 1)
     throw new UsageError('give exactly one of --tone HZ, --two-tone HZ,HZ or --tones HZ,...');

@@ -16,8 +16,8 @@ import { predictCarrierDbc, predictOutputPeaks, predictSuppressionDb } from '../
 import { createQuadratureGenerator } from '../generate/quadrature-generator.js';
 import { createSignalSource, type SignalLevels, type SignalSpec, signalLevels } from '../generate/sources.js';
 import type { Sideband } from '../generate/trim-stage.js';
-import { readWavFile, toMono, WAV_ENCODINGS, type WavEncoding, writeIqWavFile } from '../node/wav.js';
-import { numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
+import { readWavFile, toMono, type WavEncoding, writeIqWavFile } from '../node/wav.js';
+import { choiceOpt, numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
 import { DESIGN_OPTIONS, specFromOptions } from './design.js';
 import { fixed, formatPairs } from './table.js';
 
@@ -186,14 +186,8 @@ export async function run(argv: string[]): Promise<number> {
   }
   if (positionals.length > 1) throw new UsageError('give at most one network FILE');
   if (typeof v.out !== 'string') throw new UsageError('give the output file: --out FILE.wav');
-  const encoding = (v.encoding ?? 'float32') as WavEncoding;
-  if (!WAV_ENCODINGS.includes(encoding)) {
-    throw new UsageError(`--encoding ${JSON.stringify(v.encoding)} must be float32, int24 or int16`);
-  }
-  const sideband = (v.sideband ?? 'upper') as Sideband;
-  if (sideband !== 'upper' && sideband !== 'lower') {
-    throw new UsageError(`--sideband ${JSON.stringify(v.sideband)} must be upper or lower`);
-  }
+  const encoding = choiceOpt<WavEncoding>('encoding', v.encoding, ['float32', 'int24', 'int16'], 'float32');
+  const sideband = choiceOpt<Sideband>('sideband', v.sideband, ['upper', 'lower'], 'upper');
   const trims = trimsFromOptions(v);
 
   // Input recording first: without a network file its rate sets the design rate.

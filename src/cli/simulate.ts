@@ -7,7 +7,7 @@ import { cautionsText } from '../core/cautions.js';
 import { createVirtualExciter } from '../simulate/exciter.js';
 import { drawDevice, HOMEBREW_BENCH_SEED, TOLERANCE_PRESETS } from '../simulate/model.js';
 import { predictedSuppression } from '../simulate/response.js';
-import { numberOpt, parseCommand, UsageError } from './args.js';
+import { choiceOpt, lookupOpt, numberOpt, parseCommand, UsageError } from './args.js';
 import { readWav, writeWav } from './measure.js';
 import { fixed, formatPairs, formatTable } from './table.js';
 
@@ -50,16 +50,9 @@ export async function run(argv: string[]): Promise<number> {
   if (positionals.length !== 1)
     throw new UsageError('simulate needs one I/Q WAV file: orthotone simulate IN.wav --out OUT.wav');
   if (v.out === undefined) throw new UsageError('simulate needs --out FILE for the receiver capture');
-  const format = (v.format ?? 'table') as string;
-  if (format !== 'table' && format !== 'json')
-    throw new UsageError(`--format ${JSON.stringify(format)} must be table or json`);
+  const format = choiceOpt('format', v.format, ['table', 'json'], 'table');
   const presetName = (v.preset ?? 'homebrew-bench') as string;
-  const preset = TOLERANCE_PRESETS[presetName];
-  if (!preset) {
-    throw new UsageError(
-      `--preset ${JSON.stringify(presetName)} is not known: use one of ${Object.keys(TOLERANCE_PRESETS).join(', ')}`,
-    );
-  }
+  const preset = lookupOpt('preset', presetName, TOLERANCE_PRESETS, 'homebrew-bench');
   const deviceSeed = numberOpt('device-seed', v['device-seed'] ?? String(HOMEBREW_BENCH_SEED))!;
   const seed = numberOpt('seed', v.seed ?? '1')!;
   const floorDbc = numberOpt('floor', v.floor ?? '-130')!;

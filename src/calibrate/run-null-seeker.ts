@@ -5,6 +5,7 @@
  * failures in a row the run stops with `measurement-failed`. Nothing is ever thrown away: the
  * best setting so far and the saved state are always available from the seeker.
  */
+import { abortable } from '../core/abort.js';
 import { isOrthotoneError } from '../core/errors.js';
 import type { NullSeeker, SeekerBest, SeekerEstimate } from './null-seeker.js';
 
@@ -57,6 +58,7 @@ export async function runNullSeeker(
       db = await abortable(
         Promise.resolve().then(() => measure([p[0], p[1]])),
         signal,
+        (s) => s.reason ?? new Error('aborted'),
       );
     } catch (e) {
       if (signal?.aborted || isOrthotoneError(e, 'ABORTED')) {
@@ -79,24 +81,4 @@ export async function runNullSeeker(
     });
   }
   return lastError !== undefined ? { lastError } : {};
-}
-
-/** Races a promise against an AbortSignal. */
-function abortable<T>(p: Promise<T>, signal: AbortSignal | undefined): Promise<T> {
-  if (!signal) return p;
-  return new Promise<T>((resolve, reject) => {
-    const onAbort = (): void => reject(signal.reason ?? new Error('aborted'));
-    if (signal.aborted) return onAbort();
-    signal.addEventListener('abort', onAbort, { once: true });
-    p.then(
-      (v) => {
-        signal.removeEventListener('abort', onAbort);
-        resolve(v);
-      },
-      (e) => {
-        signal.removeEventListener('abort', onAbort);
-        reject(e);
-      },
-    );
-  });
 }

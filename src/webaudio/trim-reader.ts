@@ -7,6 +7,7 @@
  * on the generate side of the layers (core ← design ← generate ← webaudio) and must not depend on
  * measure/ or calibrate/.
  */
+import { abortable } from '../core/abort.js';
 import { OrthotoneError } from '../core/errors.js';
 import type { Trims } from '../core/trims.js';
 import { requireRange, withDefaults } from '../core/validate.js';
@@ -85,9 +86,9 @@ export function createTrimReader<T = number>(
   let chain: Promise<unknown> = Promise.resolve();
 
   const one = async (trims: Partial<Trims>): Promise<T> => {
-    if (o.signal?.aborted) throw new OrthotoneError('ABORTED', 'the reading was aborted');
+    if (o.signal?.aborted) throw abortedReading();
     o.node.setTrims(trims, { rampSeconds: o.rampSeconds });
-    const cap = await abortable(o.capture.capture(frames, { skipFrames }), o.signal);
+    const cap = await abortable(o.capture.capture(frames, { skipFrames }), o.signal, abortedReading);
     let level: T;
     try {
       level = o.read(cap, fs);
@@ -128,21 +129,7 @@ function nonFinite(r: unknown): string | null {
   return String(r);
 }
 
-function abortable<T>(p: Promise<T>, signal: AbortSignal | undefined): Promise<T> {
-  if (!signal) return p;
-  return new Promise<T>((resolve, reject) => {
-    const onAbort = (): void => reject(new OrthotoneError('ABORTED', 'the reading was aborted'));
-    if (signal.aborted) return onAbort();
-    signal.addEventListener('abort', onAbort, { once: true });
-    p.then(
-      (v) => {
-        signal.removeEventListener('abort', onAbort);
-        resolve(v);
-      },
-      (e) => {
-        signal.removeEventListener('abort', onAbort);
-        reject(e);
-      },
-    );
-  });
+/** The rejection of a reading whose signal aborted. */
+function abortedReading(): OrthotoneError {
+  return new OrthotoneError('ABORTED', 'the reading was aborted');
 }

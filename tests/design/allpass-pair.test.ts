@@ -3,6 +3,7 @@ import { isOrthotoneError } from '../../src/core/errors.js';
 import { analogAllpassPrototype, designAllpassPair } from '../../src/design/allpass-pair.js';
 import { analyzeNetwork } from '../../src/design/analysis.js';
 import type { AllpassBranch, AllpassNetwork } from '../../src/design/network.js';
+import { branchAt } from '../support/network-response.js';
 
 /** Max |phase difference − 90°| of an analog prototype over [1/√B, √B], rad, on a dense log grid (test's own loop). */
 function analogMaxError(leading: number[], lagging: number[], bandRatio: number): number {
@@ -20,25 +21,6 @@ function analogMaxError(leading: number[], lagging: number[], bandRatio: number)
 
 /** Suppression at unity gain for phase error ε: 20·log10(cot(ε/2)) (REFERENCES.md §1, Schmidt QEX 1994). */
 const dbFromRad = (e: number): number => 20 * Math.log10(1 / Math.tan(e / 2));
-
-/** Complex response of a branch at ω, computed here section by section (independent of src/). */
-function branchAt(b: AllpassBranch, w: number): [number, number] {
-  let re = Math.cos(b.delay * w);
-  let im = -Math.sin(b.delay * w);
-  for (const s of b.sections) {
-    const zr = Math.cos(s.order * w);
-    const zi = -Math.sin(s.order * w);
-    const nr = s.a + zr;
-    const ni = zi;
-    const dr = 1 + s.a * zr;
-    const di = s.a * zi;
-    const dd = dr * dr + di * di;
-    const hr = (nr * dr + ni * di) / dd;
-    const hi = (ni * dr - nr * di) / dd;
-    [re, im] = [re * hr - im * hi, re * hi + im * hr];
-  }
-  return [re, im];
-}
 
 /** Worst suppression over the band, dB, dense log grid: |Hi + jHq| / |Hi − jHq| (Schmidt QEX 1994 §2). */
 function ownWorstDb(br: { i: AllpassBranch; q: AllpassBranch }, fs: number, band: [number, number]): number {

@@ -1,62 +1,15 @@
 import { describe, expect, it } from 'vitest';
 import { isOrthotoneError } from '../../src/core/errors.js';
 import { type DesignCandidate, designNetwork, type NetworkSpec } from '../../src/design/design-network.js';
-import { type AllpassBranch, type Network, validateNetwork } from '../../src/design/network.js';
-
-/** Complex response of an all-pass branch, section by section (the test's own loop, not src/). */
-function branchAt(b: AllpassBranch, w: number): [number, number] {
-  let re = Math.cos(b.delay * w);
-  let im = -Math.sin(b.delay * w);
-  for (const s of b.sections) {
-    const zr = Math.cos(s.order * w);
-    const zi = -Math.sin(s.order * w);
-    const nr = s.a + zr;
-    const dr = 1 + s.a * zr;
-    const di = s.a * zi;
-    const dd = dr * dr + di * di;
-    const hr = (nr * dr + zi * di) / dd;
-    const hi = (zi * dr - nr * di) / dd;
-    [re, im] = [re * hr - im * hi, re * hi + im * hr];
-  }
-  return [re, im];
-}
+import { type Network, validateNetwork } from '../../src/design/network.js';
+import { ownWorstDb as worstOnGrid } from '../support/network-response.js';
 
 /**
- * Worst suppression over the band by the test's own dense evaluation (20 001 log-spaced plus
- * 20 001 linear points, edges included): 20·log10(|Hi + jHq| / |Hi − jHq|), Schmidt, QEX 1994 §2.
+ * Worst suppression over the band by the test's own dense evaluation (tests/support, independent of
+ * src/): 20 001 log-spaced plus 20 001 linear points for an all-pass pair, 4 001 + 4 001 for a FIR.
  */
 function ownWorstDb(net: Network): number {
-  const [lo, hi] = net.band;
-  const fs = net.sampleRate;
-  let worst = Number.POSITIVE_INFINITY;
-  const at = (f: number) => {
-    const w = (2 * Math.PI * f) / fs;
-    let ir: number;
-    let ii: number;
-    let qr: number;
-    let qi: number;
-    if (net.kind === 'allpass') {
-      [ir, ii] = branchAt(net.branches.i, w);
-      [qr, qi] = branchAt(net.branches.q, w);
-    } else {
-      const d = (net.taps.length - 1) / 2;
-      ir = Math.cos(w * d);
-      ii = -Math.sin(w * d);
-      qr = 0;
-      qi = 0;
-      net.taps.forEach((h, k) => {
-        qr += h * Math.cos(w * k);
-        qi -= h * Math.sin(w * k);
-      });
-    }
-    worst = Math.min(worst, 20 * Math.log10(Math.hypot(ir - qi, ii + qr) / Math.hypot(ir + qi, ii - qr)));
-  };
-  const n = net.kind === 'fir' ? 4000 : 20000;
-  for (let k = 0; k <= n; k++) {
-    at(lo * (hi / lo) ** (k / n));
-    at(lo + ((hi - lo) * k) / n);
-  }
-  return worst;
+  return worstOnGrid(net, net.kind === 'fir' ? 4000 : 20000);
 }
 
 const sectionsOf = (net: Network) =>

@@ -3,55 +3,14 @@ import { describe, expect, it } from 'vitest';
 import { isOrthotoneError, OrthotoneError } from '../../src/core/errors.js';
 import { designAllpassPair } from '../../src/design/allpass-pair.js';
 import { designNetwork, type NetworkSpec } from '../../src/design/design-network.js';
-import { type AllpassBranch, type Network, validateNetwork } from '../../src/design/network.js';
+import { type Network, validateNetwork } from '../../src/design/network.js';
+import { ownWorstDb as worstOnGrid } from '../support/network-response.js';
 
 const RATES = [8000, 16000, 22050, 44100, 48000, 96000, 192000];
 
-/** Complex response of an all-pass branch, section by section (the test's own loop). */
-function branchAt(b: AllpassBranch, w: number): [number, number] {
-  let re = Math.cos(b.delay * w);
-  let im = -Math.sin(b.delay * w);
-  for (const s of b.sections) {
-    const zr = Math.cos(s.order * w);
-    const zi = -Math.sin(s.order * w);
-    const nr = s.a + zr;
-    const dr = 1 + s.a * zr;
-    const di = s.a * zi;
-    const dd = dr * dr + di * di;
-    const hr = (nr * dr + zi * di) / dd;
-    const hi = (zi * dr - nr * di) / dd;
-    [re, im] = [re * hr - im * hi, re * hi + im * hr];
-  }
-  return [re, im];
-}
-
-/** Worst suppression over the band, own dense log + linear grid (Schmidt, QEX 1994 §2). */
+/** Worst suppression over the band, own dense log + linear grid (tests/support; Schmidt, QEX 1994 §2). */
 function ownWorstDb(net: Network, n = 4000): number {
-  const [lo, hi] = net.band;
-  const fs = net.sampleRate;
-  let worst = Number.POSITIVE_INFINITY;
-  const at = (f: number) => {
-    const w = (2 * Math.PI * f) / fs;
-    let ir = Math.cos(w * ((net.kind === 'fir' ? net.taps.length : 1) - 1) * 0.5);
-    let ii = -Math.sin(w * ((net.kind === 'fir' ? net.taps.length : 1) - 1) * 0.5);
-    let qr = 0;
-    let qi = 0;
-    if (net.kind === 'allpass') {
-      [ir, ii] = branchAt(net.branches.i, w);
-      [qr, qi] = branchAt(net.branches.q, w);
-    } else {
-      net.taps.forEach((h, k) => {
-        qr += h * Math.cos(w * k);
-        qi -= h * Math.sin(w * k);
-      });
-    }
-    worst = Math.min(worst, 20 * Math.log10(Math.hypot(ir - qi, ii + qr) / Math.hypot(ir + qi, ii - qr)));
-  };
-  for (let k = 0; k <= n; k++) {
-    at(lo * (hi / lo) ** (k / n));
-    at(lo + ((hi - lo) * k) / n);
-  }
-  return worst;
+  return worstOnGrid(net, n);
 }
 
 function allFinite(net: Network): boolean {

@@ -27,7 +27,13 @@ export type SourceSpec =
   /** A logarithmic sweep from `startHz` to `endHz` over `durationSeconds`, repeating. */
   | { kind: 'sweep'; startHz: number; endHz: number; durationSeconds: number }
   /** Seeded noise, white or band-limited to `band` (Hz); `levelDb` is its RMS in dBFS (AES17). */
-  | { kind: 'noise'; seed: number; band?: [number, number] };
+  | { kind: 'noise'; seed: number; band?: [number, number] }
+  /**
+   * 2–32 equal tones (e.g. spread across the band, for multi-tone calibration): each tone's peak is
+   * `levelDb − 20·log10(K)` dBFS, so the sum never exceeds `levelDb`. Starting phases are spread
+   * (Schroeder); for tones off a common harmonic grid the sum still comes near the bound at times.
+   */
+  | { kind: 'multitone'; frequenciesHz: number[] };
 
 /** The AudioParams of the quadrature node, all k-rate (one value per 128-frame quantum). */
 export const QUADRATURE_PARAMS = Object.freeze([

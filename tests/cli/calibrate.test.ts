@@ -1,5 +1,5 @@
 // Runs the built CLI (npm test builds first) as a user would.
-import { spawn, spawnSync } from 'node:child_process';
+import { spawn } from 'node:child_process';
 import { mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -8,8 +8,7 @@ import { validateProfile } from '../../src/calibrate/profile.js';
 import { TRANSMIT_CAUTIONS } from '../../src/core/cautions.js';
 import { createRng } from '../../src/core/rng.js';
 import { drawAnalyticDevice, trueCarrierDbc, trueSidebandDbc } from '../calibrate/analytic-exciter.js';
-
-const cli = (args: string[]) => spawnSync('node', ['dist/cli.js', ...args], { encoding: 'utf8' });
+import { cli } from '../support/cli.js';
 
 describe('orthotone calibrate --simulate', () => {
   it('nulls both on the virtual hand-built exciter within budget and writes a valid profile and header', () => {

@@ -1,12 +1,11 @@
 // Runs the built CLI (npm test builds first) as a user would.
-import { execFileSync, spawnSync } from 'node:child_process';
+import { execFileSync } from 'node:child_process';
 import { mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { evaluateBranches, suppressionFromResponse, validateNetwork } from '../../src/design/network.js';
-
-const cli = (args: string[]) => spawnSync('node', ['dist/cli.js', ...args], { encoding: 'utf8' });
+import { cli } from '../support/cli.js';
 
 /** Worst suppression over [lo, hi] by a plain dense sweep of the document's coefficients. */
 function sweepWorst(doc: unknown, lo: number, hi: number): number {

@@ -1,29 +1,18 @@
 // Runs the built CLI (npm test builds first) as a user would: WAV files in, table or JSON out.
-import { spawnSync } from 'node:child_process';
-import { mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import * as wavefileNs from 'wavefile';
+import { cli, writeTestWav } from '../support/cli.js';
 
-type WaveFileCtor = new () => {
-  fromScratch(c: number, sr: number, d: string, s: unknown): void;
-  toBuffer(): Uint8Array;
-};
-const ns = wavefileNs as unknown as { WaveFile?: WaveFileCtor; default?: { WaveFile?: WaveFileCtor } };
-const WaveFile = (ns.WaveFile ?? ns.default?.WaveFile) as WaveFileCtor;
-
-const cli = (args: string[]) => spawnSync('node', ['dist/cli.js', ...args], { encoding: 'utf8' });
 const dir = mkdtempSync(join(tmpdir(), 'orthotone-measure-'));
 const fs = 48000;
 
 function wav(name: string, channels: Float64Array[], depth = '32f'): string {
-  const w = new WaveFile();
   const data =
     depth === '16' ? channels.map((c) => Int16Array.from(c, (x) => Math.round(x * 32767))) : channels;
-  w.fromScratch(channels.length, fs, depth, channels.length === 1 ? data[0] : data);
   const p = join(dir, name);
-  writeFileSync(p, w.toBuffer());
+  writeTestWav(p, data, fs, depth);
   return p;
 }
 

@@ -1,21 +1,13 @@
 // Runs the built CLI as a user would: an I/Q file through the virtual exciter, read back by measure.
-import { spawnSync } from 'node:child_process';
-import { mkdtempSync, writeFileSync } from 'node:fs';
+import { mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import * as wavefileNs from 'wavefile';
 import { imageRejectionDb } from '../../src/core/units.js';
 import { homebrewBenchDevice } from '../../src/simulate/model.js';
 import { predictedSuppression } from '../../src/simulate/response.js';
+import { cli, writeTestWav } from '../support/cli.js';
 
-type WaveFileCtor = new () => {
-  fromScratch(c: number, sr: number, d: string, s: unknown): void;
-  toBuffer(): Uint8Array;
-};
-const ns = wavefileNs as unknown as { WaveFile?: WaveFileCtor; default?: { WaveFile?: WaveFileCtor } };
-const WaveFile = (ns.WaveFile ?? ns.default?.WaveFile) as WaveFileCtor;
-const cli = (args: string[]) => spawnSync('node', ['dist/cli.js', ...args], { encoding: 'utf8' });
 const dir = mkdtempSync(join(tmpdir(), 'orthotone-simulate-'));
 const fs = 48000;
 
@@ -26,10 +18,8 @@ function toneFile(name: string, hz: number, a: number, len = 65536 + 4096): stri
     i[n] = a * Math.cos((2 * Math.PI * hz * n) / fs);
     q[n] = a * Math.sin((2 * Math.PI * hz * n) / fs);
   }
-  const w = new WaveFile();
-  w.fromScratch(2, fs, '32f', [i, q]);
   const p = join(dir, name);
-  writeFileSync(p, w.toBuffer());
+  writeTestWav(p, [i, q], fs);
   return p;
 }
 
@@ -59,10 +49,8 @@ describe('orthotone simulate', () => {
       i[n] = 0.5 * Math.cos((2 * Math.PI * 700 * n) / fs);
       q[n] = 0.5 * g * Math.sin((2 * Math.PI * 700 * n) / fs);
     }
-    const w = new WaveFile();
-    w.fromScratch(2, fs, '32f', [i, q]);
     const inp = join(dir, 'imb.wav');
-    writeFileSync(inp, w.toBuffer());
+    writeTestWav(inp, [i, q], fs);
     const out = join(dir, 'audio.wav');
     expect(cli(['simulate', inp, '--out', out, '--preset', 'ideal', '--offset', '1500']).status).toBe(0);
     const m = JSON.parse(

@@ -1,4 +1,3 @@
-import { readFileSync } from 'node:fs';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { isOrthotoneError, type OrthotoneError } from '../../src/core/errors.js';
@@ -16,22 +15,11 @@ import {
   phaseErrorDegFromResponse,
   suppressionFromResponse,
 } from '../../src/design/network.js';
+import { loadRemezFixture } from '../support/remez-fixture.js';
 
-interface Case {
-  name: string;
-  numtaps: number;
-  bands: number[];
-  type: string;
-  fs: number;
-  converged: boolean;
-  taps: number[];
-  rippleDense?: number;
-}
 // [C] scipy 1.10.1 scipy.signal.remez, made by tests/fixtures/scipy/gen_remez_hilbert.py (command in
 // tests/fixtures/scipy/README.md). scipy's Hilbert sign is the opposite of the textbook one.
-const fixture = JSON.parse(
-  readFileSync(new URL('../fixtures/scipy/remez_hilbert.json', import.meta.url), 'utf8'),
-) as { cases: Case[] };
+const fixture = loadRemezFixture();
 
 /** A FirNetwork-shaped document for the independent evaluator of src/design/network.ts. */
 function asNetwork(taps: number[], sampleRate: number, band: [number, number]): FirNetwork {

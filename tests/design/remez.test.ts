@@ -1,26 +1,12 @@
-import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { isOrthotoneError, type OrthotoneError } from '../../src/core/errors.js';
 import { evaluateHilbertFir } from '../../src/design/hilbert-fir.js';
 import { remez, remezExchange } from '../../src/design/remez.js';
+import { loadRemezFixture } from '../support/remez-fixture.js';
 
-interface Case {
-  name: string;
-  numtaps: number;
-  bands: number[];
-  desired: number[];
-  weight?: number[];
-  type: 'bandpass' | 'differentiator' | 'hilbert';
-  fs: number;
-  converged: boolean;
-  taps: number[];
-  rippleDense?: number;
-}
 // [C] scipy 1.10.1 scipy.signal.remez, made by tests/fixtures/scipy/gen_remez_hilbert.py (command in
 // tests/fixtures/scipy/README.md).
-const fixture = JSON.parse(
-  readFileSync(new URL('../fixtures/scipy/remez_hilbert.json', import.meta.url), 'utf8'),
-) as { scipy: string; cases: Case[] };
+const fixture = loadRemezFixture();
 
 /** Amplitude of a type III filter (scipy sign: A = 2·Σ h[c−n]·sin(nω)) at f cycles/sample. */
 function hilbertAmplitude(taps: ArrayLike<number>, f: number): number {

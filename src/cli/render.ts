@@ -9,6 +9,7 @@ import { cautionsText } from '../core/cautions.js';
 import { OrthotoneError } from '../core/errors.js';
 import type { Trims } from '../core/trims.js';
 import { validateTrims } from '../core/trims.js';
+import { ampToDb, dbToAmp, powToDb } from '../core/units.js';
 import { designNetwork } from '../design/design-network.js';
 import type { Network } from '../design/network.js';
 import { parseNetworkJson } from '../export/network-json.js';
@@ -81,7 +82,6 @@ function complexToneAmplitude(
   return Math.hypot(re, im) / sw;
 }
 
-const db = (x: number): number => 20 * Math.log10(x);
 const dbText = (x: number, digits = 2): string =>
   Number.isFinite(x) ? fixed(x, digits) : x > 0 ? 'inf' : '-inf';
 
@@ -258,7 +258,7 @@ export async function run(argv: string[]): Promise<number> {
     const level = numberOpt('level', v.level);
     if (level !== undefined) {
       if (peak === 0) throw new UsageError(`${v.input as string} is silent: --level cannot scale it`);
-      const g = 10 ** (level / 20) / peak;
+      const g = dbToAmp(level) / peak;
       for (let k = 0; k < x.length; k++) x[k]! *= g;
       pow *= g * g;
       peak *= g;
@@ -266,7 +266,7 @@ export async function run(argv: string[]): Promise<number> {
     levels = {
       toneDbfs: [],
       pepDbfs: Number.NaN,
-      rmsDbfs: 10 * Math.log10((2 * pow) / Math.max(1, x.length)),
+      rmsDbfs: powToDb((2 * pow) / Math.max(1, x.length)),
       peak,
     };
     frames = x.length;
@@ -308,7 +308,7 @@ export async function run(argv: string[]): Promise<number> {
     powI += a * a;
     powQ += b * b;
   }
-  const rmsDbfs = (p: number) => 10 * Math.log10((2 * p) / Math.max(1, frames));
+  const rmsDbfs = (p: number) => powToDb((2 * p) / Math.max(1, frames));
   const tones =
     spec?.kind === 'tone' ? [spec.frequencyHz] : spec?.kind === 'two-tone' ? spec.frequenciesHz : [];
   // Skip the switch-on transient (network and trim delays, several times over).
@@ -320,19 +320,19 @@ export async function run(argv: string[]): Promise<number> {
     const image = nRead > 256 ? complexToneAmplitude(i, q, settle, nRead, -sign * f, fs) : Number.NaN;
     return {
       frequencyHz: f,
-      wantedDbfs: db(wanted),
-      unwantedDbc: db(image / wanted),
+      wantedDbfs: ampToDb(wanted),
+      unwantedDbc: ampToDb(image / wanted),
       predictedSuppressionDb: predictSuppressionDb(net, f, trims, sideband),
-      predictedCarrierDbc: predictCarrierDbc(trims, 10 ** ((levels.toneDbfs[tones.indexOf(f)] ?? 0) / 20)),
+      predictedCarrierDbc: predictCarrierDbc(trims, dbToAmp(levels.toneDbfs[tones.indexOf(f)] ?? 0)),
     };
   });
-  const carrierDbfs = nRead > 256 ? db(complexToneAmplitude(i, q, settle, nRead, 0, fs)) : Number.NaN;
+  const carrierDbfs = nRead > 256 ? ampToDb(complexToneAmplitude(i, q, settle, nRead, 0, fs)) : Number.NaN;
 
   const warnings: string[] = [];
   if (predictedPeaks.overFullScale || stats.overFullScale > 0) {
     warnings.push(
       `WARNING: signal plus trims exceed full scale: predicted peak ${dbText(predictedPeaks.peakDbfs)} dBFS, ` +
-        `${stats.overFullScale} output samples over full scale (peak ${dbText(db(stats.peak))} dBFS). ` +
+        `${stats.overFullScale} output samples over full scale (peak ${dbText(ampToDb(stats.peak))} dBFS). ` +
         (encoding === 'float32'
           ? 'The float file keeps them, but a DAC or player will clip: lower --level or the gain trim.'
           : `${report.clippedSamples} samples were clipped in the ${encoding} file: lower --level or the gain trim.`),
@@ -358,9 +358,9 @@ export async function run(argv: string[]): Promise<number> {
     sideband,
     predictedPeaks,
     realised: {
-      peakIDbfs: db(peakI),
-      peakQDbfs: db(peakQ),
-      envelopePeakDbfs: db(peakEnv),
+      peakIDbfs: ampToDb(peakI),
+      peakQDbfs: ampToDb(peakQ),
+      envelopePeakDbfs: ampToDb(peakEnv),
       rmsIDbfs: rmsDbfs(powI),
       rmsQDbfs: rmsDbfs(powQ),
       carrierDbfs,
@@ -386,7 +386,7 @@ export async function run(argv: string[]): Promise<number> {
       ],
       [
         'realised',
-        `I peak ${dbText(db(peakI))} dBFS, Q peak ${dbText(db(peakQ))} dBFS, envelope peak (PEP) ${dbText(db(peakEnv))} dBFS, RMS I ${dbText(rmsDbfs(powI))} / Q ${dbText(rmsDbfs(powQ))} dBFS`,
+        `I peak ${dbText(ampToDb(peakI))} dBFS, Q peak ${dbText(ampToDb(peakQ))} dBFS, envelope peak (PEP) ${dbText(ampToDb(peakEnv))} dBFS, RMS I ${dbText(rmsDbfs(powI))} / Q ${dbText(rmsDbfs(powQ))} dBFS`,
       ],
     ];
     for (const t of toneRows) {
@@ -413,7 +413,8 @@ export async function run(argv: string[]): Promise<number> {
 }
 
 function describeSignal(spec: SignalSpec | null, l: SignalLevels, input?: string): string {
-  if (!spec) return `input ${input}, mono, peak ${dbText(db(l.peak))} dBFS, RMS ${dbText(l.rmsDbfs)} dBFS`;
+  if (!spec)
+    return `input ${input}, mono, peak ${dbText(ampToDb(l.peak))} dBFS, RMS ${dbText(l.rmsDbfs)} dBFS`;
   switch (spec.kind) {
     case 'tone':
       return `tone ${spec.frequencyHz} Hz at ${dbText(l.toneDbfs[0]!)} dBFS`;

@@ -5,6 +5,7 @@
  */
 import type { Complex } from '../core/complex.js';
 import { type Trims, validateTrims, ZERO_TRIMS } from '../core/trims.js';
+import { ampToDb, dbToAmp, peakToDbfs } from '../core/units.js';
 import { requireFinite, requirePositive } from '../core/validate.js';
 import { evaluateBranches, type Network } from '../design/network.js';
 import type { Sideband } from './trim-stage.js';
@@ -27,7 +28,7 @@ export function predictSuppressionDb(
   requirePositive('frequencyHz', frequencyHz, 'Hz');
   const t = { ...ZERO_TRIMS, ...validateTrims(trims) };
   const r = evaluateBranches(net, frequencyHz);
-  const g = 10 ** (t.gainDb / 20);
+  const g = dbToAmp(t.gainDb);
   const phi = (t.phaseDeg * Math.PI) / 180;
   const s = sideband === 'lower' ? -1 : 1;
   const a = s * g * Math.cos(phi);
@@ -41,7 +42,7 @@ export function predictSuppressionDb(
   const up = Math.hypot(r.i.re - q.im, r.i.im + q.re);
   const dn = Math.hypot(r.i.re + q.im, r.i.im - q.re);
   const ratio = sideband === 'lower' ? dn / up : up / dn;
-  return 20 * Math.log10(ratio);
+  return ampToDb(ratio);
 }
 
 /**
@@ -52,7 +53,7 @@ export function predictSuppressionDb(
 export function predictCarrierDbc(trims: Partial<Trims>, toneAmplitude: number): number {
   requirePositive('toneAmplitude', toneAmplitude);
   const t = { ...ZERO_TRIMS, ...validateTrims(trims) };
-  return 20 * Math.log10(Math.hypot(t.dcI, t.dcQ) / toneAmplitude);
+  return ampToDb(Math.hypot(t.dcI, t.dcQ) / toneAmplitude);
 }
 
 /** Predicted output peaks, full-scale units. */
@@ -82,9 +83,9 @@ export function predictOutputPeaks(
 ): PredictedPeaks {
   requireFinite('envelopePeak', envelopePeak);
   const t = { ...ZERO_TRIMS, ...validateTrims(trims) };
-  const ripple = net?.kind === 'fir' ? 10 ** (Math.abs(net.predicted.maxGainErrorDb) / 20) : 1;
+  const ripple = net?.kind === 'fir' ? dbToAmp(Math.abs(net.predicted.maxGainErrorDb)) : 1;
   const i = Math.abs(envelopePeak) + Math.abs(t.dcI);
-  const q = Math.abs(envelopePeak) * ripple * 10 ** (t.gainDb / 20) + Math.abs(t.dcQ);
+  const q = Math.abs(envelopePeak) * ripple * dbToAmp(t.gainDb) + Math.abs(t.dcQ);
   const m = Math.max(i, q);
-  return { i, q, peakDbfs: 20 * Math.log10(m), overFullScale: m > 1 };
+  return { i, q, peakDbfs: peakToDbfs(m), overFullScale: m > 1 };
 }

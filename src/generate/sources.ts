@@ -13,6 +13,7 @@
  */
 import { OrthotoneError } from '../core/errors.js';
 import { createRng, type Rng } from '../core/rng.js';
+import { dbfsToPeak, peakToDbfs, powToDb } from '../core/units.js';
 import {
   requireFinite,
   requireInteger,
@@ -172,11 +173,11 @@ export function validateSignalSpec(spec: SignalSpec, sampleRate: number): Signal
 
 /** Tone amplitudes (peak, full-scale units) of a tone or two-tone spec. */
 function toneAmplitudes(spec: SignalSpec): number[] {
-  if (spec.kind === 'tone') return [10 ** (spec.levelDbfs / 20)];
+  if (spec.kind === 'tone') return [dbfsToPeak(spec.levelDbfs)];
   if (spec.kind === 'two-tone') {
     const l = spec.levelDbfs;
     const [l1, l2] = Array.isArray(l) ? l : [l, l];
-    return [10 ** (l1 / 20), 10 ** (l2 / 20)];
+    return [dbfsToPeak(l1), dbfsToPeak(l2)];
   }
   return [];
 }
@@ -187,20 +188,23 @@ function toneAmplitudes(spec: SignalSpec): number[] {
  */
 export function signalLevels(spec: SignalSpec, sampleRate: number): SignalLevels {
   validateSignalSpec(spec, sampleRate);
-  const db = (x: number) => 20 * Math.log10(x);
   if (spec.kind === 'noise') {
-    const rms = 10 ** (spec.levelDbfs / 20) / Math.SQRT2;
+    const rms = dbfsToPeak(spec.levelDbfs) / Math.SQRT2;
     return { toneDbfs: [], pepDbfs: Number.NaN, rmsDbfs: spec.levelDbfs, peak: 4.5 * rms };
   }
   if (spec.kind === 'sweep') {
-    const a = 10 ** (spec.levelDbfs / 20);
-    return { toneDbfs: [], pepDbfs: spec.levelDbfs, rmsDbfs: spec.levelDbfs, peak: a };
+    return {
+      toneDbfs: [],
+      pepDbfs: spec.levelDbfs,
+      rmsDbfs: spec.levelDbfs,
+      peak: dbfsToPeak(spec.levelDbfs),
+    };
   }
   const amps = toneAmplitudes(spec);
   const sum = amps.reduce((s, a) => s + a, 0);
   // Mean power of a sum of sines at distinct frequencies: Σ a²/2; AES17 dBFS re a full-scale sine (1/2).
   const pow = amps.reduce((s, a) => s + a * a, 0);
-  return { toneDbfs: amps.map(db), pepDbfs: db(sum), rmsDbfs: 10 * Math.log10(pow), peak: sum };
+  return { toneDbfs: amps.map(peakToDbfs), pepDbfs: peakToDbfs(sum), rmsDbfs: powToDb(pow), peak: sum };
 }
 
 /**
@@ -351,7 +355,7 @@ function fillCore(
   const spec = c.spec;
   const len = (out ?? outI)!.length;
   if (spec.kind === 'noise') {
-    const sigma = 10 ** (spec.levelDbfs / 20) / Math.SQRT2;
+    const sigma = dbfsToPeak(spec.levelDbfs) / Math.SQRT2;
     if (!c.bp) {
       for (let j = 0; j < len; j++) {
         const v = sigma * normal(c);
@@ -389,7 +393,7 @@ function fillCore(
     }
     return;
   }
-  const amps = spec.kind === 'sweep' ? [10 ** (spec.levelDbfs / 20)] : toneAmplitudes(spec);
+  const amps = spec.kind === 'sweep' ? [dbfsToPeak(spec.levelDbfs)] : toneAmplitudes(spec);
   const a0 = amps[0]!;
   const a1 = amps[1] ?? 0;
   const f0 = spec.kind === 'tone' ? spec.frequencyHz : spec.kind === 'two-tone' ? spec.frequenciesHz[0] : 0;

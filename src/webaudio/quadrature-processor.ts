@@ -114,7 +114,6 @@ export function defineQuadratureProcessor<B extends ProcessorBase>(
     private src2 = new Float32Array(128);
     private fadeI = new Float32Array(128);
     private fadeQ = new Float32Array(128);
-    private spareI = new Float32Array(128);
     private spareQ = new Float32Array(128);
 
     constructor(options?: { processorOptions?: unknown }) {
@@ -220,7 +219,6 @@ export function defineQuadratureProcessor<B extends ProcessorBase>(
       this.src2 = new Float32Array(n);
       this.fadeI = new Float32Array(n);
       this.fadeQ = new Float32Array(n);
-      this.spareI = new Float32Array(n);
       this.spareQ = new Float32Array(n);
     }
 

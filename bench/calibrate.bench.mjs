@@ -133,6 +133,7 @@ async function compare(devs) {
       const at16 = [];
       const to60 = [];
       const used16 = [];
+      let worse16 = 0;
       const t0 = performance.now();
       for (const [i, dev] of devs.entries()) {
         const r10 = await runMethod(m, qty, dev, 10, 1000 + i);
@@ -141,6 +142,7 @@ async function compare(devs) {
         at10.push(r10.final);
         at16.push(r16.final);
         used16.push(r16.used);
+        if (r16.final < r16.startTrue - 0.01) worse16++;
         to60.push(readingsTo(r40.curve, 60));
       }
       const ms = (performance.now() - t0) / (devs.length * 3);
@@ -150,6 +152,7 @@ async function compare(devs) {
         medianDbAt16: round(q(at16, 0.5)),
         p90DbAt16: round(q(at16, 0.1)),
         worstDbAt16: round(q(at16, 0)),
+        worseThanStartAt16: worse16,
         medianReadingsUsedOf16: q(used16, 0.5),
         readingsTo60DbP90: q(to60, 0.9),
         readingsTo60DbMedian: q(to60, 0.5),
@@ -166,7 +169,7 @@ async function compare(devs) {
       medianDbAt10_seekerMinusCd: round(s.medianDbAt10 - out[qty]['coordinate-descent'].medianDbAt10),
       medianDbAt10_seekerMinusNm: round(s.medianDbAt10 - out[qty]['nelder-mead'].medianDbAt10),
     };
-    out[qty].pass = s.medianDbAt10 >= 70 && s.p90DbAt16 >= 65;
+    out[qty].pass = s.medianDbAt10 >= 70 && s.p90DbAt16 >= 65 && s.worseThanStartAt16 === 0;
   }
   return out;
 }
@@ -183,7 +186,12 @@ async function outliers(devs, opts) {
     }
     res[qty] = { medianDbAt16: round(q(at16, 0.5)), p90DbAt16: round(q(at16, 0.1)), worseThanStart };
   }
-  res.pass = res.sideband.medianDbAt16 >= 60 && res.carrier.medianDbAt16 >= 60;
+  // Issue 5: still ≥ 60 dB in the median within 16 readings, and never worse than the start.
+  res.pass =
+    res.sideband.medianDbAt16 >= 60 &&
+    res.carrier.medianDbAt16 >= 60 &&
+    res.sideband.worseThanStart === 0 &&
+    res.carrier.worseThanStart === 0;
   return res;
 }
 

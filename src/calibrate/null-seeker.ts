@@ -11,7 +11,12 @@
  * with the fit's own uncertainty toward the floor radius √(N/c); every fit uses every reading
  * (robustly weighted). It stops when the fit says the target is met, when the null is located
  * well inside the floor radius (no further reading could show an improvement), at the resolution
- * of quantised trims, or at the reading budget. The best setting so far is always available.
+ * of quantised trims, or at the reading budget. The best setting so far is always available, and
+ * is never a setting that the evidence does not show to beat the start: a candidate must beat the
+ * start in the robust fit and in readings the fit kept (see `best()`); when that evidence is
+ * missing, the last reading of the budget confirms the candidate (or re-reads the start), and
+ * failing that the start is returned. A calibration therefore never ends worse than it began, to
+ * within what readings above the floor can show.
  * References: circle intersection from level readings, Hoppenstein, TI SLOA313 (2021); the fitted
  * bowl, its priors and stop rules are this library's own (DESIGN.md §6, REFERENCES.md §6).
  */
@@ -108,6 +113,8 @@ export interface SeekerReading {
   role: ReadingRole;
   /** Robust weight in the latest fit (0 = treated as an outlier; undefined = not fitted). */
   weight?: number;
+  /** Reading minus the latest fit there, dB (undefined = not fitted). */
+  residualDb?: number;
 }
 
 /** Whether a trim axis was seen to move the reading. */
@@ -131,16 +138,23 @@ export interface SeekerEstimate {
   rmsDb: number;
 }
 
-/** The best setting so far. */
+/**
+ * The best setting so far: a setting the evidence shows to be better than the start (see
+ * {@link NullSeeker.best}), or the start itself.
+ */
 export interface SeekerBest {
   point: [number, number];
   /**
    * Level there, dB: when `source` is `fit`, the fitted level (floor included) plus the excess the
-   * null's remaining uncertainty is expected to add; else the reading.
+   * null's remaining uncertainty is expected to add; `reading`: the reading there; `start`: the
+   * start's level (its reading, or the fit's level there when that reading was rejected).
    */
   levelDb: number;
-  /** `fit`: the fitted null (trusted); `reading`: the lowest reading. */
-  source: 'fit' | 'reading';
+  /**
+   * `fit`: the fitted null; `reading`: a setting that was read; `start`: nothing was shown to
+   * beat the start.
+   */
+  source: 'fit' | 'reading' | 'start';
 }
 
 /** Saved seeker state (JSON-serialisable): the options and the readings. */
@@ -169,6 +183,17 @@ export interface NullSeeker {
   readonly stopReason: StopReason | undefined;
   /** Number of readings taken (failed ones included). */
   readonly count: number;
+  /**
+   * The best setting so far. A setting other than the start is returned only when the evidence
+   * shows it beats the start (the seeker's guarantee that a calibration never ends worse than it
+   * began): the fitted level there is below the fitted level at the start by 3σ, and readings that
+   * the fit did not reject bound its true level below the start's — each reading r at distance d
+   * bounds the true amplitude there by `√P_r + √c·d` (the image or carrier amplitude is a norm of
+   * the offset from the null; c the bowl's largest curvature), read 2σ high, against the start
+   * read 2σ low less the floor. Two such readings, or one that the over-determined fit agrees
+   * with, are enough; otherwise the start is returned (and the seeker spends its last reading to
+   * confirm the candidate).
+   */
   best(): SeekerBest;
   estimate(): SeekerEstimate | undefined;
   readings(): readonly SeekerReading[];
@@ -351,6 +376,7 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
     fit = fitNullSurface(pts, { noiseDb: sigma, priors: pr, robust: o.robust, starts });
     src.forEach((r, i) => {
       r.weight = fit!.weights[i];
+      r.residualDb = fit!.residualsDb[i];
     });
   };
 
@@ -381,24 +407,117 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
     if (pts.length < fit.freeParameters - 1 || pts.length < 3) return false;
     if (!(e.rmsDb <= Math.max(3 * sigma, 1.5))) return false;
     if (!inBounds(e.centre)) return false;
+    // A fitted floor within 10 dB of the start explains the readings by a flat misfit more often
+    // than it describes the device (see plan()): such a fit says nothing reliable about the start.
+    if (e.floorDb > startLevel() - 10) return false;
     // No wild extrapolation: the null must lie within the distance the lowest reading implies.
-    const lowest = [...pts].sort((a, b) => a.db - b.db)[0]!;
+    // (A reading the fit rejected, high or low, is no evidence either way.)
+    const { pts: all } = fitPoints();
+    const kept = all.filter((_, i) => fit!.weights[i]! > 0);
+    const lowest = (kept.length > 0 ? kept : all).sort((a, b) => a.db - b.db)[0]!;
     const d = Math.hypot(e.centre[0] - lowest.x, e.centre[1] - lowest.y);
     const implied = Math.sqrt(Math.max(dbToPow(lowest.db + 3 * sigma), 0) / Math.exp(e.surface.logC));
     const spread = Math.sqrt(e.centreCov[0] + e.centreCov[2]);
     if (d > 2 * implied + 3 * spread + o.step[0] + o.step[1]) return false;
-    // The prediction at the null must not be worse than the lowest reading, and must be clearly
-    // better than the start (otherwise the start, or the lowest reading, is the safer answer).
+    // The prediction at the null must not be worse than the lowest kept reading (allowing for that
+    // being the lowest of several noisy readings at the floor), and must be clearly better than
+    // the start (otherwise the start, or the lowest reading, is the safer answer).
     const predicted = surfaceDb(e.surface, e.centre[0], e.centre[1]);
-    return predicted <= lowest.db + 2 * sigma && predicted <= startDb - 3 * sigma;
+    return predicted <= lowest.db + 3 * sigma && predicted <= startLevel() - 3 * sigma;
   };
 
   const inBounds = (p: readonly [number, number]): boolean =>
     p[0] >= o.bounds[0][0] && p[0] <= o.bounds[0][1] && p[1] >= o.bounds[1][0] && p[1] <= o.bounds[1][1];
 
-  const best = (): SeekerBest => {
+  const samePoint = (a: readonly [number, number], b: readonly [number, number]): boolean =>
+    a[0] === b[0] && a[1] === b[1];
+
+  /**
+   * The start's level, dB: the lowest of its readings that the fit kept (the cautious choice when
+   * a repeat disagrees); the fit's level there when the fit rejected them all (a start read 10 dB
+   * high would otherwise make anything look better).
+   */
+  const startLevel = (): number => {
+    const at = okReadings().filter((r) => samePoint(r.point, o.start));
+    const kept = at.filter((r) => (r.weight ?? 1) > 0);
+    if (kept.length > 0) return Math.min(...kept.map((r) => r.db));
+    if (fit) return surfaceDb(fit.surface, o.start[0], o.start[1]);
+    return at.length > 0 ? Math.min(...at.map((r) => r.db)) : startDb;
+  };
+
+  /** The floor power to discount from the start's level: the larger of the given and fitted floors. */
+  const floorPower = (): number => {
+    const given = o.floorDb !== undefined ? dbToPow(o.floorDb) : 0;
+    return Math.max(given, fit ? Math.exp(fit.surface.logN) : 0);
+  };
+
+  /**
+   * An upper bound on the bowl's curvature along any direction: the fitted form's largest
+   * eigenvalue, with the known curvature's spread (two standard deviations) or, when the
+   * curvature is estimated, a factor 2. Infinite before a fit of unknown curvature.
+   */
+  const curvatureBound = (): number => {
+    const known = o.model === 'known-curvature';
+    if (!fit) return known ? o.curvature * Math.exp(2 * o.curvatureSpread) : Number.POSITIVE_INFINITY;
+    const sf = fit.surface;
+    const lmax = Math.cosh(sf.s) + Math.sqrt(Math.sinh(sf.s) ** 2 + sf.k * sf.k);
+    const c = Math.exp(sf.logC) * lmax;
+    return known ? Math.max(c, o.curvature) * Math.exp(2 * o.curvatureSpread) : 2 * c;
+  };
+
+  /** Whether the evidence shows `c` beats the start (see {@link NullSeeker.best}). */
+  const confirmed = (c: readonly [number, number]): boolean => {
+    if (samePoint(c, o.start)) return true;
+    const low = dbToPow(startLevel() - 2 * sigma) - floorPower();
+    if (!(low > 0)) return false;
+    const useFit = fit !== undefined && trusted();
+    if (useFit) {
+      const s0 = surfaceDb(fit!.surface, o.start[0], o.start[1]);
+      if (!(surfaceDb(fit!.surface, c[0], c[1]) <= s0 - 3 * sigma)) return false;
+    }
+    const support = supportOf(c, low);
+    // Without a trusted fit the start's level rests on its reading alone: an outlier there would
+    // make anything look better, so a second reading of the start must agree.
+    if (!useFit && startReadsKept() < 2) return false;
+    // One supporting reading is enough when the start's own reading stands and an over-determined
+    // fit agrees; otherwise two.
+    return support >= 2 || (support >= 1 && useFit && startReadsKept() >= 1 && overDetermined());
+  };
+
+  /** Whether the data over-determine the fit (two readings more than its loosely held parameters). */
+  const overDetermined = (): boolean => {
+    if (!fit) return false;
+    const pr = priors();
+    const loose = [pr.cx, pr.cy, pr.logC, pr.logN, pr.s, pr.k].filter((q) => q.sd > 0.5).length;
+    return fitPoints().pts.length >= loose + 2;
+  };
+
+  /**
+   * How many kept readings bound the true level at `c` below `low` (power): reading r at distance
+   * d bounds the amplitude there by √P_r + √c_max·d (P_r read 2σ high).
+   */
+  const supportOf = (c: readonly [number, number], low: number): number => {
+    const root = Math.sqrt(curvatureBound());
+    let support = 0;
+    for (const r of okReadings()) {
+      if (samePoint(r.point, o.start)) continue;
+      if ((r.weight ?? 1) < 0.5) continue; // rejected or down-weighted by the fit
+      if (r.residualDb !== undefined && r.residualDb < -3 * sigma) continue; // implausibly low
+      const d = Math.hypot(r.point[0] - c[0], r.point[1] - c[1]);
+      const bound = Math.sqrt(dbToPow(r.db + 2 * sigma)) + (d > 0 ? root * d : 0);
+      if (bound * bound <= low) support++;
+    }
+    return support;
+  };
+
+  /** Number of the start's readings the fit kept. */
+  const startReadsKept = (): number =>
+    okReadings().filter((r) => samePoint(r.point, o.start) && (r.weight ?? 1) > 0).length;
+
+  /** The setting the plan works around: the trusted fitted null, else the lowest kept reading. */
+  const provisional = (): SeekerBest => {
     const ok = okReadings();
-    if (ok.length === 0) return { point: [...o.start], levelDb: Number.NaN, source: 'reading' };
+    if (ok.length === 0) return { point: [...o.start], levelDb: Number.NaN, source: 'start' };
     if (trusted()) {
       const e = estimate()!;
       const p: [number, number] = [clampAxis(0, e.centre[0]), clampAxis(1, e.centre[1])];
@@ -411,7 +530,24 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
     let b = ok[0]!;
     for (const r of ok) if (r.db < b.db && (r.weight ?? 1) > 0) b = r;
     if (b.db > ok[0]!.db - 2 * sigma) b = ok[0]!;
-    return { point: [...b.point], levelDb: b.db, source: 'reading' };
+    return samePoint(b.point, o.start)
+      ? { point: [...o.start], levelDb: startLevel(), source: 'start' }
+      : { point: [...b.point], levelDb: b.db, source: 'reading' };
+  };
+
+  const best = (): SeekerBest => {
+    const ok = okReadings();
+    if (ok.length === 0) return { point: [...o.start], levelDb: Number.NaN, source: 'start' };
+    const p = provisional();
+    if (p.source !== 'start' && confirmed(p.point)) return p;
+    // The provisional choice is not shown to beat the start: the lowest kept readings that are.
+    const kept = ok
+      .filter((r) => (r.weight ?? 1) > 0 && !samePoint(r.point, o.start) && !samePoint(r.point, p.point))
+      .sort((a, b) => a.db - b.db)
+      .slice(0, 4);
+    for (const r of kept)
+      if (confirmed(r.point)) return { point: [...r.point], levelDb: r.db, source: 'reading' };
+    return { point: [...o.start], levelDb: startLevel(), source: 'start' };
   };
 
   const rounded = (p: [number, number]): [number, number] => [clampAxis(0, p[0]), clampAxis(1, p[1])];
@@ -491,6 +627,7 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
       pendingProbe = lastProbe;
       return;
     }
+    if (o.maxReadings - readings.length === 1 && confirmLast()) return;
     const p0 = o.start;
     if (queue.length > 0) {
       const pr = queue[0]!;
@@ -512,7 +649,7 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
       return;
     }
     const e = estimate();
-    const centre = e && trusted() ? e.centre : best().point;
+    const centre = e && trusted() ? e.centre : provisional().point;
     const target = rounded([centre[0], centre[1]]);
     const remaining = o.maxReadings - readings.length;
     const spread = e ? Math.sqrt(e.centreCov[0] + e.centreCov[2]) : 0;
@@ -558,6 +695,25 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
     }
     pending = p;
     pendingRole = 'probe';
+  };
+
+  /**
+   * The last reading is spent where it decides the result when the candidate is not yet shown to
+   * beat the start: on the candidate itself or, without a trusted fit, when readings already
+   * support it, on the start again (its single reading is then all that says how good it was).
+   * @returns true when it planned that reading.
+   */
+  const confirmLast = (): boolean => {
+    const e = estimate();
+    const useFit = e !== undefined && trusted();
+    const centre = useFit ? e.centre : provisional().point;
+    const target = rounded([centre[0], centre[1]]);
+    if (samePoint(target, o.start) || confirmed(target)) return false;
+    const low = dbToPow(startLevel() - 2 * sigma) - floorPower();
+    const needStart = !useFit && startReadsKept() < 2 && low > 0 && supportOf(target, low) >= 2;
+    pending = needStart ? [...o.start] : target;
+    pendingRole = needStart ? 'probe' : 'jump';
+    return true;
   };
 
   let lastProbe: PlannedProbe | undefined;

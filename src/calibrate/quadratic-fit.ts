@@ -122,13 +122,17 @@ const fromVec = (v: Float64Array): NullSurface => ({
 type Loss = 'l2' | 'huber' | 'tukey';
 
 // Residuals are model minus reading, in σ. Outliers in level readings come mostly from added power
-// (interference, a transient, a mis-set range), so they read high: e < 0. Tukey's biweight, which
-// can reject a reading outright, is applied to those only; a reading below the model is never
-// rejected (Huber-weighted), since a floor cannot lie above what was read.
+// (interference, a transient, a mis-set range) and read high (e < 0), but a reading can also read
+// low (a range or reference level mis-set, a mistyped digit, a dropout): a low outlier is the more
+// dangerous one, since it looks like a null and pulls the fit to it. Tukey's biweight therefore
+// applies on both sides. A reading cannot truly lie below the floor of the fitted surface (the
+// floor bounds how low a true reading can be), nor below the bowl between it and the fitted null;
+// one far below both is rejected like one far above, unless moving the null or lowering the floor
+// (both free in the fit, started from Huber weights) explains it at less cost.
 function rho(e: number, loss: Loss): number {
   const a = Math.abs(e);
   if (loss === 'l2') return 0.5 * e * e;
-  if (loss === 'huber' || e > 0) return a <= HUBER ? 0.5 * e * e : HUBER * a - 0.5 * HUBER * HUBER;
+  if (loss === 'huber') return a <= HUBER ? 0.5 * e * e : HUBER * a - 0.5 * HUBER * HUBER;
   if (a >= TUKEY) return (TUKEY * TUKEY) / 6;
   const u = 1 - (e / TUKEY) ** 2;
   return ((TUKEY * TUKEY) / 6) * (1 - u * u * u);
@@ -137,7 +141,7 @@ function rho(e: number, loss: Loss): number {
 function weight(e: number, loss: Loss): number {
   const a = Math.abs(e);
   if (loss === 'l2') return 1;
-  if (loss === 'huber' || e > 0) return a <= HUBER ? 1 : HUBER / a;
+  if (loss === 'huber') return a <= HUBER ? 1 : HUBER / a;
   if (a >= TUKEY) return 0;
   const u = 1 - (e / TUKEY) ** 2;
   return u * u;

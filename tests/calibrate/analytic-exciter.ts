@@ -53,17 +53,30 @@ export function trueCarrierDbc(dev: AnalyticDevice, t: Pick<Trims, 'dcI' | 'dcQ'
   return 20 * Math.log10(Math.hypot(x, y) / dev.toneAmplitude);
 }
 
-/** A noisy analyzer over a device: floor (dBc), noise (dB), outliers. */
+/**
+ * A noisy analyzer over a device: floor (dBc), noise (dB), outliers of `outlierDb` with probability
+ * `outlierRate`, all high (`outlierSign` 'high', the default) or high or low with equal odds ('either').
+ */
 export function analyzer(
   dev: AnalyticDevice,
-  opts: { seed: number; floorDbc?: number; noiseDb?: number; outlierRate?: number; outlierDb?: number },
+  opts: {
+    seed: number;
+    floorDbc?: number;
+    noiseDb?: number;
+    outlierRate?: number;
+    outlierDb?: number;
+    outlierSign?: 'high' | 'either';
+  },
 ): { sideband(t: Trims): number; carrier(t: Trims): number; calls: number } {
   const rng = createRng(opts.seed);
   const floor = 10 ** ((opts.floorDbc ?? -70) / 10);
   const noise = opts.noiseDb ?? 0.5;
   const read = (db: number): number => {
     let v = 10 * Math.log10(10 ** (db / 10) + floor) + noise * rng.normal();
-    if (rng.uniform() < (opts.outlierRate ?? 0)) v += opts.outlierDb ?? 10;
+    if (rng.uniform() < (opts.outlierRate ?? 0)) {
+      const sign = opts.outlierSign === 'either' && rng.uniform() < 0.5 ? -1 : 1;
+      v += sign * (opts.outlierDb ?? 10);
+    }
     return v;
   };
   const a = {

@@ -67,6 +67,30 @@ describe('ask/tell seeker', () => {
     expect(s.count).toBe(5);
     expect(s.next()).toEqual(before);
   });
+  it('a single reading far below the start is not taken on trust: best() stays at the start', () => {
+    // One reading 20 dB below the start, with nothing near it to agree, may be a low outlier
+    // (a mis-set reference level, a mistyped digit): the start is kept until the evidence is there.
+    const s = createNullSeeker({ model: 'known-curvature', curvature: 0.25, maxReadings: 16 });
+    s.tell(s.next()!, -40);
+    const probe = s.next()!;
+    s.tell(probe, -60);
+    const b = s.best();
+    expect(b.point).toEqual([0, 0]);
+    expect(b.source).toBe('start');
+  });
+  it('spends its last reading confirming an unconfirmed candidate, and keeps the start when it fails', () => {
+    // A bowl read without noise whose first probe read 12 dB low (an outlier): with a budget of
+    // three, the third reading goes to the candidate, which reads no better than the start.
+    const b = bowl({ centre: [0.04, 0.03], c: 0.25, seed: 9, noiseDb: 0 });
+    const s = createNullSeeker({ model: 'known-curvature', curvature: 0.25, maxReadings: 3 });
+    s.tell(s.next()!, b.read(s.next()!));
+    const probe = s.next()!;
+    s.tell(probe, b.read(probe) - 12);
+    const last = s.next()!;
+    expect(last).toEqual(probe);
+    s.tell(last, b.read(last));
+    expect(s.best().point).toEqual([0, 0]);
+  });
   it('rejects bad options naming them', () => {
     try {
       createNullSeeker({ noiseDb: -1 });

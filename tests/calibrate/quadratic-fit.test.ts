@@ -123,6 +123,23 @@ describe('fitNullSurface', () => {
     expect(f.weights[3]).toBe(0);
     expect(Math.hypot(f.surface.cx - 0.01, f.surface.cy + 0.02)).toBeLessThan(2e-4);
   });
+  it('rejects a reading 10 dB low on the wall of the bowl (a low outlier looks like a null)', () => {
+    // The floor and the bowl bound how low a true reading can be: a reading far below both is as
+    // suspect as one far above, and must not pull the null to itself.
+    const s = surface({});
+    const rng = createRng(8);
+    const pts = ring(s, 10, 0.004, 0.01, -0.02).map((p) => ({ ...p, db: p.db + 0.3 * rng.normal() }));
+    pts[6] = { ...pts[6]!, db: pts[6]!.db - 10 };
+    const f = fitNullSurface(pts, {
+      noiseDb: 0.3,
+      priors: { ...loosePriors, logC: { mean: Math.log(0.25), sd: 0.1 } },
+      robust: true,
+      starts: [surface({ cx: 0.0105, cy: -0.0195 })],
+    });
+    expect(f.weights[6]).toBe(0);
+    expect(f.residualsDb[6]).toBeLessThan(-8);
+    expect(Math.hypot(f.surface.cx - 0.01, f.surface.cy + 0.02)).toBeLessThan(2e-4);
+  });
   it('a plain least-squares fit is pulled by the same outlier', () => {
     const s = surface({});
     const pts = ring(s, 10, 0.004, 0.01, -0.02);

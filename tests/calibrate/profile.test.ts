@@ -10,8 +10,8 @@ import {
   profileToJson,
   validateProfile,
 } from '../../src/calibrate/profile.js';
-import { isOrthotoneError } from '../../src/core/errors.js';
 import { profileToCHeader } from '../../src/export/profile-header.js';
+import { expectOrthotoneError } from '../support/errors.js';
 
 const model = fitImbalanceModel([
   { frequencyHz: 300, gainDb: 0.05, phaseDeg: 0.4, uncertainty: 1e-4, floorDb: -70 },
@@ -42,15 +42,12 @@ describe('calibration profile', () => {
     expect(parseProfileJson(profileToJson(profile))).toEqual(profile);
   });
   it('names the bad field on load', () => {
-    const bad = (patch: Record<string, unknown>, re: RegExp) => {
-      try {
-        validateProfile({ ...JSON.parse(profileToJson(profile)), ...patch });
-        expect.unreachable();
-      } catch (e) {
-        expect(isOrthotoneError(e, 'INVALID_DOCUMENT')).toBe(true);
-        expect((e as Error).message).toMatch(re);
-      }
-    };
+    const bad = (patch: Record<string, unknown>, re: RegExp) =>
+      expectOrthotoneError(
+        () => validateProfile({ ...JSON.parse(profileToJson(profile)), ...patch }),
+        'INVALID_DOCUMENT',
+        re,
+      );
     bad({ format: 'x' }, /format "x" must be "orthotone-profile"/);
     bad({ version: 2 }, /version 2 is not supported/);
     bad({ toneHz: 30000 }, /toneHz 30000 must be a frequency between 0 and 24000 Hz/);

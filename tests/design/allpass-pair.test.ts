@@ -1,8 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import { isOrthotoneError } from '../../src/core/errors.js';
 import { analogAllpassPrototype, designAllpassPair } from '../../src/design/allpass-pair.js';
 import { analyzeNetwork } from '../../src/design/analysis.js';
 import type { AllpassBranch, AllpassNetwork } from '../../src/design/network.js';
+import { expectOrthotoneError } from '../support/errors.js';
 import { branchAt } from '../support/network-response.js';
 
 /** Max |phase difference − 90°| of an analog prototype over [1/√B, √B], rad, on a dense log grid (test's own loop). */
@@ -266,37 +266,27 @@ describe('designAllpassPair', () => {
   });
 
   it('rejects bad specs with typed errors naming the value and the fix', () => {
-    const expectCode = (fn: () => unknown, code: string, re: RegExp) => {
-      try {
-        fn();
-        expect.unreachable();
-      } catch (e) {
-        expect(isOrthotoneError(e)).toBe(true);
-        expect((e as { code: string }).code).toBe(code);
-        expect((e as Error).message).toMatch(re);
-      }
-    };
-    expectCode(
+    expectOrthotoneError(
       () => designAllpassPair({ sampleRate: 48000, band: [300, 3000], targetDb: 180, maxSections: 10 }),
       'UNREACHABLE_TARGET',
       /targetDb 180 dB needs more than maxSections 10.*raise maxSections/,
     );
-    expectCode(
+    expectOrthotoneError(
       () => designAllpassPair({ sampleRate: 48000, band: [300, 3000], sections: 4, targetDb: 60 }),
       'UNREACHABLE_TARGET',
       /sections 4 give .* below targetDb 60 dB: use sections 6, or omit sections/,
     );
-    expectCode(
+    expectOrthotoneError(
       () => designAllpassPair({ sampleRate: 48000, band: [300, 30000] }),
       'INVALID_BAND',
       /30000 Hz must be below Nyquist 24000 Hz/,
     );
-    expectCode(
+    expectOrthotoneError(
       () => designAllpassPair({ sampleRate: 48000, band: [300, 3000], form: 'third' as 'first-order' }),
       'INVALID_ARGUMENT',
       /form "third" is not recognised/,
     );
-    expectCode(
+    expectOrthotoneError(
       () => designAllpassPair({ sampleRate: 48000, band: [300, 3000], sections: 0 }),
       'INVALID_ARGUMENT',
       /sections 0 must be a whole number from 1 to 64/,

@@ -1,5 +1,4 @@
 import { describe, expect, it } from 'vitest';
-import { isOrthotoneError } from '../../src/core/errors.js';
 import { designAllpassPair } from '../../src/design/allpass-pair.js';
 import { analyzeNetwork, networkCost, predictFigures } from '../../src/design/analysis.js';
 import {
@@ -9,6 +8,7 @@ import {
   type Network,
   suppressionFromResponse,
 } from '../../src/design/network.js';
+import { expectOrthotoneError } from '../support/errors.js';
 
 const blank = {
   format: 'orthotone-network' as const,
@@ -244,15 +244,8 @@ describe('analyzeNetwork: range and options', () => {
       [{ toHz: 30000 }, /toHz 30000 must be .* at most Nyquist 24000 Hz/],
       [{ scale: 'mel' }, /scale "mel" is not recognised/],
     ];
-    for (const [opts, re] of cases) {
-      try {
-        analyzeNetwork(net, opts);
-        expect.unreachable();
-      } catch (e) {
-        expect(isOrthotoneError(e, 'INVALID_ARGUMENT')).toBe(true);
-        expect((e as Error).message).toMatch(re);
-      }
-    }
+    for (const [opts, re] of cases)
+      expectOrthotoneError(() => analyzeNetwork(net, opts), 'INVALID_ARGUMENT', re);
     expect(() => analyzeNetwork({ ...net, version: 2 } as unknown as Network)).toThrow(/version 2/);
   });
 });

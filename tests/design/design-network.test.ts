@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { isOrthotoneError } from '../../src/core/errors.js';
 import { type DesignCandidate, designNetwork, type NetworkSpec } from '../../src/design/design-network.js';
 import { type Network, validateNetwork } from '../../src/design/network.js';
+import { expectOrthotoneError } from '../support/errors.js';
 import { ownWorstDb as worstOnGrid } from '../support/network-response.js';
 
 /**
@@ -14,17 +14,6 @@ function ownWorstDb(net: Network): number {
 
 const sectionsOf = (net: Network) =>
   net.kind === 'allpass' ? net.branches.i.sections.length + net.branches.q.sections.length : Number.NaN;
-
-function expectError(fn: () => unknown, code: string, re: RegExp): void {
-  try {
-    fn();
-    expect.unreachable();
-  } catch (e) {
-    expect(isOrthotoneError(e)).toBe(true);
-    expect((e as { code: string }).code).toBe(code);
-    expect((e as Error).message).toMatch(re);
-  }
-}
 
 describe('designNetwork: the headline all-pass design', () => {
   it('48 kHz, 300–3000 Hz, 60 dB: meets 60 dB by independent evaluation with the fewest sections', () => {
@@ -107,7 +96,7 @@ describe('designNetwork: Hilbert FIR', () => {
   it('designs a given length and reports a given length that falls short', () => {
     const net = designNetwork({ sampleRate: 48000, band: [2000, 22000], method: 'fir', taps: 31 });
     expect(net.kind === 'fir' && net.taps.length).toBe(31);
-    expectError(
+    expectOrthotoneError(
       () => designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'fir', taps: 31, targetDb: 60 }),
       'UNREACHABLE_TARGET',
       /taps 31 .* below targetDb 60 dB/,
@@ -148,7 +137,7 @@ describe("designNetwork: method 'auto'", () => {
     expect(net.cost.latencySamples).toBeLessThanOrEqual(limit);
     expect(net.design.realised).toMatchObject({ method: 'allpass', form: 'first-order' });
     expect(net.design.reason).toMatch(/latency above maxLatencySamples/);
-    expectError(
+    expectOrthotoneError(
       () => designNetwork({ ...spec, maxLatencySamples: 0.5 }),
       'UNREACHABLE_TARGET',
       /no network meets targetDb 50 dB .* within maxLatencySamples 0.5/,
@@ -166,28 +155,32 @@ describe("designNetwork: method 'auto'", () => {
 describe('designNetwork: bad specs', () => {
   it('names the value and the fix', () => {
     const base = { sampleRate: 48000, band: [300, 3000] as [number, number] };
-    expectError(() => designNetwork({ ...base, method: 'iir' as 'fir' }), 'INVALID_ARGUMENT', /method "iir"/);
-    expectError(
+    expectOrthotoneError(
+      () => designNetwork({ ...base, method: 'iir' as 'fir' }),
+      'INVALID_ARGUMENT',
+      /method "iir"/,
+    );
+    expectOrthotoneError(
       () => designNetwork({ ...base, method: 'fir', taps: 64 }),
       'INVALID_ARGUMENT',
       /taps 64 must be odd .* use 63 or 65/,
     );
-    expectError(
+    expectOrthotoneError(
       () => designNetwork({ ...base, method: 'allpass', sections: 4, targetDb: 60 }),
       'UNREACHABLE_TARGET',
       /sections 4 give .* below targetDb 60 dB/,
     );
-    expectError(
+    expectOrthotoneError(
       () => designNetwork({ ...base, method: 'allpass', targetDb: 60, maxLatencySamples: 3 }),
       'UNREACHABLE_TARGET',
       /latency .* exceeds maxLatencySamples 3/,
     );
-    expectError(
+    expectOrthotoneError(
       () => designNetwork({ sampleRate: 48000, band: [3000, 300], method: 'allpass' }),
       'INVALID_BAND',
       /lower edge 3000 Hz must be below the upper edge 300 Hz/,
     );
-    expectError(
+    expectOrthotoneError(
       () => designNetwork({ ...base, method: 'allpass', targetDb: 500 }),
       'INVALID_ARGUMENT',
       /targetDb 500 dB is out of range/,

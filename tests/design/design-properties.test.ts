@@ -1,9 +1,10 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { isOrthotoneError, OrthotoneError } from '../../src/core/errors.js';
+import { isOrthotoneError, type OrthotoneError } from '../../src/core/errors.js';
 import { designAllpassPair } from '../../src/design/allpass-pair.js';
 import { designNetwork, type NetworkSpec } from '../../src/design/design-network.js';
 import { type Network, validateNetwork } from '../../src/design/network.js';
+import { expectOrthotoneError } from '../support/errors.js';
 import { ownWorstDb as worstOnGrid } from '../support/network-response.js';
 
 const RATES = [8000, 16000, 22050, 44100, 48000, 96000, 192000];
@@ -92,17 +93,6 @@ describe('property: random valid specs give designs that meet the target', () =>
 });
 
 describe('property: invalid specs throw OrthotoneError with the right code and a helpful message', () => {
-  const expectCode = (fn: () => unknown, code: string, ...res: RegExp[]) => {
-    try {
-      fn();
-    } catch (e) {
-      expect(e).toBeInstanceOf(OrthotoneError);
-      expect((e as OrthotoneError).code).toBe(code);
-      for (const re of res) expect((e as Error).message).toMatch(re);
-      return;
-    }
-    throw new Error('expected an OrthotoneError');
-  };
   const method = fc.constantFrom('fir' as const, 'allpass' as const, 'auto' as const);
 
   it('upper edge at or above Nyquist → INVALID_BAND naming the edge and Nyquist', () => {
@@ -113,7 +103,7 @@ describe('property: invalid specs throw OrthotoneError with the right code and a
         method,
         (fs, k, m) => {
           const hi = (fs / 2) * k;
-          expectCode(
+          expectOrthotoneError(
             () => designNetwork({ sampleRate: fs, band: [100, hi], method: m }),
             'INVALID_BAND',
             new RegExp(`upper edge ${hi} Hz must be below Nyquist ${fs / 2} Hz`),
@@ -135,17 +125,17 @@ describe('property: invalid specs throw OrthotoneError with the right code and a
           fc.pre(a !== b);
           const lo = Math.max(a, b) * fs;
           const hi = Math.min(a, b) * fs;
-          expectCode(
+          expectOrthotoneError(
             () => designNetwork({ sampleRate: fs, band: [lo, hi], method: m }),
             'INVALID_BAND',
             /must be below the upper edge .*write the band as \[lo, hi\]/,
           );
-          expectCode(
+          expectOrthotoneError(
             () => designNetwork({ sampleRate: fs, band: [-lo, hi], method: m }),
             'INVALID_BAND',
             /above 0 Hz/,
           );
-          expectCode(
+          expectOrthotoneError(
             () => designNetwork({ sampleRate: fs, band: [0, hi], method: m }),
             'INVALID_BAND',
             /above 0 Hz/,
@@ -164,7 +154,7 @@ describe('property: invalid specs throw OrthotoneError with the right code and a
         method,
         (bad, field, m) => {
           const spec = { sampleRate: 48000, band: [300, 3000], method: m, [field]: bad } as NetworkSpec;
-          expectCode(() => designNetwork(spec), 'INVALID_ARGUMENT', new RegExp(`^${field} `));
+          expectOrthotoneError(() => designNetwork(spec), 'INVALID_ARGUMENT', new RegExp(`^${field} `));
         },
       ),
       { seed: 3, numRuns: 40 },
@@ -179,7 +169,7 @@ describe('property: invalid specs throw OrthotoneError with the right code and a
         fc.constantFrom('first-order' as const, 'second-order' as const),
         ({ fs, band }, maxSections, form) => {
           // With at most 4 sections no band here reaches 150 dB (4qⁿ with q ≥ 0.1 gives < 70 dB).
-          expectCode(
+          expectOrthotoneError(
             () => designAllpassPair({ sampleRate: fs, band, targetDb: 150, maxSections, form }),
             'UNREACHABLE_TARGET',
             new RegExp(`targetDb 150 dB needs more than maxSections ${maxSections}`),

@@ -1,6 +1,5 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { isOrthotoneError, type OrthotoneError } from '../../src/core/errors.js';
 import {
   designHilbertFir,
   evaluateHilbertFir,
@@ -15,6 +14,7 @@ import {
   phaseErrorDegFromResponse,
   suppressionFromResponse,
 } from '../../src/design/network.js';
+import { expectOrthotoneError } from '../support/errors.js';
 import { loadRemezFixture } from '../support/remez-fixture.js';
 
 // [C] scipy 1.10.1 scipy.signal.remez, made by tests/fixtures/scipy/gen_remez_hilbert.py (command in
@@ -48,17 +48,6 @@ function independent(taps: number[], fs: number, band: [number, number], points 
     phase = Math.max(phase, Math.abs(phaseErrorDegFromResponse(r)));
   }
   return { worst, phase };
-}
-
-function expectCode(fn: () => unknown, code: OrthotoneError['code'], message?: RegExp): OrthotoneError {
-  try {
-    fn();
-  } catch (e) {
-    expect(isOrthotoneError(e, code), String(e)).toBe(true);
-    if (message) expect((e as Error).message).toMatch(message);
-    return e as OrthotoneError;
-  }
-  return expect.unreachable(`expected ${code}`);
 }
 
 describe('designHilbertFir: sign and structure', () => {
@@ -199,7 +188,7 @@ describe('designHilbertFir: target search', () => {
     expect(hilbertRippleFromSuppression(hilbertSuppressionFromRipple(0.003))).toBeCloseTo(0.003, 15);
   });
   it('with taps and targetDb checks the target and names the taps needed', () => {
-    const e = expectCode(
+    const e = expectOrthotoneError(
       () => designHilbertFir({ sampleRate: 48000, band: [300, 3000], taps: 63, targetDb: 60 }),
       'UNREACHABLE_TARGET',
       /taps 63 give [\d.]+ dB worst suppression over \[300, 3000\] Hz .*targetDb 60 dB: use taps \d+ or more/,
@@ -215,12 +204,12 @@ describe('designHilbertFir: target search', () => {
     expect(ok.taps.length).toBe(needed + 8);
   });
   it('beyond maxTaps: UNREACHABLE_TARGET naming the target, what maxTaps gives and the fixes', () => {
-    expectCode(
+    expectOrthotoneError(
       () => designHilbertFir({ sampleRate: 48000, band: [300, 3000], targetDb: 80, maxTaps: 255 }),
       'UNREACHABLE_TARGET',
       /targetDb 80 dB is out of reach .* within maxTaps 255: 255 taps give [\d.]+ dB .*lower edge 300 Hz.*raise maxTaps.*all-pass/,
     );
-    expectCode(
+    expectOrthotoneError(
       () =>
         designHilbertFir({
           sampleRate: 48000,
@@ -234,7 +223,7 @@ describe('designHilbertFir: target search', () => {
     );
   });
   it('refuses to call a round-off-limited Remez design converged', () => {
-    expectCode(
+    expectOrthotoneError(
       () => designHilbertFir({ sampleRate: 48000, band: [300, 3000], taps: 2047 }),
       'NO_CONVERGENCE',
       /taps 2047 are far more than the band needs.*targetDb/,
@@ -283,14 +272,14 @@ describe('designHilbertFir: properties (fast-check, seeded)', () => {
         const nyq = rate / 2;
         const lo = Math.max(1, Math.round(frac * rate));
         // upper edge at or beyond Nyquist
-        const e1 = expectCode(
+        const e1 = expectOrthotoneError(
           () => designHilbertFir({ sampleRate: rate, band: [lo, nyq + frac * 100], taps: 31 }),
           'INVALID_BAND',
         );
         expect(e1.message).toContain(String(nyq + frac * 100));
         // reversed band
         if (lo < nyq - 1) {
-          const e2 = expectCode(
+          const e2 = expectOrthotoneError(
             () => designHilbertFir({ sampleRate: rate, band: [nyq - 1, lo], taps: 31 }),
             'INVALID_BAND',
           );
@@ -301,58 +290,58 @@ describe('designHilbertFir: properties (fast-check, seeded)', () => {
       { seed: 99, numRuns: 25 },
     );
     for (const bad of [0, -48000, Number.NaN]) {
-      const e = expectCode(
+      const e = expectOrthotoneError(
         () => designHilbertFir({ sampleRate: bad, band: [300, 3000], taps: 31 }),
         'INVALID_ARGUMENT',
       );
       expect(e.message).toContain(Number.isNaN(bad) ? 'NaN' : String(bad));
     }
-    expectCode(
+    expectOrthotoneError(
       () => designHilbertFir({ sampleRate: 48000, band: [0, 3000], taps: 31 }),
       'INVALID_BAND',
       /lower edge 0/,
     );
-    expectCode(
+    expectOrthotoneError(
       () => designHilbertFir({ sampleRate: 48000, band: [-5, 3000], taps: 31 }),
       'INVALID_BAND',
       /-5/,
     );
-    expectCode(
+    expectOrthotoneError(
       () => designHilbertFir({ sampleRate: 48000, band: [300, 3000], taps: 64 }),
       'INVALID_ARGUMENT',
       /taps 64 must be odd.*use 63 or 65/,
     );
-    expectCode(
+    expectOrthotoneError(
       () => designHilbertFir({ sampleRate: 48000, band: [300, 3000], taps: 31.5 }),
       'INVALID_ARGUMENT',
       /taps 31.5/,
     );
-    expectCode(
+    expectOrthotoneError(
       () => designHilbertFir({ sampleRate: 48000, band: [300, 3000], taps: 1 }),
       'INVALID_ARGUMENT',
       /taps 1 /,
     );
-    expectCode(
+    expectOrthotoneError(
       () => designHilbertFir({ sampleRate: 48000, band: [300, 3000], targetDb: -3 }),
       'INVALID_ARGUMENT',
       /targetDb -3/,
     );
-    expectCode(
+    expectOrthotoneError(
       () => designHilbertFir({ sampleRate: 48000, band: [300, 3000], targetDb: Number.NaN }),
       'INVALID_ARGUMENT',
       /targetDb NaN/,
     );
-    expectCode(
+    expectOrthotoneError(
       () => designHilbertFir({ sampleRate: 48000, band: [300, 3000] }),
       'INVALID_ARGUMENT',
       /give taps/,
     );
-    expectCode(
+    expectOrthotoneError(
       () => designHilbertFir({ sampleRate: 48000, band: [300, 3000], taps: 31, method: 'fft' as 'remez' }),
       'INVALID_ARGUMENT',
       /method "fft"/,
     );
-    expectCode(
+    expectOrthotoneError(
       () =>
         designHilbertFir({
           sampleRate: 48000,
@@ -364,6 +353,6 @@ describe('designHilbertFir: properties (fast-check, seeded)', () => {
       'INVALID_ARGUMENT',
       /structure 'full'/,
     );
-    expectCode(() => designHilbertFir(null as never), 'INVALID_ARGUMENT', /spec null/);
+    expectOrthotoneError(() => designHilbertFir(null as never), 'INVALID_ARGUMENT', /spec null/);
   });
 });

@@ -1,6 +1,5 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { isOrthotoneError } from '../../src/core/errors.js';
 import {
   besselI0,
   kaiserAttenuation,
@@ -8,6 +7,7 @@ import {
   kaiserOrder,
   kaiserWindow,
 } from '../../src/design/kaiser.js';
+import { expectOrthotoneError } from '../support/errors.js';
 
 // [C] scipy 1.10.1 values, made by tests/fixtures/scipy/gen_kaiser.py (command in the fixture README).
 const fx = JSON.parse(readFileSync(new URL('../fixtures/scipy/kaiser.json', import.meta.url), 'utf8')) as {
@@ -59,13 +59,7 @@ describe('kaiserOrder', () => {
     expect(() => kaiserOrder(5, 0.1)).toThrow(/attenuationDb 5 is below 8 dB/);
     expect(() => kaiserOrder(60, 0)).toThrow(/transitionWidth 0 must be greater than 0/);
     expect(() => kaiserOrder(60, 1.5)).toThrow(/transitionWidth 1.5/);
-    try {
-      kaiserOrder(Number.NaN, 0.1);
-      expect.unreachable();
-    } catch (e) {
-      expect(isOrthotoneError(e, 'INVALID_ARGUMENT')).toBe(true);
-      expect((e as Error).message).toMatch(/NaN/);
-    }
+    expectOrthotoneError(() => kaiserOrder(Number.NaN, 0.1), 'INVALID_ARGUMENT', /NaN/);
   });
 });
 

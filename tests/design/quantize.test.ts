@@ -1,5 +1,4 @@
 import { describe, expect, it } from 'vitest';
-import { isOrthotoneError } from '../../src/core/errors.js';
 import { designAllpassPair } from '../../src/design/allpass-pair.js';
 import { predictFigures } from '../../src/design/analysis.js';
 import type { AllpassBranch, AllpassNetwork, FirNetwork } from '../../src/design/network.js';
@@ -9,6 +8,7 @@ import {
   quantizeCoefficient,
   quantizeNetwork,
 } from '../../src/design/quantize.js';
+import { expectOrthotoneError } from '../support/errors.js';
 
 const blank = {
   format: 'orthotone-network' as const,
@@ -50,15 +50,11 @@ describe('quantizeCoefficient', () => {
   });
 
   it('rejects an unknown format', () => {
-    try {
-      quantizeCoefficient(0.3, 'q7' as CoefficientFormat);
-      expect.unreachable();
-    } catch (e) {
-      expect(isOrthotoneError(e, 'INVALID_ARGUMENT')).toBe(true);
-      expect((e as Error).message).toMatch(
-        /format "q7" is not recognised: use one of 'float32', 'q15', 'q31'/,
-      );
-    }
+    expectOrthotoneError(
+      () => quantizeCoefficient(0.3, 'q7' as CoefficientFormat),
+      'INVALID_ARGUMENT',
+      /format "q7" is not recognised: use one of 'float32', 'q15', 'q31'/,
+    );
   });
 });
 

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { isOrthotoneError, type OrthotoneError } from '../../src/core/errors.js';
 import { evaluateHilbertFir } from '../../src/design/hilbert-fir.js';
 import { remez, remezExchange } from '../../src/design/remez.js';
+import { expectOrthotoneError } from '../support/errors.js';
 import { loadRemezFixture } from '../support/remez-fixture.js';
 
 // [C] scipy 1.10.1 scipy.signal.remez, made by tests/fixtures/scipy/gen_remez_hilbert.py (command in
@@ -22,17 +22,6 @@ function symmetricAmplitude(taps: ArrayLike<number>, f: number): number {
   let a = 0;
   for (let k = 0; k < taps.length; k++) a += taps[k]! * Math.cos(2 * Math.PI * f * (k - c));
   return a;
-}
-
-function expectCode(fn: () => unknown, code: OrthotoneError['code'], message: RegExp): void {
-  try {
-    fn();
-  } catch (e) {
-    expect(isOrthotoneError(e, code), String(e)).toBe(true);
-    expect((e as Error).message).toMatch(message);
-    return;
-  }
-  expect.unreachable(`expected ${code}`);
 }
 
 describe('remez: published Hilbert designs', () => {
@@ -180,46 +169,66 @@ describe('remez: properties of the result', () => {
 
 describe('remez: errors', () => {
   it('rejects bad specifications with INVALID_ARGUMENT naming the value', () => {
-    expectCode(() => remez(10.5, [0, 0.2, 0.3, 0.5], [1, 0]), 'INVALID_ARGUMENT', /numtaps 10.5/);
-    expectCode(() => remez(1, [0, 0.2, 0.3, 0.5], [1, 0]), 'INVALID_ARGUMENT', /numtaps 1 /);
-    expectCode(() => remez(21, [0, 0.2, 0.3], [1, 0]), 'INVALID_ARGUMENT', /even number of entries/);
-    expectCode(
+    expectOrthotoneError(() => remez(10.5, [0, 0.2, 0.3, 0.5], [1, 0]), 'INVALID_ARGUMENT', /numtaps 10.5/);
+    expectOrthotoneError(() => remez(1, [0, 0.2, 0.3, 0.5], [1, 0]), 'INVALID_ARGUMENT', /numtaps 1 /);
+    expectOrthotoneError(
+      () => remez(21, [0, 0.2, 0.3], [1, 0]),
+      'INVALID_ARGUMENT',
+      /even number of entries/,
+    );
+    expectOrthotoneError(
       () => remez(21, [0, 0.2, 0.3, 0.6], [1, 0]),
       'INVALID_ARGUMENT',
       /bands\[3\] = 0.6 .*fs\/2 = 0.5/,
     );
-    expectCode(
+    expectOrthotoneError(
       () => remez(21, [0, 3000, 3500, 5000], [1, 0], { fs: 8000 }),
       'INVALID_ARGUMENT',
       /5000.*4000/,
     );
-    expectCode(
+    expectOrthotoneError(
       () => remez(21, [0, 0.3, 0.2, 0.5], [1, 0]),
       'INVALID_ARGUMENT',
       /bands\[2\] = 0.2 is not above/,
     );
-    expectCode(() => remez(21, [0, 0.2, 0.3, 0.5], [1]), 'INVALID_ARGUMENT', /one value per band \(2/);
-    expectCode(
+    expectOrthotoneError(
+      () => remez(21, [0, 0.2, 0.3, 0.5], [1]),
+      'INVALID_ARGUMENT',
+      /one value per band \(2/,
+    );
+    expectOrthotoneError(
       () => remez(21, [0, 0.2, 0.3, 0.5], [1, 0], { weight: [1, -2] }),
       'INVALID_ARGUMENT',
       /weight\[1\] -2 must be .* greater than 0/,
     );
-    expectCode(() => remez(21, [0, 0.2, 0.3, 0.5], [1, Number.NaN]), 'INVALID_ARGUMENT', /desired\[1\] NaN/);
-    expectCode(() => remez(21, [0, 0.2, 0.3, 0.5], [1, 0], { fs: Number.NaN }), 'INVALID_ARGUMENT', /fs NaN/);
-    expectCode(
+    expectOrthotoneError(
+      () => remez(21, [0, 0.2, 0.3, 0.5], [1, Number.NaN]),
+      'INVALID_ARGUMENT',
+      /desired\[1\] NaN/,
+    );
+    expectOrthotoneError(
+      () => remez(21, [0, 0.2, 0.3, 0.5], [1, 0], { fs: Number.NaN }),
+      'INVALID_ARGUMENT',
+      /fs NaN/,
+    );
+    expectOrthotoneError(
       () => remez(21, [0, 0.2, 0.3, 0.5], [1, 0], { gridDensity: 0 }),
       'INVALID_ARGUMENT',
       /gridDensity 0/,
     );
-    expectCode(
+    expectOrthotoneError(
       () => remez(21, [0, 0.2, 0.3, 0.5], [1, 0], { type: 'lowpass' as 'bandpass' }),
       'INVALID_ARGUMENT',
       /type "lowpass"/,
     );
-    expectCode(() => remez(201, [0.1, 0.1001], [1], { type: 'hilbert' }), 'INVALID_ARGUMENT', /too narrow/);
+    expectOrthotoneError(
+      () => remez(201, [0.1, 0.1001], [1], { type: 'hilbert' }),
+      'INVALID_ARGUMENT',
+      /too narrow/,
+    );
   });
   it('throws NO_CONVERGENCE with advice when the iteration cap is hit, and remezExchange returns the state', () => {
-    expectCode(
+    expectOrthotoneError(
       () => remez(127, [0.01, 0.3], [1], { type: 'hilbert', maxIterations: 1 }),
       'NO_CONVERGENCE',
       /did not converge in 1 iterations.*raise maxIterations/,
@@ -234,6 +243,10 @@ describe('remez: errors', () => {
     const r = remezExchange(768, [600 / 48000, 0.5], [1], { type: 'hilbert' });
     expect(r.converged).toBe(false);
     expect(r.roundOffLimited).toBe(true);
-    expectCode(() => remez(768, [600 / 48000, 0.5], [1], { type: 'hilbert' }), 'NO_CONVERGENCE', /round-off/);
+    expectOrthotoneError(
+      () => remez(768, [600 / 48000, 0.5], [1], { type: 'hilbert' }),
+      'NO_CONVERGENCE',
+      /round-off/,
+    );
   });
 });

@@ -1,5 +1,4 @@
 import { describe, expect, it } from 'vitest';
-import { isOrthotoneError } from '../../src/core/errors.js';
 import { imageRejectionDb } from '../../src/core/units.js';
 import {
   predictCarrierDbc,
@@ -13,6 +12,7 @@ import {
   signalLevels,
 } from '../../src/generate/sources.js';
 import { TrimStage } from '../../src/generate/trim-stage.js';
+import { expectOrthotoneError } from '../support/errors.js';
 import { bitDiffs, dftBin, dftBinIq } from './dft.js';
 import { kaiserHilbertNetwork, niemitaloNetwork } from './reference-networks.js';
 
@@ -176,13 +176,7 @@ describe('test signal sources', () => {
       [{ kind: 'noise', levelDbfs: -6, band: [3000, 300] }, /lower edge 3000 Hz must be below/],
       [{ kind: 'chirp', levelDbfs: -6 }, /kind "chirp" is not recognised/],
     ] as const) {
-      try {
-        createSignalSource(spec as never, fs);
-        expect.unreachable();
-      } catch (e) {
-        expect(isOrthotoneError(e, 'INVALID_ARGUMENT')).toBe(true);
-        expect((e as Error).message).toMatch(re);
-      }
+      expectOrthotoneError(() => createSignalSource(spec as never, fs), 'INVALID_ARGUMENT', re);
     }
   });
 });

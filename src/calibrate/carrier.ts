@@ -8,7 +8,9 @@
 import type { Trims } from '../core/trims.js';
 import { requireRange } from '../core/validate.js';
 import {
+  type HardwareTrimOptions,
   runTrimCalibration,
+  snapToStep,
   type TrimAxes,
   type TrimCalibrationOptions,
   type TrimCalibrationResult,
@@ -20,23 +22,37 @@ export interface CarrierCalibrationOptions extends TrimCalibrationOptions {
   toneAmplitude?: number;
 }
 
-/** Axes of the carrier calibration for a given curvature model. */
-export function carrierAxes(toneAmplitude?: number): TrimAxes {
+/**
+ * Axes of the carrier calibration for a given curvature model and, optionally, hardware DC steps
+ * and bounds (full-scale units: the seeker's own coordinates).
+ */
+export function carrierAxes(toneAmplitude?: number, hw: HardwareTrimOptions = {}): TrimAxes {
   const known = toneAmplitude !== undefined;
+  const si = hw.steps?.dcI ?? 0;
+  const sq = hw.steps?.dcQ ?? 0;
+  const bounds: [[number, number], [number, number]] = [
+    hw.bounds?.dcI ?? [-0.5, 0.5],
+    hw.bounds?.dcQ ?? [-0.5, 0.5],
+  ];
   return {
     quantity: 'carrier',
     names: ['dcI', 'dcQ'],
     toPoint: (t: Trims) => [t.dcI, t.dcQ],
-    toTrims: (p: readonly [number, number], base: Trims) => ({ ...base, dcI: p[0], dcQ: p[1] }),
+    toTrims: (p: readonly [number, number], base: Trims) => ({
+      ...base,
+      dcI: snapToStep(p[0], si),
+      dcQ: snapToStep(p[1], sq),
+    }),
     seeker: {
       model: known ? 'known-curvature' : 'isotropic',
       curvature: known ? 1 / (toneAmplitude * toneAmplitude) : 1,
       curvatureSpread: 0.1,
-      bounds: [
-        [-0.5, 0.5],
-        [-0.5, 0.5],
+      bounds,
+      step: [si, sq],
+      maxStep: [
+        Math.min(0.1, (bounds[0][1] - bounds[0][0]) / 2),
+        Math.min(0.1, (bounds[1][1] - bounds[1][0]) / 2),
       ],
-      maxStep: [0.1, 0.1],
     },
   };
 }
@@ -44,12 +60,13 @@ export function carrierAxes(toneAmplitude?: number): TrimAxes {
 /**
  * Calibrates the DC trims for the deepest carrier null, from level readings.
  * @param options as {@link calibrateSideband}, `measure(trims)` returning the carrier in dBc; plus
- *   `toneAmplitude` (peak, full scale 1) when known.
+ *   `toneAmplitude` (peak, full scale 1) when known; hardware `steps` and `bounds` of dcI and dcQ
+ *   in full-scale units.
  * @returns as {@link calibrateSideband}; `diagnosis` holds TRIM_INACTIVE when DC does not reach
  *   the output (AC coupling).
  * @throws {OrthotoneError} INVALID_ARGUMENT for bad options.
  */
 export async function calibrateCarrier(options: CarrierCalibrationOptions): Promise<TrimCalibrationResult> {
   if (options.toneAmplitude !== undefined) requireRange('toneAmplitude', options.toneAmplitude, 1e-6, 4);
-  return runTrimCalibration(options, carrierAxes(options.toneAmplitude));
+  return runTrimCalibration(options, carrierAxes(options.toneAmplitude, options));
 }

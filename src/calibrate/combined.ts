@@ -9,7 +9,7 @@ import type { Trims } from '../core/trims.js';
 import { requireRange } from '../core/validate.js';
 import { type CarrierCalibrationOptions, carrierAxes } from './carrier.js';
 import type { NullSeekerState } from './null-seeker.js';
-import { SIDEBAND_AXES } from './sideband.js';
+import { sidebandAxes } from './sideband.js';
 import {
   type CalibrationStep,
   resultOf,
@@ -58,17 +58,15 @@ export async function calibrateSidebandAndCarrier(
   options: CombinedCalibrationOptions,
 ): Promise<CombinedCalibrationResult> {
   if (options.toneAmplitude !== undefined) requireRange('toneAmplitude', options.toneAmplitude, 1e-6, 4);
-  const cAxes = carrierAxes(options.toneAmplitude);
+  const cAxes = carrierAxes(options.toneAmplitude, options);
+  const sAxes = sidebandAxes(options);
   const base: TrimCalibrationOptions = {
     ...options,
     measure: () => 0,
     onReading: undefined,
     resume: undefined,
   };
-  const sb = seekerFor(
-    { ...base, ...(options.resume ? { resume: options.resume.sideband } : {}) },
-    SIDEBAND_AXES,
-  );
+  const sb = seekerFor({ ...base, ...(options.resume ? { resume: options.resume.sideband } : {}) }, sAxes);
   const cr = seekerFor(
     { ...(base as CarrierCalibrationOptions), ...(options.resume ? { resume: options.resume.carrier } : {}) },
     cAxes,
@@ -85,7 +83,7 @@ export async function calibrateSidebandAndCarrier(
     const ps = sb.seeker.next() ?? sb.seeker.best().point;
     const pc = cr.seeker.next() ?? cr.seeker.best().point;
     if (sb.seeker.done && cr.seeker.done) break;
-    const trims = cAxes.toTrims(pc, SIDEBAND_AXES.toTrims(ps, start));
+    const trims = cAxes.toTrims(pc, sAxes.toTrims(ps, start));
     let levels: BothLevels | undefined;
     let error: unknown;
     try {
@@ -102,7 +100,7 @@ export async function calibrateSidebandAndCarrier(
     if (!cr.seeker.done) cr.seeker.tell(pc, c);
     const bs = sb.seeker.best();
     const bc = cr.seeker.best();
-    const bestTrims = cAxes.toTrims(bc.point, SIDEBAND_AXES.toTrims(bs.point, start));
+    const bestTrims = cAxes.toTrims(bc.point, sAxes.toTrims(bs.point, start));
     const common = {
       index: count,
       trims,
@@ -115,7 +113,7 @@ export async function calibrateSidebandAndCarrier(
     options.onReading?.({ ...common, levelDb: s, bestLevelDb: bs.levelDb, carrierDb: c });
   }
   for (const k of [sb.seeker, cr.seeker]) if (!k.done) k.stop(signal?.aborted ? 'aborted' : 'budget');
-  const sideband = resultOf(sb.seeker, SIDEBAND_AXES, start, hs, lastError);
+  const sideband = resultOf(sb.seeker, sAxes, start, hs, lastError);
   const carrier = resultOf(cr.seeker, cAxes, start, hc, lastError);
   return {
     trims: { ...sideband.trims, dcI: carrier.trims.dcI, dcQ: carrier.trims.dcQ },

@@ -606,8 +606,19 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
       stopReason = 'floor';
       return;
     }
-    const q = Math.max(o.step[0], o.step[1]);
-    if (q > 0 && Math.sqrt(Math.max(e.centreCov[0], e.centreCov[2])) < 0.3 * q) stopReason = 'resolution';
+    // Quantised trims: stop once the null is located to a fraction of each axis's own step (the
+    // finer axis sets the pace), so rounding it picks the best grid point.
+    const [q0, q1] = o.step;
+    // A null near the middle between two grid points is read on until its side is clear.
+    const axisDone = (q: number, v: number, j: 0 | 1): boolean => {
+      if (status[j] === 'inactive') return true;
+      const sd = Math.sqrt(v);
+      const frac = e.centre[j] / q - Math.floor(e.centre[j] / q);
+      return q > 0 && sd < 0.3 * q && Math.abs(frac - 0.5) * q > 1.5 * sd;
+    };
+    if ((q0 > 0 || q1 > 0) && axisDone(q0, e.centreCov[0], 0) && axisDone(q1, e.centreCov[2], 1)) {
+      stopReason = 'resolution';
+    }
   };
 
   const plan = (): void => {

@@ -12,7 +12,9 @@
 import type { Trims } from '../core/trims.js';
 import { degToRad, radToDeg } from '../core/units.js';
 import {
+  type HardwareTrimOptions,
   runTrimCalibration,
+  snapToStep,
   type TrimAxes,
   type TrimCalibrationOptions,
   type TrimCalibrationResult,
@@ -52,11 +54,56 @@ export const SIDEBAND_AXES: TrimAxes = Object.freeze({
   },
 });
 
+const NEPER_PER_DB = Math.LN10 / 20;
+
+/**
+ * Axes of the sideband calibration for the given hardware steps and bounds. Without either, the
+ * exact affine coordinates (u, v) of {@link SIDEBAND_AXES}. With them, the log-polar coordinates
+ * `x = ln G = gainDb·ln10/20`, `y = φ` (radians): equal to (u, v) to first order at the null (so the
+ * bowl keeps its curvature ¼ there, to within the gain factor G², inside the curvature spread), and
+ * a grid of dB and degree steps is a grid of the seeker's own axes.
+ */
+export function sidebandAxes(hw: HardwareTrimOptions = {}): TrimAxes {
+  const sg = hw.steps?.gainDb ?? 0;
+  const sp = hw.steps?.phaseDeg ?? 0;
+  const bg = hw.bounds?.gainDb;
+  const bp = hw.bounds?.phaseDeg;
+  if (!sg && !sp && !bg && !bp) return SIDEBAND_AXES;
+  const gb: [number, number] = bg ?? [-5, 5];
+  const pb: [number, number] = bp ?? [-40, 40];
+  const bounds: [[number, number], [number, number]] = [
+    [gb[0] * NEPER_PER_DB, gb[1] * NEPER_PER_DB],
+    [degToRad(pb[0]), degToRad(pb[1])],
+  ];
+  return {
+    quantity: 'sideband',
+    names: ['gain', 'phase'],
+    toPoint: (t: Trims) => [t.gainDb * NEPER_PER_DB, degToRad(t.phaseDeg)],
+    toTrims: (p: readonly [number, number], base: Trims) => ({
+      ...base,
+      gainDb: snapToStep(p[0] / NEPER_PER_DB, sg),
+      phaseDeg: snapToStep(radToDeg(p[1]), sp),
+    }),
+    seeker: {
+      model: 'known-curvature',
+      curvature: SIDEBAND_CURVATURE,
+      bounds,
+      step: [sg * NEPER_PER_DB, degToRad(sp)],
+      maxStep: [
+        Math.min(0.3, (bounds[0][1] - bounds[0][0]) / 2),
+        Math.min(0.3, (bounds[1][1] - bounds[1][0]) / 2),
+      ],
+    },
+  };
+}
+
 /**
  * Calibrates the gain and phase trims for the deepest opposite-sideband null, from level readings.
  * @param options `measure(trims)` returns the unwanted sideband in dBc (any repeatable dB scale
  *   works if `model: 'isotropic'` is chosen; the known curvature ¼ assumes dBc); `start`,
- *   `noiseDb` (0.5), `targetDb`, `maxReadings` (16), `signal`, `onReading`, `floorDb`, `resume`.
+ *   `noiseDb` (0.5), `targetDb`, `maxReadings` (16), `signal`, `onReading`, `floorDb`, `resume`;
+ *   for hardware trims, `steps` (`{ gainDb: 0.05, phaseDeg: 0.1 }`: every setting and the result
+ *   lie on that grid) and `bounds` (`{ gainDb: [-1, 1] }`), in dB and degrees.
  * @returns the best trims (always finite), the level there, readings used, history, stop reason,
  *   diagnosis and a state to resume from.
  * @throws {OrthotoneError} INVALID_ARGUMENT for bad options (never for a failed reading or an
@@ -66,5 +113,5 @@ export const SIDEBAND_AXES: TrimAxes = Object.freeze({
  * generator.setTrims(r.trims);
  */
 export function calibrateSideband(options: TrimCalibrationOptions): Promise<TrimCalibrationResult> {
-  return runTrimCalibration(options, SIDEBAND_AXES);
+  return runTrimCalibration(options, sidebandAxes(options ?? {}));
 }

@@ -3,7 +3,7 @@
  * between a pair of trims and the seeker's natural coordinates, and the run itself.
  */
 import { OrthotoneError } from '../core/errors.js';
-import { type Trims, validateTrims, ZERO_TRIMS } from '../core/trims.js';
+import { TRIM_LIMITS, type Trims, validateTrims, ZERO_TRIMS } from '../core/trims.js';
 import { requireFinite, requireInteger, requirePositive } from '../core/validate.js';
 import { type Diagnosis, diagnoseSeeker } from './diagnosis.js';
 import {
@@ -36,8 +36,23 @@ export interface CalibrationStep {
   error?: unknown;
 }
 
+/** The four trims a calibration moves. */
+export type TrimName = 'gainDb' | 'phaseDeg' | 'dcI' | 'dcQ';
+
+/**
+ * Trims that act through hardware with quantised steps (a digital potentiometer, a DAC code):
+ * every setting the calibration proposes, and the result, lies on the grid `k·step` of each trim,
+ * in the trims' own units (dB, degrees, full scale).
+ */
+export interface HardwareTrimOptions {
+  /** Step of each trim in its own units: gainDb in dB, phaseDeg in degrees, dcI/dcQ in full scale; 0 = continuous. */
+  steps?: Partial<Record<TrimName, number>>;
+  /** Allowed range [lo, hi] of each trim in its own units (within the trim limits). */
+  bounds?: Partial<Record<TrimName, [number, number]>>;
+}
+
 /** Options shared by {@link calibrateSideband} and {@link calibrateCarrier} (DESIGN.md §5). */
-export interface TrimCalibrationOptions {
+export interface TrimCalibrationOptions extends HardwareTrimOptions {
   /** Reads the level with the given trims applied, dB (dBc preferred). May be async. */
   measure: (trims: Trims) => number | Promise<number>;
   /** Trims to begin from (default all zero); the trims not calibrated are passed through. */
@@ -118,12 +133,84 @@ export function resolveTrimOptions(o: TrimCalibrationOptions): {
     );
   }
   const start: Trims = { ...ZERO_TRIMS, ...validateTrims(o.start ?? {}) };
+  validateHardware(o, start);
   const noiseDb = o.noiseDb === undefined ? 0.5 : requirePositive('noiseDb', o.noiseDb, 'dB');
   const maxReadings =
     o.maxReadings === undefined ? 16 : requireInteger('maxReadings', o.maxReadings, 1, 10_000);
   if (o.targetDb !== undefined) requireFinite('targetDb', o.targetDb, 'give a suppression in dB, e.g. 60');
   if (o.floorDb !== undefined) requireFinite('floorDb', o.floorDb, 'give the floor in dB, e.g. -70');
   return { start, noiseDb, maxReadings };
+}
+
+const LIMITS: Record<TrimName, number> = {
+  gainDb: TRIM_LIMITS.gainDb,
+  phaseDeg: TRIM_LIMITS.phaseDeg,
+  dcI: TRIM_LIMITS.dc,
+  dcQ: TRIM_LIMITS.dc,
+};
+
+/**
+ * Validates hardware steps and bounds against the trim limits and the start.
+ * @throws {OrthotoneError} INVALID_ARGUMENT naming the trim, the value and the fix.
+ */
+export function validateHardware(o: HardwareTrimOptions, start: Trims): void {
+  for (const [k, v] of Object.entries(o.steps ?? {})) {
+    if (!(k in LIMITS)) {
+      throw new OrthotoneError(
+        'INVALID_ARGUMENT',
+        `steps.${k} is not a trim: use gainDb, phaseDeg, dcI or dcQ`,
+      );
+    }
+    if (v === undefined) continue;
+    if (!(Number.isFinite(v) && v >= 0 && v < LIMITS[k as TrimName])) {
+      throw new OrthotoneError(
+        'INVALID_ARGUMENT',
+        `steps.${k} ${v} must be a step ≥ 0 (0 = continuous) below ${LIMITS[k as TrimName]}, in the trim's own units`,
+        v,
+      );
+    }
+  }
+  for (const [k, b] of Object.entries(o.bounds ?? {})) {
+    if (!(k in LIMITS)) {
+      throw new OrthotoneError(
+        'INVALID_ARGUMENT',
+        `bounds.${k} is not a trim: use gainDb, phaseDeg, dcI or dcQ`,
+      );
+    }
+    if (b === undefined) continue;
+    const lim = LIMITS[k as TrimName];
+    if (
+      !Array.isArray(b) ||
+      b.length !== 2 ||
+      !b.every(Number.isFinite) ||
+      !(b[0] < b[1]) ||
+      b[0] < -lim ||
+      b[1] > lim
+    ) {
+      throw new OrthotoneError(
+        'INVALID_ARGUMENT',
+        `bounds.${k} ${JSON.stringify(b).replace(',', ', ')} must be written [lo, hi] with lo < hi, within ±${lim}`,
+        b,
+      );
+    }
+    const x = start[k as TrimName];
+    if (x < b[0] || x > b[1]) {
+      throw new OrthotoneError(
+        'INVALID_ARGUMENT',
+        `start ${k} ${x} lies outside bounds.${k} [${b[0]}, ${b[1]}]: start inside the range`,
+        x,
+      );
+    }
+  }
+}
+
+/** `x` snapped to the grid of `step` (no change for step 0): removes the rounding of unit changes. */
+export function snapToStep(x: number, step: number | undefined): number {
+  if (!step) return x;
+  const k = Math.round(x / step);
+  // Multiply, then round to the step's own decimals, so 3 × 0.1 reads 0.3.
+  const decimals = Math.max(0, Math.min(15, Math.ceil(-Math.log10(step)) + 6));
+  return Number((k * step).toFixed(decimals));
 }
 
 /** Creates (or resumes) the seeker for a calibration. */

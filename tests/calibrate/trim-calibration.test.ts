@@ -4,6 +4,7 @@ import { calibrateSidebandAndCarrier } from '../../src/calibrate/combined.js';
 import { calibrateSideband } from '../../src/calibrate/sideband.js';
 import { createRng } from '../../src/core/rng.js';
 import type { Trims } from '../../src/core/trims.js';
+import { degToRad, imageRejectionDb } from '../../src/core/units.js';
 import {
   analyzer,
   drawAnalyticDevice,
@@ -286,6 +287,148 @@ describe('calibrateSidebandAndCarrier', () => {
     expect(r.readings).toBe(calls);
     expect(-trueSidebandDbc(dev, r.trims)).toBeGreaterThan(65);
     expect(-trueCarrierDbc(dev, r.trims)).toBeGreaterThan(65);
+  });
+  it('keeps all four trims on their hardware grids', async () => {
+    const dev = drawAnalyticDevice(createRng(50));
+    const an = analyzer(dev, { seed: 12 });
+    const steps = { gainDb: 0.05, phaseDeg: 0.1, dcI: 2e-4, dcQ: 2e-4 };
+    const seen: Trims[] = [];
+    const r = await calibrateSidebandAndCarrier({
+      maxReadings: 16,
+      steps,
+      measure: (t) => {
+        seen.push(t);
+        return { sidebandDb: an.sideband(t), carrierDb: an.carrier(t) };
+      },
+    });
+    for (const t of [...seen, r.trims]) {
+      for (const k of ['gainDb', 'phaseDeg', 'dcI', 'dcQ'] as const) {
+        expect(Math.abs(t[k] / steps[k] - Math.round(t[k] / steps[k]))).toBeLessThan(1e-9);
+      }
+    }
+    expect(-trueSidebandDbc(dev, r.trims)).toBeGreaterThan(55);
+  });
+});
+
+describe("quantised hardware trims: steps and bounds in the trims' own units", () => {
+  const onGrid = (x: number, step: number) => Math.abs(x / step - Math.round(x / step)) < 1e-9;
+  // What a grid of steps (ΔG dB, Δφ°) allows wherever the null lies: the nearest grid point is
+  // within half a step on each axis, so suppression ≥ IRR(g = 10^(ΔG/40), φ = Δφ/2) from
+  // IRR = (1 + 2g cosφ + g²)/(1 − 2g cosφ + g²) (K. Schmidt, QEX Aug 1994 §2; REFERENCES.md §1).
+  const gridBoundDb = (stepDb: number, stepDeg: number) =>
+    imageRejectionDb(10 ** (stepDb / 40), degToRad(stepDeg / 2));
+
+  it('sideband at 0.05 dB and 0.1° steps: every setting on the grid, and as deep as the grid allows', async () => {
+    const stepDb = 0.05;
+    const stepDeg = 0.1;
+    const bound = gridBoundDb(stepDb, stepDeg);
+    // REFERENCES.md §1 [C]: 0.05 dB alone gives 50.818 dB; half a step each way is worth more.
+    expect(imageRejectionDb(10 ** (0.05 / 20), 0)).toBeCloseTo(50.818, 2);
+    expect(bound).toBeGreaterThan(55);
+    expect(bound).toBeLessThan(60);
+    for (let i = 0; i < 40; i++) {
+      const dev = drawAnalyticDevice(createRng(8100 + i));
+      const an = analyzer(dev, { seed: 8200 + i });
+      const seen: Trims[] = [];
+      const r = await calibrateSideband({
+        measure: (t) => {
+          seen.push(t);
+          return an.sideband(t);
+        },
+        maxReadings: 16,
+        steps: { gainDb: stepDb, phaseDeg: stepDeg },
+      });
+      for (const t of [...seen, r.trims]) {
+        expect(onGrid(t.gainDb, stepDb)).toBe(true);
+        expect(onGrid(t.phaseDeg, stepDeg)).toBe(true);
+      }
+      // The best grid point for this device, by the same formula: the grid around its exact null.
+      const g0 = -20 * Math.log10(dev.gain);
+      const p0 = (-dev.phaseRad * 180) / Math.PI;
+      let bestGrid = 0;
+      for (let a = -2; a <= 2; a++) {
+        for (let b = -2; b <= 2; b++) {
+          const g = (Math.round(g0 / stepDb) + a) * stepDb;
+          const p = (Math.round(p0 / stepDeg) + b) * stepDeg;
+          bestGrid = Math.max(bestGrid, -trueSidebandDbc(dev, { gainDb: g, phaseDeg: p }));
+        }
+      }
+      expect(bestGrid).toBeGreaterThanOrEqual(bound - 1e-9);
+      const reached = -trueSidebandDbc(dev, r.trims);
+      // Readings stop at the −70 dBc floor: grid points deeper than about 65 dB look alike.
+      expect(reached).toBeGreaterThanOrEqual(Math.min(bestGrid, 65) - 1);
+      expect(reached).toBeGreaterThanOrEqual(bound - 1);
+    }
+  });
+
+  it('carrier at 1e-4 full-scale DC steps: on the grid and as deep as the grid allows', async () => {
+    const step = 1e-4;
+    for (let i = 0; i < 30; i++) {
+      const dev = drawAnalyticDevice(createRng(8300 + i));
+      const an = analyzer(dev, { seed: 8400 + i });
+      const seen: Trims[] = [];
+      const r = await calibrateCarrier({
+        measure: (t) => {
+          seen.push(t);
+          return an.carrier(t);
+        },
+        maxReadings: 16,
+        steps: { dcI: step, dcQ: step },
+      });
+      for (const t of [...seen, r.trims]) {
+        expect(onGrid(t.dcI, step)).toBe(true);
+        expect(onGrid(t.dcQ, step)).toBe(true);
+      }
+      // REFERENCES.md §1: carrier = 20·log10(|d|/A); the grid leaves at most half a step per axis
+      // (the DC gain of each channel scales the step it sees).
+      const half = Math.hypot((dev.dcGainI * step) / 2, (dev.dcGainQ * step) / 2);
+      const bound = -20 * Math.log10(half / dev.toneAmplitude);
+      const i0 = Math.round(-dev.dcI / dev.dcGainI / step);
+      const q0 = Math.round(-dev.dcQ / dev.dcGainQ / step);
+      let bestGrid = 0;
+      for (let a = -2; a <= 2; a++) {
+        for (let b = -2; b <= 2; b++) {
+          bestGrid = Math.max(bestGrid, -trueCarrierDbc(dev, { dcI: (i0 + a) * step, dcQ: (q0 + b) * step }));
+        }
+      }
+      expect(bestGrid).toBeGreaterThanOrEqual(bound - 1e-9);
+      const reached = -trueCarrierDbc(dev, r.trims);
+      expect(reached).toBeGreaterThanOrEqual(Math.min(bestGrid, 65) - 1);
+    }
+  });
+
+  it('keeps every setting inside the given bounds and stops at the bound when the null lies beyond', async () => {
+    const dev = { ...drawAnalyticDevice(createRng(8500)), gain: 10 ** (-0.8 / 20), phaseRad: 0.004 };
+    const an = analyzer(dev, { seed: 8501 });
+    const seen: Trims[] = [];
+    const r = await calibrateSideband({
+      measure: (t) => {
+        seen.push(t);
+        return an.sideband(t);
+      },
+      steps: { gainDb: 0.05, phaseDeg: 0.1 },
+      bounds: { gainDb: [-0.5, 0.5], phaseDeg: [-2, 2] },
+    });
+    for (const t of [...seen, r.trims]) {
+      expect(t.gainDb).toBeGreaterThanOrEqual(-0.5 - 1e-12);
+      expect(t.gainDb).toBeLessThanOrEqual(0.5 + 1e-12);
+      expect(Math.abs(t.phaseDeg)).toBeLessThanOrEqual(2 + 1e-12);
+    }
+    // The null needs +0.8 dB; the best the range allows is +0.5 dB (0.3 dB left: about 35 dB).
+    expect(r.trims.gainDb).toBeCloseTo(0.5, 9);
+    expect(-trueSidebandDbc(dev, r.trims)).toBeGreaterThan(34);
+  });
+
+  it("names a bad step or bound, and a start outside the bounds, in the trims' units", async () => {
+    await expect(calibrateSideband({ measure: () => 0, steps: { gainDb: -0.1 } })).rejects.toThrow(
+      /steps.gainDb -0.1/,
+    );
+    await expect(calibrateSideband({ measure: () => 0, bounds: { phaseDeg: [3, -3] } })).rejects.toThrow(
+      /bounds.phaseDeg \[3, -3\]/,
+    );
+    await expect(
+      calibrateCarrier({ measure: () => 0, start: { dcI: 0.2 }, bounds: { dcI: [-0.1, 0.1] } }),
+    ).rejects.toThrow(/start dcI 0.2 lies outside bounds.dcI \[-0.1, 0.1\]/);
   });
 });
 

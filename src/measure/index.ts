@@ -1,4 +1,5 @@
 export * from './fft.js';
+export * from './leakage.js';
 export * from './sideband.js';
 export * from './signal.js';
 export * from './spectrum.js';

@@ -72,10 +72,13 @@ export const DEFAULT_SIDEBAND_OPTIONS = Object.freeze({
  *
  * With `q` given, `(i, q)` is an I/Q capture of the RF around the carrier (complex baseband). With
  * `q` null or undefined, `i` is a receiver's audio and `offsetHz` says where the carrier lands in it.
- * The wanted tone is located (within `searchHz`) and read between bins; the carrier is located
- * when it stands clear of the floor, otherwise read at its nominal frequency; the unwanted tone is
- * read at the mirror of the measured wanted frequency about the carrier (refined when clear of the
- * floor), so tuning and clock errors do not bias the readings.
+ * The wanted tone is located (within `searchHz`) and read between bins. The carrier is located
+ * when it stands clear of the noise floor and of the tones' window leakage; the unwanted tone is
+ * then read at the mirror of the measured wanted frequency about it (a known frequency, not sought).
+ * Without a located carrier, the unwanted tone is sought between the two places a frequency error
+ * can put it (moved with the wanted tone by a tuning error, or against it by an error of the tone
+ * itself) when it stands clear, and the carrier is read midway between the sidebands; otherwise it
+ * is read at the mirror about the nominal carrier. So tuning and clock errors do not bias the readings.
  *
  * @example
  * ```ts
@@ -149,13 +152,32 @@ export function measureSideband(
   const fu = at(-s * toneHz);
   const fc = at(0);
   const reader = createToneReader(capture, sampleRate, [fw, fu, fc], options);
-  const wanted = reader.read(fw);
-  const carrier = reader.read({ hz: fc });
-  // Mirror of the measured wanted frequency about the carrier (measured if located, else nominal).
-  const mirror = 2 * carrier.frequencyHz - wanted.frequencyHz;
+  const res = reader.spectrum.resolutionHz;
   const nyq = sampleRate / 2;
-  const mirrorOk = iq ? Math.abs(mirror) < nyq : mirror > 0 && mirror < nyq;
-  const unwanted = reader.read({ hz: mirrorOk ? mirror : fu, searchHz: reader.spectrum.resolutionHz });
+  const inRange = (f: number): boolean => (iq ? Math.abs(f) < nyq : f > 0 && f < nyq);
+  const wanted = reader.read(fw);
+  let carrier = reader.read({ hz: fc });
+  let unwanted: ToneReading;
+  if (carrier.refined) {
+    // The carrier located: the unwanted tone is the mirror of the wanted about it, a known frequency.
+    const mirror = 2 * carrier.frequencyHz - wanted.frequencyHz;
+    unwanted = reader.read({ hz: inRange(mirror) ? mirror : fu, refine: 'never' });
+  } else {
+    // No carrier to go by. A tuning (or clock) error moves the unwanted tone with the wanted one,
+    // to fu + δ; an error in the tone's own frequency moves it the other way, to fu − δ (the mirror
+    // about the nominal carrier). Seek it over that span when it stands clear of floor and leakage.
+    const shift = wanted.frequencyHz - fw;
+    unwanted = reader.read({ hz: fu, searchHz: Math.abs(shift) + res / 2 });
+    if (unwanted.refined) {
+      // The carrier lies midway between the two sidebands: read it there.
+      const mid = (wanted.frequencyHz + unwanted.frequencyHz) / 2;
+      if (inRange(mid) && Math.abs(mid - fc) > 0.001 * res)
+        carrier = reader.read({ hz: mid, refine: 'never' });
+    } else {
+      const mirror = 2 * fc - wanted.frequencyHz;
+      unwanted = reader.read({ hz: inRange(mirror) ? mirror : fu, refine: 'never' });
+    }
+  }
   const unwantedDbc = unwanted.levelDbfs - wanted.levelDbfs;
   const carrierDbc = carrier.levelDbfs - wanted.levelDbfs;
   return {

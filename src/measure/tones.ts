@@ -10,12 +10,15 @@
  * References: Heinzel 2002 §10 (scaling), Welch 1967 (averaging); the direct-evaluation refinement
  * follows the maximum-likelihood single-tone estimator of D. C. Rife & R. R. Boorstyn, IEEE Trans.
  * Inf. Theory 20(5):591, 1974 (maximise the periodogram), here with a window and frame averaging.
- * With the flat-top window the response's maximum is not at the tone (its +0.0044 dB ripple), so
- * the refined frequency may be off by up to about 0.3 bin; the level stays within the flatness.
+ * The flat-top window's response peaks off the tone (its +0.0044 dB ripple), so with it the
+ * frequency is sought with the Blackman–Harris window and the level read with the flat-top.
+ * A tone is refined only when it stands clear of the noise floor and of the window leakage of the
+ * strong components between bins (leakage.ts); otherwise it is read at its nominal frequency.
  */
 import { OrthotoneError } from '../core/errors.js';
 import { requireFinite, requireRange, requireSampleRate } from '../core/validate.js';
 import { WINDOW_MAIN_LOBE_HALF_WIDTH_BINS } from '../core/windows.js';
+import { leakageNear, strongestPeaks } from './leakage.js';
 import { type Capture, isIqCapture } from './signal.js';
 import {
   binFrequency,
@@ -37,7 +40,10 @@ export interface ToneOptions extends SpectrumOptions {
    * third of the way to the nearest other tone.
    */
   searchHz: number | undefined;
-  /** Refine the frequency only of tones at least this far above the floor, dB (default 15). */
+  /**
+   * Refine the frequency only of tones at least this far above the noise floor plus the window leakage
+   * of the strong components between bins, dB (default 15); others are read at their nominal frequency.
+   */
   refineAboveFloorDb: number;
   /** Subtract the expected noise power from each tone's power (default true). */
   subtractFloor: boolean;
@@ -186,6 +192,12 @@ export function createToneReader(
   const spacing = leastSpacingHz(features, sampleRate, complex);
   const spectrum = computeSpectrum(capture, sampleRate, opts, spacing);
   const window = sharedWindow(spectrum.window, spectrum.frameLength);
+  // The frequency is found where the windowed transform peaks. A flat-top window's response is flat
+  // to ±0.0044 dB over ±0.5 bin and peaks off the tone, so its maximum does not locate the tone:
+  // with it, the frequency is sought with the Blackman–Harris window (peaked, sidelobes −92 dB,
+  // main lobe narrower than the flat-top's) and the level is still read with the flat-top.
+  const peakWindow =
+    spectrum.window === 'flattop' ? sharedWindow('blackman-harris', spectrum.frameLength) : window;
   // One Float64 copy so the direct evaluations below run on a single array type.
   const f64 = (a: ArrayLike<number>): Float64Array => (a instanceof Float64Array ? a : Float64Array.from(a));
   const data: Capture = isIqCapture(capture) ? { i: f64(capture.i), q: f64(capture.q) } : f64(capture);
@@ -198,11 +210,18 @@ export function createToneReader(
   const nyq = sampleRate / 2;
   const clampHz = (f: number): number =>
     complex ? Math.max(-nyq + res, Math.min(nyq - res, f)) : Math.max(0, Math.min(nyq - res, f));
+  // The strongest components, whose window leakage between bins a weak tone must stand clear of.
+  const peaks = strongestPeaks(spectrum, 16);
+  const pw = spectrum.power;
+  const nb = pw.length;
+  const binPower = (k: number): number => (spectrum.complex ? pw[((k % nb) + nb) % nb]! : (pw[k] ?? 0));
   const read = (t: ToneRequest): ToneReading => {
     const hz = reqHz(t);
     requireToneFrequencies([hz], sampleRate, complex);
+    // Features within a main-lobe half-width of hz are this tone itself (read again near its nominal
+    // frequency, e.g. at the mirror of a measured one); features are planned farther apart than that.
     const nearest = features.reduce(
-      (m, f) => (Math.abs(f - hz) > 1e-9 ? Math.min(m, Math.abs(f - hz)) : m),
+      (m, f) => (Math.abs(f - hz) > half * res ? Math.min(m, Math.abs(f - hz)) : m),
       Number.POSITIVE_INFINITY,
     );
     const ownSearch = typeof t === 'number' ? undefined : t.searchHz;
@@ -217,35 +236,61 @@ export function createToneReader(
     const k1 = Math.ceil((hz + search) / spectrum.binHz);
     for (let kk = k0; kk <= k1; kk++) {
       const k = frequencyBin(spectrum, kk * spectrum.binHz);
-      if (k < 0 || k >= spectrum.power.length) continue;
+      if (k < 0 || k >= nb) continue;
       const f = binFrequency(spectrum, k);
       if (Math.abs(f - hz) > search + spectrum.binHz / 2) continue;
-      if (spectrum.power[k]! > bestP) {
-        bestP = spectrum.power[k]!;
+      if (pw[k]! > bestP) {
+        bestP = pw[k]!;
         bestK = k;
       }
     }
+    // A tone is refined only when its bin is a peak (not the flank of something outside the span)
+    // standing clear of the noise floor plus the leakage of every strong component between bins
+    // (leakage.ts): against the floor alone, a noise-free capture's weak or absent tone "stands clear"
+    // of rounding noise and the refinement climbs the strong tones' sidelobes.
+    const isPeak = bestP > 0 && bestP >= binPower(bestK - 1) && bestP >= binPower(bestK + 1);
+    const clutter =
+      (Number.isFinite(floor) ? floor : 0) +
+      leakageNear(spectrum, peaks, hz, search, search + spectrum.binHz);
     let freq = hz;
     let refined = false;
-    if (mayRefine && bestP > 0 && 10 * Math.log10(bestP / floor) >= opts.refineAboveFloorDb) {
+    if (mayRefine && isPeak && 10 * Math.log10(bestP / clutter) >= opts.refineAboveFloorDb) {
       // Start from the parabola through the averaged spectrum's log power at the peak bin and its
-      // neighbours, then iterate parabolas through the directly evaluated power at shrinking spacings.
-      const lp = (f: number): number =>
-        Math.log(Math.max(powerAt(data, spectrum, window, clampHz(f)), 1e-300));
+      // neighbours, then iterate parabolas through the directly evaluated power at spacings of 0.1
+      // and 0.01 bin, each until the vertex falls inside its bracket (a clamped step means the
+      // maximum lies farther out).
+      const memo = new Map<number, number>();
+      const lp = (f: number): number => {
+        let v = memo.get(f);
+        if (v === undefined) {
+          v = Math.log(Math.max(powerAt(data, spectrum, peakWindow, clampHz(f)), 1e-300));
+          memo.set(f, v);
+        }
+        return v;
+      };
       const vertex = (c: number, h: number, a: number, b: number, d: number): number => {
         const den = a - 2 * b + d;
-        if (!(den < 0)) return c; // not a maximum: keep the centre
+        if (!(den < 0)) return a > d ? c - h : d > a ? c + h : c; // not a maximum: step uphill
         return c + Math.max(-1, Math.min(1, (0.5 * (a - d)) / den)) * h;
       };
-      const pw = spectrum.power;
-      const nb = pw.length;
-      const at = (k: number): number => Math.log(Math.max(pw[((k % nb) + nb) % nb]!, 1e-300));
-      let f = binFrequency(spectrum, bestK);
+      const at = (k: number): number => Math.log(Math.max(binPower(k), 1e-300));
+      const fk = binFrequency(spectrum, bestK);
+      let f = fk;
       if (spectrum.complex || (bestK > 0 && bestK < nb - 1)) {
         f = vertex(f, spectrum.binHz, at(bestK - 1), at(bestK), at(bestK + 1));
       }
-      for (const h of [0.1, 0.01]) f = vertex(f, h * res, lp(f - h * res), lp(f), lp(f + h * res));
-      if (Math.abs(f - hz) <= search + res) {
+      for (const [h, tries] of [
+        [0.1 * res, 6],
+        [0.01 * res, 4],
+      ] as const) {
+        for (let it = 0; it < tries; it++) {
+          const next = vertex(f, h, lp(f - h), lp(f), lp(f + h));
+          const step = Math.abs(next - f);
+          f = next;
+          if (step < 0.999 * h) break;
+        }
+      }
+      if (Math.abs(f - hz) <= search + res && Math.abs(f - fk) <= res) {
         freq = clampHz(f);
         refined = true;
       }

@@ -67,7 +67,7 @@ describe('measureTones: levels (AES17, Heinzel 2002 scaling)', () => {
         const hz = 1500 + d * bin;
         const [r] = measureTones(sine(len, [[0.5, hz, 0.7 * d]]), fs, [1500], { window });
         worst = Math.max(worst, Math.abs(r!.levelDbfs - 20 * Math.log10(0.5)));
-        expect(Math.abs(r!.frequencyHz - hz)).toBeLessThan(window === 'flattop' ? 0.3 * bin : 0.01 * bin);
+        expect(Math.abs(r!.frequencyHz - hz)).toBeLessThan(0.01 * bin);
       }
       expect(worst).toBeLessThan(0.02);
     });

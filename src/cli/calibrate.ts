@@ -5,7 +5,7 @@
  * table and the resulting suppression; writes a profile and a C header on request.
  */
 import { exec } from 'node:child_process';
-import { writeFile } from 'node:fs/promises';
+import { readFile, writeFile } from 'node:fs/promises';
 import { createInterface } from 'node:readline/promises';
 import { carrierAxes } from '../calibrate/carrier.js';
 import type { Diagnosis } from '../calibrate/diagnosis.js';
@@ -20,7 +20,11 @@ import {
   type TrimCalibrationResult,
 } from '../calibrate/trim-calibration.js';
 import { cautionsText } from '../core/cautions.js';
+import { OrthotoneError } from '../core/errors.js';
 import { type Trims, ZERO_TRIMS } from '../core/trims.js';
+import { requireSampleRate } from '../core/validate.js';
+import type { Network } from '../design/network.js';
+import { parseNetworkJson } from '../export/network-json.js';
 import { profileToCHeader } from '../export/profile-header.js';
 import { createAnalyzer } from '../simulate/analyzer.js';
 import { createVirtualExciter, type VirtualExciter } from '../simulate/exciter.js';
@@ -52,6 +56,10 @@ where the readings come from:
 options:
   --what W               sideband | carrier | both (default both: sideband first, then carrier)
   --tone HZ              test tone (default 1000)
+  --rate HZ              sample rate the trims apply at, recorded in the profile (default 48000,
+                         or the network's)
+  --network FILE         the 90° network document in use: its rate is the calibration's, and the
+                         profile carries it
   --tone-amplitude A     peak tone level, full scale 1, if known (fixes the carrier bowl's curvature)
   --max-readings N       budget per null (default 16)
   --target DB            stop a null once the fit puts it this many dB down
@@ -74,6 +82,8 @@ const OPTIONS = {
   'measure-command': { type: 'string' },
   what: { type: 'string' },
   tone: { type: 'string' },
+  rate: { type: 'string' },
+  network: { type: 'string' },
   'tone-amplitude': { type: 'string' },
   'max-readings': { type: 'string' },
   target: { type: 'string' },
@@ -174,6 +184,28 @@ async function promptLoop(
   }
 }
 
+/**
+ * Reads and validates a network document file.
+ * @throws {UsageError} when the file cannot be read; {OrthotoneError} INVALID_DOCUMENT when it is
+ *   not a network document.
+ */
+async function readNetwork(file: string): Promise<Network> {
+  let text: string;
+  try {
+    text = await readFile(file, 'utf8');
+  } catch (e) {
+    throw new UsageError(`cannot read ${file}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
+  }
+  try {
+    return parseNetworkJson(text);
+  } catch (e) {
+    if (e instanceof OrthotoneError) {
+      throw new UsageError(`--network ${file} is not a valid network document: ${e.message}`);
+    }
+    throw e;
+  }
+}
+
 /** Runs a shell command and parses the first number it prints. */
 function commandReading(cmd: string, env: Record<string, string>): Promise<number> {
   return new Promise((resolve, reject) => {
@@ -213,10 +245,29 @@ export async function run(argv: string[]): Promise<number> {
   const targetDb = numberOpt('target', v.target);
   const noiseDb = numberOpt('noise', v.noise ?? '0.5')!;
   const floorDb = numberOpt('floor', v.floor);
+  const network = typeof v.network === 'string' ? await readNetwork(v.network) : undefined;
+  const givenRate = numberOpt('rate', v.rate);
+  if (givenRate !== undefined) requireSampleRate(givenRate);
+  if (network && givenRate !== undefined && givenRate !== network.sampleRate) {
+    throw new UsageError(
+      `--rate ${givenRate} Hz disagrees with the network ${v.network as string}, designed for ${network.sampleRate} Hz: drop --rate or give the network's rate`,
+    );
+  }
+  const sampleRate = network?.sampleRate ?? givenRate ?? 48000;
+  if (!(toneHz > 0 && toneHz < sampleRate / 2)) {
+    throw new UsageError(
+      `--tone ${toneHz} Hz must lie below the Nyquist frequency ${sampleRate / 2} Hz of the ${sampleRate} Hz rate`,
+    );
+  }
   const out = (s: string): void => {
     if (format === 'table') process.stdout.write(s);
   };
   out(`${cautionsText()}\n\n`);
+  if (network && (toneHz < network.band[0] || toneHz > network.band[1])) {
+    out(
+      `note: the ${toneHz} Hz tone lies outside the network's band ${network.band[0]}-${network.band[1]} Hz: the trims found there may not hold in the band\n`,
+    );
+  }
 
   let exciter: VirtualExciter | undefined;
   let analyzer: ReturnType<typeof createAnalyzer> | undefined;
@@ -227,7 +278,7 @@ export async function run(argv: string[]): Promise<number> {
     const tol = parseTolerance(v.tolerance as string | undefined, preset);
     const deviceSeed = numberOpt('device-seed', v['device-seed'] ?? String(HOMEBREW_BENCH_SEED))!;
     const seed = numberOpt('seed', v.seed ?? '1')!;
-    exciter = createVirtualExciter(drawDevice(tol, deviceSeed), { sampleRate: 48000, seed });
+    exciter = createVirtualExciter(drawDevice(tol, deviceSeed), { sampleRate, seed });
     analyzer = createAnalyzer(exciter, {
       seed,
       floorDbc: floorDb ?? -70,
@@ -373,7 +424,14 @@ export async function run(argv: string[]): Promise<number> {
         readingsUsed: runs.reduce((s, r) => s + r.result.readings, 0),
         source: 'fit' as const,
       };
-  const profile = createProfile({ sampleRate: 48000, toneHz, trims: current, readings, results });
+  const profile = createProfile({
+    sampleRate,
+    toneHz,
+    trims: current,
+    readings,
+    results,
+    ...(network ? { network } : {}),
+  });
   if (v.profile) {
     await writeFile(v.profile as string, profileToJson(profile));
     out(`wrote profile ${v.profile}\n`);

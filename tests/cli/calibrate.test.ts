@@ -1,12 +1,14 @@
 // Runs the built CLI (npm test builds first) as a user would.
 import { spawn } from 'node:child_process';
-import { mkdtempSync, readFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { validateProfile } from '../../src/calibrate/profile.js';
 import { TRANSMIT_CAUTIONS } from '../../src/core/cautions.js';
 import { createRng } from '../../src/core/rng.js';
+import { designNetwork } from '../../src/design/design-network.js';
+import { networkToJson } from '../../src/export/network-json.js';
 import { drawAnalyticDevice, trueCarrierDbc, trueSidebandDbc } from '../calibrate/analytic-exciter.js';
 import { cli } from '../support/cli.js';
 
@@ -65,6 +67,63 @@ describe('orthotone calibrate --simulate', () => {
     const r = cli(['calibrate', '--simulate', '--prompt']);
     expect(r.status).toBe(2);
     expect(r.stderr).toMatch(/exactly one of --simulate, --prompt or --measure-command/);
+  });
+});
+
+describe('orthotone calibrate: the sample rate and the network the profile was made with', () => {
+  const profileOf = (args: string[]) => {
+    const dir = mkdtempSync(join(tmpdir(), 'ot-cal-rate-'));
+    const file = join(dir, 'p.json');
+    const r = cli([
+      'calibrate',
+      '--simulate',
+      '--what',
+      'sideband',
+      '--max-readings',
+      '8',
+      '--profile',
+      file,
+      ...args,
+    ]);
+    return {
+      r,
+      profile: r.status === 0 ? validateProfile(JSON.parse(readFileSync(file, 'utf8'))) : undefined,
+    };
+  };
+  it('--rate sets the profile sample rate (no network: network null)', () => {
+    const { r, profile } = profileOf(['--rate', '44100']);
+    expect(r.status).toBe(0);
+    expect(profile!.sampleRate).toBe(44100);
+    expect(profile!.network).toBeNull();
+  });
+  it('--network FILE: the rate comes from the network document, which the profile carries', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'ot-cal-net-'));
+    const netFile = join(dir, 'net.json');
+    const net = designNetwork({ sampleRate: 96000, band: [300, 3000], method: 'allpass', targetDb: 50 });
+    writeFileSync(netFile, networkToJson(net));
+    const { r, profile } = profileOf(['--network', netFile]);
+    expect(r.status).toBe(0);
+    expect(profile!.sampleRate).toBe(96000);
+    expect(profile!.network).toEqual(JSON.parse(networkToJson(net)));
+    // The same rate given twice is accepted; a different one is refused, naming both.
+    expect(profileOf(['--network', netFile, '--rate', '96000']).r.status).toBe(0);
+    const clash = profileOf(['--network', netFile, '--rate', '48000']).r;
+    expect(clash.status).toBe(2);
+    expect(clash.stderr).toMatch(/--rate 48000 Hz .*96000 Hz/);
+  });
+  it('refuses a bad rate, a tone above Nyquist, and an unreadable or invalid network file', () => {
+    const bad = (args: string[], re: RegExp) => {
+      const r = cli(['calibrate', '--simulate', '--what', 'sideband', ...args]);
+      expect(r.status).toBe(2);
+      expect(r.stderr).toMatch(re);
+    };
+    bad(['--rate', 'fast'], /--rate "fast" is not a number/);
+    bad(['--rate', '500'], /sampleRate 500/);
+    bad(['--rate', '8000', '--tone', '5000'], /--tone 5000 Hz must lie below .*4000 Hz/);
+    bad(['--network', '/nonexistent/net.json'], /cannot read \/nonexistent\/net.json/);
+    const dir = mkdtempSync(join(tmpdir(), 'ot-cal-bad-'));
+    writeFileSync(join(dir, 'x.json'), '{"format":"something-else"}');
+    bad(['--network', join(dir, 'x.json')], /network/);
   });
 });
 

@@ -11,12 +11,19 @@
  *    measureSideband at the audio offset where the carrier lands.
  */
 import { type CombinedCalibrationResult, calibrateSidebandAndCarrier } from '../../src/calibrate/combined.js';
+import { calibrateMultitone, type MultitoneResult } from '../../src/calibrate/multitone.js';
 import type { CalibrationStep } from '../../src/calibrate/trim-calibration.js';
 import type { Trims } from '../../src/core/trims.js';
-import { measureSideband } from '../../src/measure/sideband.js';
+import { measureSideband, type SidebandReading } from '../../src/measure/sideband.js';
+import { measureTones } from '../../src/measure/tones.js';
 import { createVirtualExciter } from '../../src/simulate/exciter.js';
-import { drawDevice, type ExciterModel, TOLERANCE_PRESETS } from '../../src/simulate/model.js';
-import { type CaptureNode, createCaptureNode } from '../../src/webaudio/capture-node.js';
+import {
+  drawDevice,
+  type ExciterModel,
+  TOLERANCE_PRESETS,
+  type TolerancePreset,
+} from '../../src/simulate/model.js';
+import { type CaptureNode, type CaptureResult, createCaptureNode } from '../../src/webaudio/capture-node.js';
 import { createTrimReader } from '../../src/webaudio/trim-reader.js';
 import { type Running, workletUrl } from './engine.js';
 
@@ -32,37 +39,85 @@ export interface Levels {
  */
 const FRAME = 4096;
 
+/**
+ * An invented bench of our own whose imbalance changes across the band: the hand-built bench's
+ * parts plus up to ±2 µs of codec skew between the channels and ±10% spread on 20 Hz coupling and
+ * 20 kHz anti-imaging corners. Skew τ gives a phase error of 2πfτ (REFERENCES.md §6), so one pair
+ * of trims cannot null the whole band: the multi-tone correction filter can.
+ */
+const SKEW_BENCH: Readonly<TolerancePreset> = Object.freeze({
+  ...TOLERANCE_PRESETS['homebrew-bench']!,
+  skewSeconds: 2e-6,
+  couplingHighPassHz: 20,
+  antiImagingLowPassHz: 20000,
+  cornerPct: 10,
+});
+
 /** The invented benches the virtual exciter can stand for (tolerance presets of simulate/). */
 export const VIRTUAL_BENCHES: [string, string][] = [
   ['homebrew-bench', 'Hand-built bench: 0.5% resistors, 6 mV offsets, 16-bit codec'],
   ['one-percent', 'Kit build: 1% resistors, 2 mV offsets, 16-bit codec'],
   ['precision', 'Precision build: 0.1% resistors, 0.5 mV offsets, 24-bit codec'],
+  ['skew-bench', 'Hand-built bench with codec skew and mismatched filter corners'],
 ];
 
 /** A device drawn from a preset and a seed. */
 export function virtualDevice(preset: string, seed: number): ExciterModel {
-  const t = TOLERANCE_PRESETS[preset] ?? TOLERANCE_PRESETS['homebrew-bench']!;
+  const t =
+    preset === 'skew-bench'
+      ? SKEW_BENCH
+      : (TOLERANCE_PRESETS[preset] ?? TOLERANCE_PRESETS['homebrew-bench']!);
   return drawDevice(t, seed);
 }
 
-/** Reads captured I/Q through a virtual exciter and its receiver (continuous between readings). */
+/**
+ * Samples the virtual exciter needs to settle on a fresh capture: its latency, its FIR length, and
+ * ten time constants of the lowest coupling high-pass (e^−10: −87 dB) when it is AC-coupled.
+ */
+function settleSamples(model: ExciterModel, fs: number): number {
+  const hp = Math.min(...model.couplingHighPassHz.filter((f) => f > 0));
+  const tau = Number.isFinite(hp) ? 1 / (2 * Math.PI * hp) : 0;
+  return 24 + 64 + 32 + Math.ceil(10 * tau * fs);
+}
+
+/** Capture length a virtual reading needs, seconds: the settling span plus 1.5 frames. */
+export function virtualCaptureSeconds(model: ExciterModel, fs: number): number {
+  return (settleSamples(model, fs) + 1.5 * FRAME) / fs;
+}
+
+/**
+ * Runs each capture of the generator's I/Q through a fresh virtual exciter (its own noise seed per
+ * reading, so readings are independent) and returns the receiver's complex baseband after the
+ * exciter has settled.
+ */
+function virtualPath(
+  model: ExciterModel,
+  opts: { sampleRate: number; seed: number },
+): (cap: { channels: Float32Array[] }) => { re: Float32Array; im: Float32Array } {
+  let count = 0;
+  const skip = settleSamples(model, opts.sampleRate);
+  return (cap) => {
+    const [i, q] = cap.channels as [Float32Array, Float32Array];
+    const exciter = createVirtualExciter(model, {
+      sampleRate: opts.sampleRate,
+      seed: opts.seed + 7919 * count++,
+    });
+    const re = new Float32Array(i.length);
+    const im = new Float32Array(i.length);
+    exciter.process(i, q, re, im);
+    return { re: re.subarray(skip), im: im.subarray(skip) };
+  };
+}
+
+/** Reads captured I/Q through a virtual exciter and its receiver: sideband and carrier, dBc. */
 export function virtualReader(
   model: ExciterModel,
   opts: { sampleRate: number; seed: number; toneHz: number; sideband: 'upper' | 'lower' },
 ): (cap: { channels: Float32Array[] }) => Levels {
-  const exciter = createVirtualExciter(model, { sampleRate: opts.sampleRate, seed: opts.seed });
-  let re = new Float32Array(0);
-  let im = new Float32Array(0);
+  const path = virtualPath(model, opts);
   return (cap) => {
-    const [i, q] = cap.channels as [Float32Array, Float32Array];
-    if (re.length !== i.length) {
-      re = new Float32Array(i.length);
-      im = new Float32Array(i.length);
-    }
-    exciter.process(i, q, re, im);
-    // Each capture starts where the last one stopped: skip the exciter's filter transient.
-    const skip = 256 + exciter.latencySamples;
-    const r = measureSideband(re.subarray(skip), im.subarray(skip), opts.sampleRate, {
+    const { re, im } = path(cap);
+    const r = measureSideband(re, im, opts.sampleRate, {
       toneHz: opts.toneHz,
       sideband: opts.sideband,
       frameLength: FRAME,
@@ -71,18 +126,71 @@ export function virtualReader(
   };
 }
 
-/** Reads receiver audio (mono) with the carrier at `offsetHz`. */
-export function audioReader(opts: {
+/**
+ * Reads a multi-tone capture through a virtual exciter: the unwanted sideband of each tone (its
+ * mirror about the carrier) relative to that tone, dBc, in the order of `tonesHz`.
+ */
+export function virtualToneReader(
+  model: ExciterModel,
+  opts: { sampleRate: number; seed: number; tonesHz: readonly number[]; sideband: 'upper' | 'lower' },
+): (cap: { channels: Float32Array[] }) => number[] {
+  const path = virtualPath(model, opts);
+  const s = opts.sideband === 'upper' ? 1 : -1;
+  const freqs = [...opts.tonesHz.map((f) => s * f), ...opts.tonesHz.map((f) => -s * f)];
+  const K = opts.tonesHz.length;
+  return (cap) => {
+    const { re, im } = path(cap);
+    const r = measureTones({ i: re, q: im }, opts.sampleRate, freqs, { frameLength: FRAME });
+    return opts.tonesHz.map((_, k) => r[K + k]!.levelDbfs - r[k]!.levelDbfs);
+  };
+}
+
+/** Receiver-audio options: where the carrier lands and how the receiver demodulates. */
+export interface AudioReadingOptions {
   toneHz: number;
   sideband: 'upper' | 'lower';
   offsetHz: number;
   receiverSideband: 'upper' | 'lower';
-}): (cap: { channels: Float32Array[] }, sampleRate: number) => Levels {
+}
+
+/** Reads receiver audio (mono) with the carrier at `offsetHz`: the whole sideband reading. */
+export function readReceiverAudio(
+  samples: Float32Array,
+  fs: number,
+  opts: AudioReadingOptions,
+): SidebandReading {
+  return measureSideband(samples, null, fs, { ...opts, frameLength: FRAME });
+}
+
+/** Reads receiver audio (mono) with the carrier at `offsetHz`: sideband and carrier, dBc. */
+export function audioReader(
+  opts: AudioReadingOptions,
+): (cap: { channels: Float32Array[] }, sampleRate: number) => Levels {
   return (cap, fs) => {
-    const r = measureSideband(cap.channels[0]!, null, fs, { ...opts, frameLength: FRAME });
+    const r = readReceiverAudio(cap.channels[0]!, fs, opts);
     return { sidebandDb: r.unwantedDbc, carrierDb: r.carrierDbc };
   };
 }
+
+/**
+ * Checks that a tone and a carrier offset put the carrier, the wanted and the unwanted tone inside
+ * a receiver's audio (0…Nyquist), and says what to change when they do not; null when they fit.
+ */
+export function offsetProblem(toneHz: number, offsetHz: number, fs: number): string | null {
+  if (!(toneHz > 0) || !(offsetHz > 0))
+    return 'give the test tone and the carrier offset in Hz (both above 0)';
+  if (offsetHz - toneHz <= 0 || offsetHz + toneHz >= fs / 2) {
+    return `with a ${toneHz} Hz tone and the carrier at ${offsetHz} Hz, one sideband falls outside the receiver audio: put the carrier between ${toneHz} and ${fs / 2 - toneHz} Hz, e.g. a 700 Hz tone with the carrier at 1500 Hz (tones at 800 and 2200 Hz)`;
+  }
+  return null;
+}
+
+/** One reading of the calibration as the page reports it. */
+export type RunStep = CalibrationStep & {
+  carrierDb: number;
+  /** Time from setting the trims to the first captured sample, ms (audio-thread frames). */
+  waitedMs: number;
+};
 
 export interface CalibrationRun {
   result: CombinedCalibrationResult;
@@ -102,16 +210,48 @@ export interface RunOptions {
   settleSeconds: number;
   captureSeconds: number;
   signal?: AbortSignal;
-  onReading?: (step: CalibrationStep & { carrierDb: number }) => void;
+  onReading?: (step: RunStep) => void;
+}
+
+/**
+ * Wraps the node and the reader so that each reading also reports how long it actually waited:
+ * the context frame when the trims were set, and the first captured frame.
+ */
+function timed<T>(
+  running: Running,
+  read: (cap: CaptureResult, fs: number) => T,
+): {
+  node: Pick<Running['node'], 'setTrims' | 'sampleRate'>;
+  read: (cap: CaptureResult, fs: number) => T;
+  waits: number[];
+} {
+  const fs = running.ctx.sampleRate;
+  let setFrame = 0;
+  const waits: number[] = [];
+  return {
+    node: {
+      sampleRate: running.node.sampleRate,
+      setTrims(t, o) {
+        setFrame = Math.round(running.ctx.currentTime * fs);
+        running.node.setTrims(t, o);
+      },
+    },
+    read(cap, rate) {
+      waits.push((1000 * (cap.startFrame - setFrame)) / fs);
+      return read(cap, rate);
+    },
+    waits,
+  };
 }
 
 /** Runs the combined sideband and carrier calibration on the live node. */
 export async function runCalibration(o: RunOptions): Promise<CalibrationRun> {
   const node = o.running.node;
+  const t = timed(o.running, o.read);
   const measure = createTrimReader<Levels>({
-    node,
+    node: t.node,
     capture: o.capture,
-    read: o.read,
+    read: t.read,
     rampSeconds: 0.01,
     settleSeconds: o.settleSeconds,
     captureSeconds: o.captureSeconds,
@@ -124,7 +264,7 @@ export async function runCalibration(o: RunOptions): Promise<CalibrationRun> {
     noiseDb: o.noiseDb,
     maxReadings: o.maxReadings,
     signal: o.signal,
-    onReading: o.onReading,
+    onReading: (step) => o.onReading?.({ ...step, waitedMs: t.waits[t.waits.length - 1] ?? Number.NaN }),
   });
   const first = result.sideband.history[0];
   const firstCarrier = result.carrier.history[0];
@@ -141,6 +281,125 @@ export async function runCalibration(o: RunOptions): Promise<CalibrationRun> {
     result,
     verified,
     start: { sidebandDb: first?.levelDb ?? Number.NaN, carrierDb: firstCarrier?.levelDb ?? Number.NaN },
+  };
+}
+
+/** `count` tones spread evenly on a log scale over `band` (edges included). */
+export function logTones(band: readonly [number, number], count: number): number[] {
+  const [lo, hi] = band;
+  return Array.from({ length: count }, (_, k) => Math.round(lo * (hi / lo) ** (k / (count - 1))));
+}
+
+/** Suppression per verification tone, dB (positive), for three states of the generator. */
+export interface MultitoneRun {
+  result: MultitoneResult;
+  verifyHz: number[];
+  /** Start trims, no correction. */
+  before: number[];
+  /** The best single gain/phase setting for all tones (the centroid of the per-tone nulls), no correction. */
+  single: number[];
+  singleTrims: Trims;
+  /** The correction filter (and the result's trims). */
+  after: number[];
+}
+
+export interface MultitoneRunOptions {
+  running: Running;
+  model: ExciterModel;
+  seed: number;
+  tonesHz: number[];
+  verifyHz: number[];
+  band: [number, number];
+  taps: number;
+  maxReadings: number;
+  noiseDb: number;
+  sideband: 'upper' | 'lower';
+  signal?: AbortSignal;
+  onReading?: (step: { index: number; trims: Trims; levelsDb: number[] }) => void;
+  onStage?: (text: string) => void;
+}
+
+/**
+ * Multi-tone calibration on the live node against the in-page virtual exciter: the node plays the
+ * calibration tones together (its `multitone` source), each reading sets gain and phase, waits,
+ * captures the I/Q and reads every tone's unwanted sideband; calibrateMultitone fits the per-tone
+ * nulls and designs the correction filter, which is then sent to the node (setCorrection). The
+ * band is checked before and after with a denser set of tones.
+ */
+export async function runMultitoneCalibration(o: MultitoneRunOptions): Promise<MultitoneRun> {
+  const { node, ctx, iq } = o.running;
+  const fs = ctx.sampleRate;
+  const captureSeconds = virtualCaptureSeconds(o.model, fs);
+  const settleSeconds = 0.05;
+  const verifyRead = virtualToneReader(o.model, {
+    sampleRate: fs,
+    seed: o.seed + 1,
+    tonesHz: o.verifyHz,
+    sideband: o.sideband,
+  });
+  const verifyReader = createTrimReader<number[]>({
+    node,
+    capture: iq,
+    read: verifyRead,
+    settleSeconds,
+    captureSeconds,
+    signal: o.signal,
+  });
+  const check = async (trims: Partial<Trims>): Promise<number[]> =>
+    (await verifyReader(trims)).map((db) => -db);
+  o.onStage?.('Reading the band with the start trims…');
+  await node.setCorrection(null);
+  const start = node.getTrims();
+  await node.setSource({ kind: 'multitone', frequenciesHz: o.verifyHz });
+  const before = await check(start);
+  o.onStage?.(`Reading ${o.tonesHz.length} tones together while the seeker moves gain and phase…`);
+  await node.setSource({ kind: 'multitone', frequenciesHz: o.tonesHz });
+  const measure = createTrimReader<number[]>({
+    node,
+    capture: iq,
+    read: virtualToneReader(o.model, {
+      sampleRate: fs,
+      seed: o.seed,
+      tonesHz: o.tonesHz,
+      sideband: o.sideband,
+    }),
+    settleSeconds,
+    captureSeconds,
+    signal: o.signal,
+  });
+  const result = await calibrateMultitone({
+    measure,
+    tonesHz: o.tonesHz,
+    sampleRate: fs,
+    band: o.band,
+    taps: o.taps,
+    start,
+    noiseDb: o.noiseDb,
+    maxReadings: o.maxReadings,
+    signal: o.signal,
+    onReading: o.onReading,
+  });
+  o.onStage?.('Checking the band: best single trims, then the correction filter…');
+  await node.setSource({ kind: 'multitone', frequenciesHz: o.verifyHz });
+  const singleTrims = centroidTrims(result, start);
+  const single = await check(singleTrims);
+  await node.setCorrection(result.correction);
+  const after = await check(result.trims);
+  return { result, verifyHz: o.verifyHz, before, single, singleTrims, after };
+}
+
+/**
+ * The single gain/phase setting that minimises the mean image power over the calibration tones:
+ * each tone's image power grows as the squared distance from its own null (a bowl of the same
+ * curvature, DESIGN.md §6), so the sum is least at the centroid of the nulls. Averaged in dB and
+ * degrees, which are linear in the natural units to well within a percent at these sizes.
+ */
+function centroidTrims(r: MultitoneResult, start: Trims): Trims {
+  const n = r.tones.length;
+  return {
+    ...start,
+    gainDb: r.tones.reduce((s, t) => s + t.gainDb, 0) / n,
+    phaseDeg: r.tones.reduce((s, t) => s + t.phaseDeg, 0) / n,
   };
 }
 
@@ -169,6 +428,7 @@ export async function receiverCapture(
       for (const t of stream.getTracks()) t.stop();
       capture.dispose();
       src.disconnect();
+      sink.disconnect();
     },
   };
 }

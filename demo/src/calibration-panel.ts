@@ -1,40 +1,77 @@
-/** Panel 3: calibration against the virtual exciter in the page, or live through the sound card. */
+/**
+ * Panel 3: calibration against the virtual exciter in the page, or live through the sound card:
+ * gain, phase and DC trims at one tone, or a correction filter across the band (multi-tone).
+ */
+
+import type { Diagnosis } from '../../src/calibrate/diagnosis.js';
+import { createProfile, profileToJson } from '../../src/calibrate/profile.js';
 import type { Trims } from '../../src/core/trims.js';
+import { profileToCHeader } from '../../src/export/profile-header.js';
 import {
   audioReader,
   type CalibrationRun,
+  logTones,
+  type MultitoneRun,
+  offsetProblem,
+  readReceiverAudio,
   receiverCapture,
   runCalibration,
+  runMultitoneCalibration,
   VIRTUAL_BENCHES,
+  virtualCaptureSeconds,
   virtualDevice,
   virtualReader,
 } from './bench.js';
-import { field, figure, fmt, h, numberInput, select } from './dom.js';
+import { download, field, figure, fmt, h, numberInput, select } from './dom.js';
 import type { Engine } from './engine.js';
 import { linePlot } from './plot.js';
+
+/** Tones of the multi-tone calibration, and of the denser check of the band. */
+const CAL_TONES = 5;
+/** Nine tones over a decade lie a third of an octave apart: 100 Hz at 300 Hz, resolved by 4096-sample frames. */
+const CHECK_TONES = 9;
 
 export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): { el: HTMLElement } {
   const mode = select(
     [
-      ['virtual', 'Virtual exciter in this page'],
-      ['live', 'Live: my exciter and receiver via the sound card'],
+      ['virtual', 'Virtual exciter (in this page)'],
+      ['live', 'Live: my exciter, via sound card'],
     ],
     'virtual',
     { id: 'cal-mode' },
+  );
+  const kind = select(
+    [
+      ['single', 'One tone: carrier and sideband'],
+      ['multi', 'Across the band: correction filter'],
+    ],
+    'single',
+    { id: 'cal-kind' },
   );
   const bench = select(VIRTUAL_BENCHES, 'homebrew-bench', { id: 'cal-bench' });
   const seed = numberInput(711, { min: 0, step: 1, id: 'cal-seed' });
   const tone = numberInput(1800, { min: 50, step: 10, id: 'cal-tone' });
   const budget = numberInput(10, { min: 4, max: 60, step: 1, id: 'cal-budget' });
-  const offset = numberInput(1500, { min: 0, step: 10 });
+  const taps = select(
+    [
+      ['15', '15 taps'],
+      ['31', '31 taps'],
+      ['63', '63 taps'],
+    ],
+    '31',
+    { id: 'cal-taps' },
+  );
+  const offset = numberInput(1500, { min: 0, step: 10, id: 'cal-offset' });
   const rxSide = select(
     [
-      ['upper', 'Receiver on upper sideband, tuned below the carrier'],
-      ['lower', 'Receiver on lower sideband, tuned above the carrier'],
+      ['upper', 'Upper sideband, tuned below'],
+      ['lower', 'Lower sideband, tuned above'],
     ],
     'upper',
+    { id: 'cal-rxside' },
   );
-  const settle = numberInput(400, { min: 20, step: 10 });
+  const settle = numberInput(400, { min: 20, step: 10, id: 'cal-settle' });
+  const readBtn = h('button', { class: 'secondary', id: 'cal-read' }, 'Read the receiver once');
   const liveBox = h(
     'div',
     { hidden: true },
@@ -43,13 +80,16 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
       offset,
       'tune so carrier, wanted and unwanted are all audible',
     ),
-    field('Receiver mode', rxSide),
+    field('Receiver mode', rxSide, 'relative to the carrier'),
     field('Settle between readings, ms', settle, 'sound card round trip + receiver AGC'),
     h(
       'p',
       { class: 'hint' },
-      'Feed the receiver audio into the sound card input. The page asks for the input when you start.',
+      'Feed the receiver audio into the sound card input; the page asks for the input when you start. ',
+      'A speech receiver passes about 300–2700 Hz: with the carrier at 1500 Hz use a 700 Hz tone ',
+      '(wanted and unwanted at 800 and 2200 Hz). Check the hookup with one reading first.',
     ),
+    readBtn,
   );
   const virtBox = h(
     'div',
@@ -57,9 +97,45 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
     field('Bench', bench),
     field('Unit (seed)', seed, 'each seed draws a different unit from the tolerances'),
   );
+  const toneRow = field('Test tone, Hz', tone);
+  const multiBox = h(
+    'div',
+    { hidden: true },
+    field('Correction filter length', taps, 'longer follows the imbalance more closely'),
+    h(
+      'p',
+      { class: 'hint' },
+      `${CAL_TONES} tones across the network's band play together; each reading moves gain and phase and `,
+      'reads every tone’s unwanted sideband. The per-tone nulls become a short filter pair on Q.',
+    ),
+  );
   const runBtn = h('button', { id: 'cal-run' }, 'Calibrate sideband and carrier');
   const stopBtn = h('button', { class: 'stop', disabled: true }, 'Stop');
   const status = h('div', { class: 'status', id: 'cal-status' });
+  const notes = h('ul', { class: 'notes', id: 'cal-notes' });
+  const saveBox = h(
+    'div',
+    { hidden: true, class: 'save' },
+    h('div', { class: 'hint' }, 'Save the result (trims, filter, network):'),
+    h('button', { class: 'secondary', onclick: () => save('json') }, 'Profile (JSON)'),
+    h('button', { class: 'secondary', onclick: () => save('c') }, 'C header'),
+  );
+
+  // Live: one reading of the receiver.
+  const rxFigs = {
+    sideband: figure('Sideband now'),
+    carrier: figure('Carrier now'),
+    wanted: figure('Wanted tone'),
+    tuning: figure('Tuning error'),
+  };
+  const rxBox = h(
+    'div',
+    { hidden: true, id: 'cal-rx' },
+    h('h3', {}, 'Receiver reading'),
+    h('div', { class: 'figures' }, ...Object.values(rxFigs).map((f) => f.el)),
+  );
+
+  // One tone: trims.
   const figs = {
     sbStart: figure('Sideband before'),
     sbEnd: figure('Sideband after'),
@@ -68,8 +144,49 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
     readings: figure('Readings'),
   };
   const trimsOut = h('pre', { class: 'hint', id: 'cal-trims' });
+  const tableHead = h('thead');
   const tableBody = h('tbody');
   const plots = h('div');
+  const singleBox = h(
+    'div',
+    {},
+    h('div', { class: 'figures' }, ...Object.values(figs).map((f) => f.el)),
+    plots,
+    h('h3', {}, 'Trims found'),
+    trimsOut,
+  );
+
+  // Across the band: correction filter.
+  const mfigs = {
+    before: figure('Worst over the band, before'),
+    single: figure('Best single trims'),
+    after: figure('With the correction filter'),
+    readings: figure('Readings'),
+  };
+  const mplots = h('div');
+  const multiOut = h(
+    'div',
+    { hidden: true, id: 'cal-multi' },
+    h('div', { class: 'figures' }, ...Object.values(mfigs).map((f) => f.el)),
+    mplots,
+  );
+
+  const placeholder = h(
+    'div',
+    { class: 'placeholder' },
+    h('h3', {}, 'How it works'),
+    h(
+      'ol',
+      {},
+      h(
+        'li',
+        {},
+        'Pick where readings come from: the virtual exciter needs nothing; live needs your exciter on the sound card output and a receiver on its input.',
+      ),
+      h('li', {}, 'Press Calibrate. Each reading appears here with the trims it was taken at.'),
+      h('li', {}, 'The trims found go to the generator (panel 2); save them as a profile or a C header.'),
+    ),
+  );
   const el = h(
     'section',
     { class: 'panel', id: 'panel-calibrate' },
@@ -92,40 +209,29 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
           'fieldset',
           {},
           h('legend', {}, 'Run'),
-          field('Test tone, Hz', tone),
+          field('Calibrate', kind),
+          toneRow,
+          multiBox,
           field('Most readings', budget),
           runBtn,
           stopBtn,
         ),
         status,
+        notes,
+        saveBox,
       ),
       h(
         'div',
         {},
-        h('div', { class: 'figures' }, ...Object.values(figs).map((f) => f.el)),
-        plots,
-        h('h3', {}, 'Trims found'),
-        trimsOut,
-        h('h3', {}, 'Readings'),
+        rxBox,
+        placeholder,
         h(
-          'table',
-          {},
-          h(
-            'thead',
-            {},
-            h(
-              'tr',
-              {},
-              h('th', {}, '#'),
-              h('th', {}, 'Q gain dB'),
-              h('th', {}, 'Phase °'),
-              h('th', {}, 'DC I'),
-              h('th', {}, 'DC Q'),
-              h('th', {}, 'Sideband dBc'),
-              h('th', {}, 'Carrier dBc'),
-            ),
-          ),
-          tableBody,
+          'div',
+          { hidden: true, id: 'cal-results' },
+          singleBox,
+          multiOut,
+          h('h3', {}, 'Readings'),
+          h('table', { id: 'cal-table' }, tableHead, tableBody),
         ),
       ),
     ),
@@ -133,6 +239,7 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
   const conv = linePlot(plots, {
     title: 'Convergence',
     xLabel: 'reading',
+    integerX: true,
     yLabel: 'dBc',
     series: [
       { label: 'sideband read', color: '#c8452b', points: true },
@@ -141,26 +248,144 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
       { label: 'carrier lowest so far', color: '#6b4fbb', dash: [5, 4] },
     ],
   });
-
-  mode.addEventListener('change', () => {
-    liveBox.hidden = mode.value !== 'live';
-    virtBox.hidden = mode.value === 'live';
+  const band = linePlot(mplots, {
+    title: 'Opposite-sideband suppression across the band (read through the virtual exciter)',
+    xLabel: 'Hz',
+    yLabel: 'dB',
+    logX: true,
+    series: [
+      { label: 'before', color: '#8a96a0', points: true },
+      { label: 'best single trims', color: '#6b4fbb', dash: [5, 4], points: true },
+      { label: 'with the correction filter', color: '#0f7c7a', points: true },
+    ],
   });
 
-  let abort: AbortController | null = null;
-  stopBtn.addEventListener('click', () => abort?.abort());
-  runBtn.addEventListener('click', () => void run());
+  const headRow = (...cells: string[]) => h('tr', {}, ...cells.map((c) => h('th', {}, c)));
+  function showKind(): void {
+    const multi = kind.value === 'multi';
+    if (multi && mode.value === 'live') {
+      mode.value = 'virtual';
+      showMode();
+    }
+    for (const o of mode.options) if (o.value === 'live') o.disabled = multi;
+    toneRow.hidden = multi;
+    multiBox.hidden = !multi;
+    singleBox.hidden = multi;
+    multiOut.hidden = !multi;
+    runBtn.textContent = multi ? 'Calibrate across the band' : 'Calibrate sideband and carrier';
+    budget.value = multi ? '24' : '10';
+    if (multi && bench.value === 'homebrew-bench') bench.value = 'skew-bench';
+    tableHead.replaceChildren(
+      multi
+        ? headRow('#', 'Q gain dB', 'Phase °', 'Worst tone dBc', 'Best tone dBc')
+        : headRow('#', 'Q gain dB', 'Phase °', 'DC I', 'DC Q', 'Sideband dBc', 'Carrier dBc'),
+    );
+    tableBody.replaceChildren();
+  }
+  function showMode(): void {
+    const live = mode.value === 'live';
+    liveBox.hidden = !live;
+    virtBox.hidden = live;
+    if (live && offsetProblem(Number(tone.value), Number(offset.value), engine.network.sampleRate)) {
+      tone.value = '700';
+    }
+  }
+  mode.addEventListener('change', showMode);
+  kind.addEventListener('change', showKind);
+  showKind();
 
+  let abort: AbortController | null = null;
+  let last: {
+    trims: Trims;
+    toneHz: number;
+    tonesHz: number[] | null;
+    results: Record<string, number>;
+  } | null = null;
+  stopBtn.addEventListener('click', () => abort?.abort());
+  runBtn.addEventListener('click', () => void (kind.value === 'multi' ? runMulti() : run()));
+  readBtn.addEventListener('click', () => void readOnce());
+
+  function showResults(): void {
+    placeholder.hidden = true;
+    document.getElementById('cal-results')!.hidden = false;
+  }
   function say(text: string, error = false): void {
     status.className = error ? 'status error' : 'status';
     status.textContent = text;
   }
+  function showNotes(list: Diagnosis[], extra: string | null = null): void {
+    notes.replaceChildren(...list.map((d) => h('li', {}, d.message)), ...(extra ? [h('li', {}, extra)] : []));
+  }
+  /** A live run whose readings did not move with the trims: the loop is open somewhere. */
+  function stuckNote(sb: number[], cr: number[]): string | null {
+    const spread = (x: number[]) => Math.max(...x) - Math.min(...x);
+    if (sb.length < 4 || spread(sb) > 1 || spread(cr) > 1) return null;
+    return `The readings hardly changed while the trims moved (sideband within ${fmt(spread(sb), 2)} dB, carrier within ${fmt(spread(cr), 2)} dB): check that the generator's I and Q reach the exciter, that the receiver hears this transmission, and that its audio comes back into the input you allowed.`;
+  }
+  function busy(on: boolean): void {
+    runBtn.disabled = on;
+    readBtn.disabled = on;
+    stopBtn.disabled = !on;
+  }
+
+  /** Live settings, checked; throws an Error naming the fix. */
+  function liveOptions(toneHz: number) {
+    const problem = offsetProblem(toneHz, Number(offset.value), engine.network.sampleRate);
+    if (problem) throw new Error(problem);
+    return {
+      toneHz,
+      sideband: engine.sideband,
+      offsetHz: Number(offset.value),
+      receiverSideband: rxSide.value as 'upper' | 'lower',
+    };
+  }
+
+  async function readOnce(): Promise<void> {
+    busy(true);
+    let stop: (() => void) | null = null;
+    try {
+      const toneHz = Number(tone.value);
+      const opts = liveOptions(toneHz);
+      await engine.setSource({ kind: 'tone', frequencyHz: toneHz });
+      const running = engine.running ?? (await engine.start());
+      const rx = await receiverCapture(running);
+      stop = rx.stop;
+      say('Reading the receiver…');
+      const fs = running.ctx.sampleRate;
+      const cap = await rx.capture.capture(Math.round(0.25 * fs), {
+        skipFrames: Math.round((Number(settle.value) / 1000) * fs),
+      });
+      const r = readReceiverAudio(cap.channels[0]!, fs, opts);
+      rxBox.hidden = false;
+      rxFigs.sideband.set(`${fmt(r.sidebandSuppressionDb)} dB`);
+      rxFigs.carrier.set(`${fmt(r.carrierSuppressionDb)} dB`);
+      rxFigs.wanted.set(`${fmt(r.wanted.levelDbfs)} dBFS`, r.wanted.levelDbfs < -60 ? 'bad' : '');
+      rxFigs.tuning.set(`${fmt(r.frequencyErrorHz)} Hz`, Math.abs(r.frequencyErrorHz) > 20 ? 'bad' : '');
+      el.dataset['reading'] = JSON.stringify({
+        sidebandDb: r.sidebandSuppressionDb,
+        carrierDb: r.carrierSuppressionDb,
+        wantedDbfs: r.wanted.levelDbfs,
+        frequencyErrorHz: r.frequencyErrorHz,
+        sidebandMeasurableDb: r.sidebandMeasurableDb,
+      });
+      say(
+        `Receiver: wanted tone ${fmt(r.wanted.levelDbfs)} dBFS at ${fmt(r.wanted.frequencyHz)} Hz; unwanted sideband ${fmt(r.sidebandSuppressionDb)} dB and carrier ${fmt(r.carrierSuppressionDb)} dB below it (this capture could show up to ${fmt(r.sidebandMeasurableDb)} dB).`,
+      );
+    } catch (e) {
+      say(e instanceof Error ? e.message : String(e), true);
+    } finally {
+      stop?.();
+      busy(false);
+    }
+  }
 
   async function run(): Promise<CalibrationRun | undefined> {
-    runBtn.disabled = true;
-    stopBtn.disabled = false;
+    busy(true);
+    showResults();
     abort = new AbortController();
     tableBody.replaceChildren();
+    notes.replaceChildren();
+    saveBox.hidden = true;
     const xs: number[] = [];
     const s: number[] = [];
     const c: number[] = [];
@@ -170,24 +395,21 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
     let stopLive: (() => void) | null = null;
     try {
       const toneHz = Number(tone.value);
-      engine.source = { kind: 'tone', frequencyHz: toneHz };
+      const live = mode.value === 'live';
+      const liveOpts = live ? liveOptions(toneHz) : null;
+      await engine.setSource({ kind: 'tone', frequencyHz: toneHz });
       const running = engine.running ?? (await engine.start());
-      await running.node.setSource(engine.source);
       const fs = running.ctx.sampleRate;
       let capture = running.iq;
       let read: Parameters<typeof runCalibration>[0]['read'];
       let settleSeconds = 0.05;
-      if (mode.value === 'live') {
+      let captureSeconds = 0.12;
+      if (liveOpts) {
         const rx = await receiverCapture(running);
         stopLive = rx.stop;
         capture = rx.capture;
         settleSeconds = Number(settle.value) / 1000;
-        read = audioReader({
-          toneHz,
-          sideband: engine.sideband,
-          offsetHz: Number(offset.value),
-          receiverSideband: rxSide.value as 'upper' | 'lower',
-        });
+        read = audioReader(liveOpts);
         say('Reading the receiver…');
       } else {
         const model = virtualDevice(bench.value, Number(seed.value));
@@ -197,6 +419,7 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
           toneHz,
           sideband: engine.sideband,
         });
+        captureSeconds = virtualCaptureSeconds(model, fs);
         say('Reading the virtual exciter…');
       }
       const r = await runCalibration({
@@ -206,7 +429,7 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
         maxReadings: Number(budget.value),
         noiseDb: 0.3,
         settleSeconds,
-        captureSeconds: 0.12,
+        captureSeconds,
         signal: abort.signal,
         onReading(step) {
           xs.push(step.index);
@@ -216,19 +439,25 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
           cb.push(Math.min(...c.filter(Number.isFinite)));
           conv.setData(xs, [s, c, sb, cb]);
           const t = step.trims;
-          tableBody.append(
-            h(
-              'tr',
-              {},
-              h('td', {}, String(step.index)),
-              h('td', {}, fmt(t.gainDb, 4)),
-              h('td', {}, fmt(t.phaseDeg, 3)),
-              h('td', {}, fmt(t.dcI, 5)),
-              h('td', {}, fmt(t.dcQ, 5)),
-              h('td', {}, fmt(step.levelDb)),
-              h('td', {}, fmt(step.carrierDb)),
-            ),
+          const row = h(
+            'tr',
+            { title: `captured ${fmt(step.waitedMs, 0)} ms after the trims were set` },
+            h('td', {}, String(step.index)),
+            h('td', {}, fmt(t.gainDb, 4)),
+            h('td', {}, fmt(t.phaseDeg, 3)),
+            h('td', {}, fmt(t.dcI, 5)),
+            h('td', {}, fmt(t.dcQ, 5)),
+            h('td', {}, fmt(step.levelDb)),
+            h('td', {}, fmt(step.carrierDb)),
           );
+          row.dataset['step'] = JSON.stringify({
+            trims: t,
+            sidebandDb: step.levelDb,
+            carrierDb: step.carrierDb,
+            waitedMs: step.waitedMs,
+            applied: running.node.getTrims(),
+          });
+          tableBody.append(row);
           onTrims(t);
         },
       });
@@ -240,11 +469,26 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
       figs.crEnd.set(`${fmt(-r.verified.carrierDb)} dB`, -r.verified.carrierDb >= 60 ? 'good' : 'bad');
       figs.readings.set(String(r.result.readings));
       trimsOut.textContent = `gainDb ${fmt(t.gainDb, 4)}   phaseDeg ${fmt(t.phaseDeg, 4)}   dcI ${fmt(t.dcI, 6)}   dcQ ${fmt(t.dcQ, 6)}\n(applied to the generator; see panel 2)`;
+      const found = [...r.result.sideband.diagnosis, ...r.result.carrier.diagnosis];
+      showNotes(found, liveOpts ? stuckNote(s, c) : null);
       el.dataset['result'] = JSON.stringify({
         readings: r.result.readings,
         sidebandDb: r.verified.sidebandDb,
         carrierDb: r.verified.carrierDb,
+        startSidebandDb: r.start.sidebandDb,
+        startCarrierDb: r.start.carrierDb,
+        trims: t,
+        stopReason: [r.result.sideband.stopReason, r.result.carrier.stopReason],
+        diagnosis: found.map((d) => d.code),
+        notes: notes.textContent,
       });
+      last = {
+        trims: t,
+        toneHz,
+        tonesHz: null,
+        results: { sidebandDb: -r.verified.sidebandDb, carrierDb: -r.verified.carrierDb },
+      };
+      saveBox.hidden = false;
       say(
         `Done after ${r.result.readings} readings: sideband ${fmt(-r.verified.sidebandDb)} dB and carrier ${fmt(-r.verified.carrierDb)} dB below the wanted tone (fresh reading).`,
       );
@@ -254,9 +498,115 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
       return undefined;
     } finally {
       stopLive?.();
-      runBtn.disabled = false;
-      stopBtn.disabled = true;
+      busy(false);
     }
+  }
+
+  async function runMulti(): Promise<MultitoneRun | undefined> {
+    busy(true);
+    showResults();
+    abort = new AbortController();
+    tableBody.replaceChildren();
+    notes.replaceChildren();
+    saveBox.hidden = true;
+    band.setData([], [[], [], []]);
+    for (const f of Object.values(mfigs)) f.set('—');
+    try {
+      const net = engine.network;
+      const tonesHz = logTones(net.band, CAL_TONES);
+      const verifyHz = logTones(net.band, CHECK_TONES);
+      const running = engine.running ?? (await engine.start());
+      const model = virtualDevice(bench.value, Number(seed.value));
+      const r = await runMultitoneCalibration({
+        running,
+        model,
+        seed: Number(seed.value),
+        tonesHz,
+        verifyHz,
+        band: [net.band[0], net.band[1]],
+        taps: Number(taps.value),
+        maxReadings: Number(budget.value),
+        noiseDb: 0.3,
+        sideband: engine.sideband,
+        signal: abort.signal,
+        onStage: (text) => say(text),
+        onReading(step) {
+          tableBody.append(
+            h(
+              'tr',
+              {},
+              h('td', {}, String(step.index)),
+              h('td', {}, fmt(step.trims.gainDb, 4)),
+              h('td', {}, fmt(step.trims.phaseDeg, 3)),
+              h('td', {}, fmt(Math.max(...step.levelsDb))),
+              h('td', {}, fmt(Math.min(...step.levelsDb))),
+            ),
+          );
+          onTrims(step.trims);
+        },
+      });
+      const worst = (x: number[]) => Math.min(...x);
+      mfigs.before.set(`${fmt(worst(r.before))} dB`);
+      mfigs.single.set(`${fmt(worst(r.single))} dB`);
+      mfigs.after.set(`${fmt(worst(r.after))} dB`, worst(r.after) > worst(r.single) ? 'good' : 'bad');
+      mfigs.readings.set(String(r.result.readings));
+      band.setData(r.verifyHz, [r.before, r.single, r.after]);
+      onTrims(r.result.trims);
+      const tapCount = r.result.correction.qFromQ.length;
+      await engine.setCorrection({
+        correction: r.result.correction,
+        note: `${tapCount} taps, from a multi-tone calibration at ${tonesHz.join(', ')} Hz`,
+        on: true,
+      });
+      engine.noteSource({ kind: 'multitone', frequenciesHz: verifyHz });
+      el.dataset['multitone'] = JSON.stringify({
+        readings: r.result.readings,
+        verifyHz: r.verifyHz,
+        before: r.before,
+        single: r.single,
+        after: r.after,
+        taps: tapCount,
+        singleTrims: r.singleTrims,
+        tones: r.result.tones,
+        stopReason: r.result.stopReason,
+      });
+      last = {
+        trims: r.result.trims,
+        toneHz: tonesHz[Math.floor(tonesHz.length / 2)]!,
+        tonesHz,
+        results: { worstBandDb: worst(r.after) },
+      };
+      saveBox.hidden = false;
+      say(
+        `Done after ${r.result.readings} readings: worst suppression over ${net.band[0]}–${net.band[1]} Hz went from ${fmt(worst(r.before))} dB to ${fmt(worst(r.after))} dB with the ${tapCount}-tap correction filter (best single trims: ${fmt(worst(r.single))} dB). The filter now runs in the generator (panel 2).`,
+      );
+      return r;
+    } catch (e) {
+      say(e instanceof Error ? e.message : String(e), true);
+      return undefined;
+    } finally {
+      busy(false);
+    }
+  }
+
+  function save(what: 'json' | 'c'): void {
+    if (!last) return;
+    const p = createProfile({
+      sampleRate: engine.network.sampleRate,
+      toneHz: last.toneHz,
+      tonesHz: last.tonesHz,
+      sideband: engine.sideband,
+      trims: last.trims,
+      correction: last.tonesHz ? (engine.correction?.correction ?? null) : null,
+      network: engine.network,
+      results: { ...last.results, source: mode.value === 'live' ? 'measured' : 'simulated' },
+      note:
+        mode.value === 'live'
+          ? 'live calibration in the orthotone demo'
+          : 'virtual exciter in the orthotone demo (invented bench)',
+    });
+    if (what === 'json') download('orthotone-profile.json', profileToJson(p), 'application/json');
+    else download('orthotone-profile.h', profileToCHeader(p), 'text/x-c');
   }
 
   return { el };

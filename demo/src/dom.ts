@@ -66,5 +66,8 @@ export function download(name: string, text: string, type = 'text/plain'): void 
 
 /** Formats a number with fixed decimals, or '—' when not finite. */
 export function fmt(x: number, digits = 1): string {
-  return Number.isFinite(x) ? x.toFixed(digits) : '—';
+  if (!Number.isFinite(x)) return '—';
+  const t = x.toFixed(digits);
+  // No "−0.0": a value that rounds to zero shows as zero.
+  return Number(t) === 0 ? (0).toFixed(digits) : t;
 }

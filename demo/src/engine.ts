@@ -4,6 +4,7 @@
  * generator's output for the monitor and the in-page virtual exciter. The processor module is the
  * library's own worklet (src/webaudio/processor.ts), bundled by Vite as a separate module.
  */
+import type { Correction } from '../../src/core/trims.js';
 import type { Network } from '../../src/design/network.js';
 import { type CaptureNode, createCaptureNode } from '../../src/webaudio/capture-node.js';
 import type { SourceSpec } from '../../src/webaudio/messages.js';
@@ -23,6 +24,15 @@ export interface Running {
 
 type Listener = (r: Running | null) => void;
 
+/** A correction filter pair and where it came from. */
+export interface CorrectionState {
+  correction: Correction;
+  /** Short description for the page, e.g. "31 taps, multi-tone calibration at 5 tones". */
+  note: string;
+  /** Whether the node runs it (false: kept, bypassed). */
+  on: boolean;
+}
+
 /** Holds the running audio graph and the settings it was made with. */
 export class Engine {
   running: Running | null = null;
@@ -30,8 +40,12 @@ export class Engine {
   levelDb = -10;
   sideband: 'upper' | 'lower' = 'upper';
   outputOn = true;
+  /** The correction filter held by the page (applied to the node when `on`). */
+  correction: CorrectionState | null = null;
   private mic: MediaStreamAudioSourceNode | null = null;
   private listeners: Listener[] = [];
+  private sourceListeners: ((s: SourceSpec) => void)[] = [];
+  private correctionListeners: ((c: CorrectionState | null) => void)[] = [];
 
   constructor(public network: Network) {}
 
@@ -41,6 +55,23 @@ export class Engine {
 
   private emit(): void {
     for (const f of this.listeners) f(this.running);
+  }
+
+  /** Called when the source changes (from any panel). */
+  onSource(f: (s: SourceSpec) => void): void {
+    this.sourceListeners.push(f);
+  }
+
+  /** Called when the correction filter is set, switched or removed. */
+  onCorrection(f: (c: CorrectionState | null) => void): void {
+    this.correctionListeners.push(f);
+  }
+
+  /** Holds `c` (null removes it) and applies it to the running node when it is on. */
+  async setCorrection(c: CorrectionState | null): Promise<void> {
+    this.correction = c;
+    await this.running?.node.setCorrection(c?.on ? c.correction : null);
+    for (const f of this.correctionListeners) f(c);
   }
 
   /** Starts audio (call from a user action: browsers start audio only after one). */
@@ -53,6 +84,7 @@ export class Engine {
       source: this.source.kind === 'input' ? { kind: 'silence' } : this.source,
       levelDb: this.levelDb,
       sideband: this.sideband,
+      correction: this.correction?.on ? this.correction.correction : null,
     });
     const iq = await createCaptureNode(ctx, { moduleUrl: workletUrl, channels: 2 });
     const out = new GainNode(ctx, { gain: this.outputOn ? 1 : 0 });
@@ -86,6 +118,8 @@ export class Engine {
   async setNetwork(net: Network): Promise<void> {
     const rateChanged = net.sampleRate !== this.network.sampleRate;
     this.network = net;
+    // A correction filter is designed for one sample rate.
+    if (rateChanged && this.correction) await this.setCorrection(null);
     if (!this.running) return;
     if (rateChanged) {
       await this.stop();
@@ -93,8 +127,15 @@ export class Engine {
     } else await this.running.node.setNetwork(net);
   }
 
+  /** Records a source the node was given directly (e.g. by a calibration) and tells the panels. */
+  noteSource(s: SourceSpec): void {
+    this.source = s;
+    for (const f of this.sourceListeners) f(s);
+  }
+
   async setSource(s: SourceSpec): Promise<void> {
     this.source = s;
+    for (const f of this.sourceListeners) f(s);
     const r = this.running;
     if (!r) return;
     if (s.kind === 'input') {

@@ -14,7 +14,7 @@ export interface LinePlot {
   readonly el: HTMLElement;
 }
 
-/** Creates a plot in `parent`. */
+/** Creates a plot in `parent`; it follows the parent's width (ResizeObserver). */
 export function linePlot(
   parent: HTMLElement,
   opts: {
@@ -24,20 +24,41 @@ export function linePlot(
     series: SeriesSpec[];
     logX?: boolean;
     height?: number;
+    /** Fixed x range (otherwise from the data; a log scale would snap to whole decades). */
+    xRange?: () => [number, number];
+    /** Fixed y range (otherwise from the data). */
+    yRange?: () => [number, number];
+    /** Whole-number x ticks (e.g. reading numbers). */
+    integerX?: boolean;
+    /** Shades the plot outside this x interval (e.g. outside the band). */
+    shadeOutside?: () => [number, number] | null;
   },
 ): LinePlot {
   const el = document.createElement('div');
   el.className = 'plot';
   parent.append(el);
-  const width = () => Math.max(320, Math.min(820, (parent.clientWidth || 800) - 10));
+  const height = opts.height ?? 240;
+  const width = () => Math.max(300, Math.min(900, (parent.clientWidth || 800) - 4));
   const u = new uPlot(
     {
       title: opts.title,
       width: width(),
-      height: opts.height ?? 240,
-      scales: { x: { time: false, distr: opts.logX ? 3 : 1 } },
+      height,
+      scales: {
+        x: {
+          time: false,
+          distr: opts.logX ? 3 : 1,
+          ...(opts.xRange ? { range: () => opts.xRange!() } : {}),
+        },
+        ...(opts.yRange ? { y: { range: () => opts.yRange!() } } : {}),
+      },
       axes: [
-        { label: opts.xLabel, stroke: '#5d6b77', grid: { stroke: '#e3e8ec' } },
+        {
+          label: opts.xLabel,
+          stroke: '#5d6b77',
+          grid: { stroke: '#e3e8ec' },
+          ...(opts.integerX ? { incrs: [1, 2, 5, 10, 20, 50, 100] } : {}),
+        },
         { label: opts.yLabel, stroke: '#5d6b77', grid: { stroke: '#e3e8ec' } },
       ],
       series: [
@@ -51,11 +72,39 @@ export function linePlot(
         })),
       ],
       legend: { live: false },
+      hooks: opts.shadeOutside
+        ? {
+            drawClear: [
+              (p: uPlot) => {
+                const band = opts.shadeOutside?.();
+                if (!band) return;
+                const { ctx, bbox } = p;
+                const x0 = p.valToPos(band[0], 'x', true);
+                const x1 = p.valToPos(band[1], 'x', true);
+                ctx.save();
+                ctx.fillStyle = 'rgba(93, 107, 119, 0.12)';
+                if (x0 > bbox.left) ctx.fillRect(bbox.left, bbox.top, x0 - bbox.left, bbox.height);
+                if (x1 < bbox.left + bbox.width)
+                  ctx.fillRect(x1, bbox.top, bbox.left + bbox.width - x1, bbox.height);
+                ctx.restore();
+              },
+            ],
+          }
+        : {},
     },
     [[], ...opts.series.map(() => [])] as unknown as uPlot.AlignedData,
     el,
   );
-  window.addEventListener('resize', () => u.setSize({ width: width(), height: opts.height ?? 240 }));
+  // Follow the parent's width; a hidden panel reports 0 and is skipped until it is shown.
+  let lastWidth = width();
+  new ResizeObserver(() => {
+    if (!parent.clientWidth) return;
+    const w = width();
+    if (w !== lastWidth) {
+      lastWidth = w;
+      u.setSize({ width: w, height });
+    }
+  }).observe(parent);
   return {
     el,
     setData(x, ys) {

@@ -23,8 +23,17 @@ export interface Browser {
   close(): Promise<void>;
 }
 
+/** Options of {@link launchChromium}. */
+export interface LaunchOptions {
+  /**
+   * Absolute path of a WAV file that Chromium's fake microphone plays (and loops) to getUserMedia
+   * (`--use-file-for-fake-audio-capture`); without it the fake device gives its own beeps.
+   */
+  fakeAudioCapture?: string;
+}
+
 /** Launches one persistent headless Chromium context and opens one page that records errors. */
-export async function launchChromium(): Promise<Browser> {
+export async function launchChromium(options: LaunchOptions = {}): Promise<Browser> {
   const dir = mkdtempSync(join(tmpdir(), 'orthotone-chromium-'));
   const context = await chromium.launchPersistentContext(dir, {
     executablePath: CHROMIUM_PATH,
@@ -41,6 +50,7 @@ export async function launchChromium(): Promise<Browser> {
       '--autoplay-policy=no-user-gesture-required',
       '--use-fake-ui-for-media-stream',
       '--use-fake-device-for-media-stream',
+      ...(options.fakeAudioCapture ? [`--use-file-for-fake-audio-capture=${options.fakeAudioCapture}`] : []),
     ],
   });
   const page = context.pages()[0] ?? (await context.newPage());

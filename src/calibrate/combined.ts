@@ -5,6 +5,7 @@
  * DC trims (which do not affect the sideband: DC is added last, DESIGN.md §4); a seeker that has
  * stopped holds its best setting while the other continues.
  */
+import { OrthotoneError } from '../core/errors.js';
 import type { Trims } from '../core/trims.js';
 import { requireRange } from '../core/validate.js';
 import { type CarrierCalibrationOptions, carrierAxes } from './carrier.js';
@@ -47,16 +48,42 @@ export interface CombinedCalibrationResult {
   readings: number;
 }
 
+/** A step of a combined run, as kept in each calibration's history. */
+type CombinedStep = CalibrationStep & { carrierDb: number };
+
 /**
- * Calibrates gain/phase and DC from readings that return both levels at once.
- * @param options as {@link calibrateSideband}, with `measure` returning `{ sidebandDb, carrierDb }`.
- * @returns the combined trims and each calibration's result; `readings` counts `measure` calls,
- *   never more than `maxReadings`.
+ * The ask/tell core of {@link calibrateSidebandAndCarrier}, for drivers that cannot hand over a
+ * `measure` function (a person typing both levels off one analyzer display, with undo).
+ */
+export interface CombinedSeeker {
+  /** The trims to read next (all four), or undefined when both nulls are done or the budget is used. */
+  next(): Trims | undefined;
+  /**
+   * Reports both levels read with the trims `next()` gave; a non-finite level records a failed
+   * reading of that quantity. `error` is kept in the history.
+   */
+  tell(levels: BothLevels, error?: unknown): CombinedStep;
+  /** Removes the last reading from both calibrations (a person mistyped it). */
+  undo(): void;
+  /** Stops both (e.g. a person quits); the results keep the best trims so far. */
+  stop(reason: 'aborted' | 'budget'): void;
+  /** Readings taken, resumed ones included. */
+  readonly count: number;
+  readonly done: boolean;
+  /** The best trims so far, and the level at each null (dB). */
+  best(): { trims: Trims; sidebandDb: number; carrierDb: number };
+  /** The results so far (each calibration's, and the combined trims). */
+  result(lastError?: unknown): CombinedCalibrationResult;
+}
+
+/**
+ * Creates the ask/tell core of a combined sideband and carrier calibration.
+ * @param options as {@link calibrateSidebandAndCarrier} (`measure` and `onReading` are not used).
  * @throws {OrthotoneError} INVALID_ARGUMENT for bad options.
  */
-export async function calibrateSidebandAndCarrier(
-  options: CombinedCalibrationOptions,
-): Promise<CombinedCalibrationResult> {
+export function createCombinedSeeker(
+  options: Omit<CombinedCalibrationOptions, 'measure' | 'onReading' | 'signal'>,
+): CombinedSeeker {
   if (options.toneAmplitude !== undefined) requireRange('toneAmplitude', options.toneAmplitude, 1e-6, 4);
   const cAxes = carrierAxes(options.toneAmplitude, options);
   const sAxes = sidebandAxes(options);
@@ -75,15 +102,115 @@ export async function calibrateSidebandAndCarrier(
   const budget = sb.seeker.options.maxReadings;
   const hs: CalibrationStep[] = [];
   const hc: CalibrationStep[] = [];
+  // Which seekers each reading was told to (a stopped seeker holds its best and is not told).
+  const told: [boolean, boolean][] = [];
   let count = Math.max(sb.seeker.count, cr.seeker.count);
+  let stopped: 'aborted' | 'budget' | undefined;
+  let ps: [number, number] | undefined;
+  let pc: [number, number] | undefined;
+
+  const trimsAt = (a: readonly [number, number], b: readonly [number, number]): Trims =>
+    cAxes.toTrims(b, sAxes.toTrims(a, start));
+  const done = (): boolean => stopped !== undefined || count >= budget || (sb.seeker.done && cr.seeker.done);
+
+  const self: CombinedSeeker = {
+    next() {
+      if (done()) return undefined;
+      ps = sb.seeker.next() ?? sb.seeker.best().point;
+      pc = cr.seeker.next() ?? cr.seeker.best().point;
+      return trimsAt(ps, pc);
+    },
+    tell(levels, error) {
+      if (!ps || !pc) self.next();
+      if (!ps || !pc) {
+        throw new OrthotoneError(
+          'INVALID_ARGUMENT',
+          'the calibration has stopped: read no more, take result()',
+        );
+      }
+      const trims = trimsAt(ps, pc);
+      const s = levels && Number.isFinite(levels.sidebandDb) ? levels.sidebandDb : Number.NaN;
+      const c = levels && Number.isFinite(levels.carrierDb) ? levels.carrierDb : Number.NaN;
+      const t: [boolean, boolean] = [!sb.seeker.done, !cr.seeker.done];
+      if (t[0]) sb.seeker.tell(ps, s);
+      if (t[1]) cr.seeker.tell(pc, c);
+      told.push(t);
+      count++;
+      ps = undefined;
+      pc = undefined;
+      const bs = sb.seeker.best();
+      const bc = cr.seeker.best();
+      const common = {
+        index: count,
+        trims,
+        role: 'probe' as const,
+        bestTrims: trimsAt(bs.point, bc.point),
+        ...(error !== undefined ? { error } : {}),
+      };
+      hs.push({ ...common, levelDb: s, bestLevelDb: bs.levelDb });
+      hc.push({ ...common, levelDb: c, bestLevelDb: bc.levelDb });
+      return { ...common, levelDb: s, bestLevelDb: bs.levelDb, carrierDb: c };
+    },
+    undo() {
+      const t = told.pop();
+      if (!t) return;
+      if (t[0]) sb.seeker.undo();
+      if (t[1]) cr.seeker.undo();
+      hs.pop();
+      hc.pop();
+      count--;
+      stopped = undefined;
+      ps = undefined;
+      pc = undefined;
+    },
+    stop(reason) {
+      stopped ??= reason;
+      ps = undefined;
+      pc = undefined;
+    },
+    get count() {
+      return count;
+    },
+    get done() {
+      return done();
+    },
+    best() {
+      const bs = sb.seeker.best();
+      const bc = cr.seeker.best();
+      return { trims: trimsAt(bs.point, bc.point), sidebandDb: bs.levelDb, carrierDb: bc.levelDb };
+    },
+    result(lastError) {
+      for (const k of [sb.seeker, cr.seeker]) if (!k.done) k.stop(stopped ?? 'budget');
+      const sideband = resultOf(sb.seeker, sAxes, start, hs, lastError);
+      const carrier = resultOf(cr.seeker, cAxes, start, hc, lastError);
+      return {
+        trims: { ...sideband.trims, dcI: carrier.trims.dcI, dcQ: carrier.trims.dcQ },
+        sideband,
+        carrier,
+        readings: count,
+      };
+    },
+  };
+  return self;
+}
+
+/**
+ * Calibrates gain/phase and DC from readings that return both levels at once.
+ * @param options as {@link calibrateSideband}, with `measure` returning `{ sidebandDb, carrierDb }`.
+ * @returns the combined trims and each calibration's result; `readings` counts `measure` calls,
+ *   never more than `maxReadings`.
+ * @throws {OrthotoneError} INVALID_ARGUMENT for bad options.
+ */
+export async function calibrateSidebandAndCarrier(
+  options: CombinedCalibrationOptions,
+): Promise<CombinedCalibrationResult> {
+  const core = createCombinedSeeker(options);
   let lastError: unknown;
   const signal = options.signal;
-  while (count < budget) {
+  for (;;) {
     if (signal?.aborted) break;
-    const ps = sb.seeker.next() ?? sb.seeker.best().point;
-    const pc = cr.seeker.next() ?? cr.seeker.best().point;
-    if (sb.seeker.done && cr.seeker.done) break;
-    const trims = cAxes.toTrims(pc, sAxes.toTrims(ps, start));
+    const trims = core.next();
+    if (!trims) break;
     let levels: BothLevels | undefined;
     let error: unknown;
     try {
@@ -92,33 +219,10 @@ export async function calibrateSidebandAndCarrier(
       error = e;
       lastError = e;
     }
-    count++;
     if (signal?.aborted) break;
-    const s = levels && Number.isFinite(levels.sidebandDb) ? levels.sidebandDb : Number.NaN;
-    const c = levels && Number.isFinite(levels.carrierDb) ? levels.carrierDb : Number.NaN;
-    if (!sb.seeker.done) sb.seeker.tell(ps, s);
-    if (!cr.seeker.done) cr.seeker.tell(pc, c);
-    const bs = sb.seeker.best();
-    const bc = cr.seeker.best();
-    const bestTrims = cAxes.toTrims(bc.point, sAxes.toTrims(bs.point, start));
-    const common = {
-      index: count,
-      trims,
-      role: 'probe' as const,
-      bestTrims,
-      ...(error !== undefined ? { error } : {}),
-    };
-    hs.push({ ...common, levelDb: s, bestLevelDb: bs.levelDb });
-    hc.push({ ...common, levelDb: c, bestLevelDb: bc.levelDb });
-    options.onReading?.({ ...common, levelDb: s, bestLevelDb: bs.levelDb, carrierDb: c });
+    const step = core.tell(levels ?? { sidebandDb: Number.NaN, carrierDb: Number.NaN }, error);
+    options.onReading?.(step);
   }
-  for (const k of [sb.seeker, cr.seeker]) if (!k.done) k.stop(signal?.aborted ? 'aborted' : 'budget');
-  const sideband = resultOf(sb.seeker, sAxes, start, hs, lastError);
-  const carrier = resultOf(cr.seeker, cAxes, start, hc, lastError);
-  return {
-    trims: { ...sideband.trims, dcI: carrier.trims.dcI, dcQ: carrier.trims.dcQ },
-    sideband,
-    carrier,
-    readings: count,
-  };
+  if (signal?.aborted) core.stop('aborted');
+  return core.result(lastError);
 }

@@ -8,6 +8,7 @@ import { exec } from 'node:child_process';
 import { readFile, writeFile } from 'node:fs/promises';
 import { createInterface } from 'node:readline/promises';
 import { carrierAxes } from '../calibrate/carrier.js';
+import { type BothLevels, type CombinedSeeker, createCombinedSeeker } from '../calibrate/combined.js';
 import type { Diagnosis } from '../calibrate/diagnosis.js';
 import type { NullSeeker } from '../calibrate/null-seeker.js';
 import { createProfile, type ProfileReading, profileToJson } from '../calibrate/profile.js';
@@ -55,6 +56,10 @@ where the readings come from:
 
 options:
   --what W               sideband | carrier | both (default both: sideband first, then carrier)
+  --together             with --what both: read the sideband and the carrier at every step (one
+                         analyzer display shows both; each reading serves both nulls, so one
+                         budget covers the two). --prompt then asks for two numbers, e.g.
+                         '-43.5 -27.9'; --measure-command gets OT_QUANTITY=both and prints two
   --tone HZ              test tone (default 1000)
   --rate HZ              sample rate the trims apply at, recorded in the profile (default 48000,
                          or the network's)
@@ -81,6 +86,7 @@ const OPTIONS = {
   prompt: { type: 'boolean' },
   'measure-command': { type: 'string' },
   what: { type: 'string' },
+  together: { type: 'boolean' },
   tone: { type: 'string' },
   rate: { type: 'string' },
   network: { type: 'string' },
@@ -124,11 +130,15 @@ const fmtTrims = (q: Quantity, t: Trims): string =>
     ? `gain ${t.gainDb >= 0 ? '+' : ''}${t.gainDb.toFixed(4)} dB, phase ${t.phaseDeg >= 0 ? '+' : ''}${t.phaseDeg.toFixed(4)}°`
     : `dcI ${t.dcI >= 0 ? '+' : ''}${t.dcI.toFixed(6)}, dcQ ${t.dcQ >= 0 ? '+' : ''}${t.dcQ.toFixed(6)}`;
 
-/** Reads one level from a person; resolves to a number, or 'retry' | 'undo' | 'quit'. */
-async function ask(
+/**
+ * Reads `count` levels from a person on one line (numbers in dB, a `dB`/`dBc` after each allowed,
+ * separated by spaces or commas); resolves to the numbers, or 'retry' | 'undo' | 'quit'.
+ */
+async function askLevels(
   rl: ReturnType<typeof createInterface>,
   question: string,
-): Promise<number | 'retry' | 'undo' | 'quit'> {
+  count: number,
+): Promise<number[] | 'retry' | 'undo' | 'quit'> {
   for (;;) {
     let line: string;
     try {
@@ -137,10 +147,70 @@ async function ask(
       return 'quit'; // input closed
     }
     if (line === 'retry' || line === 'undo' || line === 'quit') return line;
-    const x = Number(line.replace(/\s*db[c]?$/, ''));
-    if (line !== '' && Number.isFinite(x)) return x;
+    const parts = line
+      .replace(/(\d)\s*dbc?\b/g, '$1 ')
+      .split(/[\s,;]+/)
+      .filter((x) => x !== '');
+    const xs = parts.map(Number);
+    if (xs.length === count && xs.every(Number.isFinite)) return xs;
+    const want =
+      count === 1
+        ? 'a number in dB (e.g. -42.5)'
+        : 'the sideband and the carrier level in dB (e.g. -43.5 -27.9)';
     process.stdout.write(
-      `  '${line}' is not a level: type a number in dB (e.g. -42.5), retry, undo or quit\n`,
+      `  '${line}' is not ${count === 1 ? 'a level' : 'two levels'}: type ${want}, retry, undo or quit\n`,
+    );
+  }
+}
+
+/** Reads one level from a person; resolves to a number, or 'retry' | 'undo' | 'quit'. */
+async function ask(
+  rl: ReturnType<typeof createInterface>,
+  question: string,
+): Promise<number | 'retry' | 'undo' | 'quit'> {
+  const a = await askLevels(rl, question, 1);
+  return typeof a === 'string' ? a : a[0]!;
+}
+
+const fmtAll = (t: Trims): string => `${fmtTrims('sideband', t)}, ${fmtTrims('carrier', t)}`;
+
+/**
+ * Runs a combined calibration (both levels from each reading) by prompting a person, with retry,
+ * undo and quit.
+ */
+async function promptBothLoop(
+  core: CombinedSeeker,
+  maxReadings: number,
+  toneHz: number,
+  rl: ReturnType<typeof createInterface>,
+): Promise<void> {
+  for (;;) {
+    const t = core.next();
+    if (!t) return;
+    const n = core.count + 1;
+    process.stdout.write(`\n[reading ${n} of at most ${maxReadings}] set ${fmtAll(t)}\n`);
+    const a = await askLevels(
+      rl,
+      `  sideband and carrier levels at ${toneHz} Hz, dB, e.g. -43.5 -27.9 (retry | undo | quit): `,
+      2,
+    );
+    if (a === 'retry') continue;
+    if (a === 'quit') {
+      core.stop('aborted');
+      return;
+    }
+    if (a === 'undo') {
+      if (core.count === 0) process.stdout.write('  nothing to undo\n');
+      else {
+        core.undo();
+        process.stdout.write(`  dropped reading ${n - 1}\n`);
+      }
+      continue;
+    }
+    core.tell({ sidebandDb: a[0]!, carrierDb: a[1]! });
+    const b = core.best();
+    process.stdout.write(
+      `  best so far: ${fmtAll(b.trims)} (sideband ${b.sidebandDb.toFixed(1)} dB, carrier ${b.carrierDb.toFixed(1)} dB)\n`,
     );
   }
 }
@@ -206,18 +276,35 @@ async function readNetwork(file: string): Promise<Network> {
   }
 }
 
-/** Runs a shell command and parses the first number it prints. */
-function commandReading(cmd: string, env: Record<string, string>): Promise<number> {
+/** Runs a shell command and parses the first `count` numbers it prints. */
+function commandReadings(cmd: string, env: Record<string, string>, count: number): Promise<number[]> {
   return new Promise((resolve, reject) => {
     exec(cmd, { env: { ...process.env, ...env }, timeout: 120_000 }, (err, stdout) => {
       if (err) return reject(new Error(`measure command failed: ${err.message.split('\n')[0]}`));
-      const m = /[-+]?\d+(\.\d+)?([eE][-+]?\d+)?/.exec(stdout);
-      if (!m)
-        return reject(new Error(`measure command printed no number: ${JSON.stringify(stdout.slice(0, 80))}`));
-      resolve(Number(m[0]));
+      const m = stdout.match(/[-+]?\d+(\.\d+)?([eE][-+]?\d+)?/g) ?? [];
+      if (m.length < count) {
+        return reject(
+          new Error(
+            `measure command printed ${m.length === 0 ? 'no number' : `${m.length} number(s), not ${count}`}: ${JSON.stringify(stdout.slice(0, 80))}`,
+          ),
+        );
+      }
+      resolve(m.slice(0, count).map(Number));
     });
   });
 }
+
+/** Runs a shell command and parses the first number it prints. */
+async function commandReading(cmd: string, env: Record<string, string>): Promise<number> {
+  return (await commandReadings(cmd, env, 1))[0]!;
+}
+
+const trimEnv = (t: Trims): Record<string, string> => ({
+  OT_GAIN_DB: String(t.gainDb),
+  OT_PHASE_DEG: String(t.phaseDeg),
+  OT_DC_I: String(t.dcI),
+  OT_DC_Q: String(t.dcQ),
+});
 
 interface RunOut {
   q: Quantity;
@@ -239,6 +326,12 @@ export async function run(argv: string[]): Promise<number> {
   }
   const what = choiceOpt('what', v.what, ['sideband', 'carrier', 'both'], 'both');
   const format = choiceOpt('format', v.format, ['table', 'json'], 'table');
+  const together = v.together === true;
+  if (together && what !== 'both') {
+    throw new UsageError(
+      `--together reads the sideband and the carrier at each step: use it with --what both, not ${what}`,
+    );
+  }
   const toneHz = numberOpt('tone', v.tone ?? '1000')!;
   const toneAmplitude = numberOpt('tone-amplitude', v['tone-amplitude']);
   const maxReadings = numberOpt('max-readings', v['max-readings'] ?? '16')!;
@@ -301,8 +394,73 @@ export async function run(argv: string[]): Promise<number> {
   const quantities: Quantity[] = what === 'both' ? ['sideband', 'carrier'] : [what as Quantity];
   const runs: RunOut[] = [];
   let current: Trims = { ...ZERO_TRIMS };
+  let sharedReadings: number | undefined;
   try {
-    for (const q of quantities) {
+    if (together) {
+      const core = createCombinedSeeker({
+        noiseDb,
+        maxReadings,
+        ...(targetDb !== undefined ? { targetDb } : {}),
+        ...(floorDb !== undefined ? { floorDb } : {}),
+        ...(toneAmplitude !== undefined ? { toneAmplitude } : {}),
+      });
+      out('\n== sideband and carrier nulls together: gain, phase, dcI and dcQ trims ==\n');
+      let lastError: unknown;
+      if (rl) await promptBothLoop(core, maxReadings, toneHz, rl);
+      else {
+        for (let t = core.next(); t; t = core.next()) {
+          let levels: BothLevels;
+          let error: unknown;
+          try {
+            if (analyzer) {
+              const r = analyzer.readBoth(toneHz, t, simAmplitude);
+              levels = { sidebandDb: r.sidebandDbc, carrierDb: r.carrierDbc };
+            } else {
+              const [a, b] = await commandReadings(
+                v['measure-command'] as string,
+                { OT_QUANTITY: 'both', OT_TONE_HZ: String(toneHz), ...trimEnv(t) },
+                2,
+              );
+              levels = { sidebandDb: a!, carrierDb: b! };
+            }
+          } catch (e) {
+            error = e;
+            lastError = e;
+            levels = { sidebandDb: Number.NaN, carrierDb: Number.NaN };
+            out(`  reading ${core.count + 1} failed: ${(e as Error)?.message ?? 'no value'}\n`);
+          }
+          core.tell(levels, error);
+        }
+      }
+      const res = core.result(lastError);
+      const table: string[][] = [['#', 'setting', 'sideband dB', 'carrier dB']];
+      res.sideband.history.forEach((h, k) => {
+        const c = res.carrier.history[k]!.levelDb;
+        const f = (x: number) => (Number.isFinite(x) ? x.toFixed(2) : 'failed');
+        table.push([String(h.index), fmtAll(h.trims), f(h.levelDb), f(c)]);
+      });
+      out(formatTable(table));
+      for (const [q, result] of [
+        ['sideband', res.sideband],
+        ['carrier', res.carrier],
+      ] as const) {
+        const ro: RunOut = { q, result };
+        if (exciter) {
+          const pick = (t: Trims) => {
+            const r = exciter!.response(toneHz, t, simAmplitude);
+            return -(q === 'sideband' ? r.unwantedDbc : r.carrierDbc);
+          };
+          ro.trueStartDb = pick(ZERO_TRIMS);
+          ro.trueEndDb = pick(res.trims);
+        }
+        runs.push(ro);
+        out(`stop (${q}): ${result.stopReason}; result ${fmtTrims(q, result.trims)}\n`);
+        for (const d of result.diagnosis) out(`note [${d.code}]: ${d.message}\n`);
+      }
+      current = res.trims;
+      sharedReadings = res.readings;
+    }
+    for (const q of together ? [] : quantities) {
       const axes = q === 'sideband' ? SIDEBAND_AXES : carrierAxes(toneAmplitude);
       const { seeker, start } = seekerFor(
         {
@@ -329,10 +487,7 @@ export async function run(argv: string[]): Promise<number> {
           return commandReading(v['measure-command'] as string, {
             OT_QUANTITY: q,
             OT_TONE_HZ: String(toneHz),
-            OT_GAIN_DB: String(t.gainDb),
-            OT_PHASE_DEG: String(t.phaseDeg),
-            OT_DC_I: String(t.dcI),
-            OT_DC_Q: String(t.dcQ),
+            ...trimEnv(t),
           });
         };
         await runNullSeeker(seeker, measure, {
@@ -400,14 +555,20 @@ export async function run(argv: string[]): Promise<number> {
   );
 
   const readings: ProfileReading[] = runs.flatMap((r) =>
-    r.result.state.readings.map((x) => ({
-      quantity: r.q,
-      trims:
-        r.q === 'sideband'
-          ? SIDEBAND_AXES.toTrims(x.point, ZERO_TRIMS)
-          : { ...ZERO_TRIMS, dcI: x.point[0], dcQ: x.point[1] },
-      levelDb: x.db,
-    })),
+    together
+      ? r.result.history.map((h) => ({
+          quantity: r.q,
+          trims: h.trims,
+          levelDb: Number.isFinite(h.levelDb) ? h.levelDb : null,
+        }))
+      : r.result.state.readings.map((x) => ({
+          quantity: r.q,
+          trims:
+            r.q === 'sideband'
+              ? SIDEBAND_AXES.toTrims(x.point, ZERO_TRIMS)
+              : { ...ZERO_TRIMS, dcI: x.point[0], dcQ: x.point[1] },
+          levelDb: x.db,
+        })),
   );
   const sb = runs.find((r) => r.q === 'sideband');
   const cr = runs.find((r) => r.q === 'carrier');
@@ -415,13 +576,13 @@ export async function run(argv: string[]): Promise<number> {
     ? {
         ...(sb ? { sidebandDb: sb.trueEndDb! } : {}),
         ...(cr ? { carrierDb: cr.trueEndDb! } : {}),
-        readingsUsed: runs.reduce((s, r) => s + r.result.readings, 0),
+        readingsUsed: sharedReadings ?? runs.reduce((s, r) => s + r.result.readings, 0),
         source: 'simulated' as const,
       }
     : {
         ...(sb ? { sidebandDb: -sb.result.levelDb } : {}),
         ...(cr ? { carrierDb: -cr.result.levelDb } : {}),
-        readingsUsed: runs.reduce((s, r) => s + r.result.readings, 0),
+        readingsUsed: sharedReadings ?? runs.reduce((s, r) => s + r.result.readings, 0),
         source: 'fit' as const,
       };
   const profile = createProfile({

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { calibrateCarrier } from '../../src/calibrate/carrier.js';
-import { calibrateSidebandAndCarrier } from '../../src/calibrate/combined.js';
+import { calibrateSidebandAndCarrier, createCombinedSeeker } from '../../src/calibrate/combined.js';
 import { calibrateSideband } from '../../src/calibrate/sideband.js';
 import { createRng } from '../../src/core/rng.js';
 import type { Trims } from '../../src/core/trims.js';
@@ -287,6 +287,27 @@ describe('calibrateSidebandAndCarrier', () => {
     expect(r.readings).toBe(calls);
     expect(-trueSidebandDbc(dev, r.trims)).toBeGreaterThan(65);
     expect(-trueCarrierDbc(dev, r.trims)).toBeGreaterThan(65);
+  });
+  it('its ask/tell core undoes a reading in both calibrations exactly', () => {
+    const dev = drawAnalyticDevice(createRng(51));
+    const an = analyzer(dev, { seed: 13 });
+    const core = createCombinedSeeker({ maxReadings: 16 });
+    for (let k = 0; k < 5; k++) {
+      const t = core.next()!;
+      core.tell({ sidebandDb: an.sideband(t), carrierDb: an.carrier(t) });
+    }
+    const before = core.next();
+    const bestBefore = core.best();
+    core.tell({ sidebandDb: -10, carrierDb: -10 });
+    expect(core.count).toBe(6);
+    core.undo();
+    expect(core.count).toBe(5);
+    expect(core.next()).toEqual(before);
+    expect(core.best()).toEqual(bestBefore);
+    const r = core.result();
+    expect(r.readings).toBe(5);
+    expect(r.sideband.history).toHaveLength(5);
+    expect(r.carrier.state.readings.every((x) => x.db !== -10)).toBe(true);
   });
   it('keeps all four trims on their hardware grids', async () => {
     const dev = drawAnalyticDevice(createRng(50));

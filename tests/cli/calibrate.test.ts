@@ -7,8 +7,11 @@ import { describe, expect, it } from 'vitest';
 import { validateProfile } from '../../src/calibrate/profile.js';
 import { TRANSMIT_CAUTIONS } from '../../src/core/cautions.js';
 import { createRng } from '../../src/core/rng.js';
+import { type Trims, ZERO_TRIMS } from '../../src/core/trims.js';
 import { designNetwork } from '../../src/design/design-network.js';
 import { networkToJson } from '../../src/export/network-json.js';
+import { createVirtualExciter } from '../../src/simulate/exciter.js';
+import { homebrewBenchDevice } from '../../src/simulate/model.js';
 import { drawAnalyticDevice, trueCarrierDbc, trueSidebandDbc } from '../calibrate/analytic-exciter.js';
 import { cli } from '../support/cli.js';
 
@@ -196,5 +199,89 @@ describe('orthotone calibrate --prompt', () => {
     expect(all).toMatch(/dropped reading 4/);
     expect(all).toMatch(/result \(levels as read/);
     expect(all).toMatch(/stop: (floor|budget|target)/);
+  });
+});
+
+describe('orthotone calibrate --prompt --together (both levels off one analyzer display)', () => {
+  it('asks for both levels per step, accepts retry, a bad line and undo, and nulls both', async () => {
+    // The person's analyzer reads the virtual hand-built exciter (invented bench of our own) at a
+    // 1 kHz tone of half full scale: its noiseless response, a −70 dBc floor power-added, and
+    // 0.3 dB of seeded reading noise.
+    const ex = createVirtualExciter(homebrewBenchDevice(), { sampleRate: 48000, seed: 5 });
+    const rng = createRng(79);
+    const floor = 1e-7;
+    const read = (t: Trims) => {
+      const r = ex.response(1000, t, 0.5);
+      const f = (dbc: number) => 10 * Math.log10(10 ** (dbc / 10) + floor) + 0.3 * rng.normal();
+      return [f(r.unwantedDbc), f(r.carrierDbc)] as const;
+    };
+    const dir = mkdtempSync(join(tmpdir(), 'ot-cal-both-'));
+    const child = spawn('node', [
+      'dist/cli.js',
+      'calibrate',
+      '--prompt',
+      '--together',
+      '--max-readings',
+      '16',
+      '--profile',
+      join(dir, 'p.json'),
+    ]);
+    let buf = '';
+    let all = '';
+    let asked = 0;
+    const done = new Promise<number>((resolve) => child.on('close', (code) => resolve(code ?? -1)));
+    const setting = /set gain ([-+\d.]+) dB, phase ([-+\d.]+)°, dcI ([-+\d.]+), dcQ ([-+\d.]+)\s*\n[^\n]*$/;
+    child.stdout.on('data', (d: Buffer) => {
+      buf += d.toString();
+      all += d.toString();
+      for (;;) {
+        const k = buf.indexOf('(retry | undo | quit): ');
+        if (k < 0) break;
+        const chunk = buf.slice(0, k);
+        buf = buf.slice(k + 1);
+        const m = setting.exec(chunk);
+        asked++;
+        if (!m) {
+          // Asked again after retry or a line that was not two levels: the setting is unchanged.
+          child.stdin.write(`${lastAnswer}\n`);
+          continue;
+        }
+        const t: Trims = { ...ZERO_TRIMS, gainDb: +m[1]!, phaseDeg: +m[2]!, dcI: +m[3]!, dcQ: +m[4]! };
+        const [sb, cr] = read(t);
+        lastAnswer = `${sb.toFixed(2)} ${cr.toFixed(2)}`;
+        if (asked === 3) child.stdin.write('retry\n');
+        else if (asked === 5)
+          child.stdin.write('-43.5\n'); // one number only: asked again
+        else if (asked === 8)
+          child.stdin.write('-10 dBc, -10 dBc\n'); // a slip, undone next
+        else if (asked === 9) child.stdin.write('undo\n');
+        else child.stdin.write(`${sb.toFixed(2)} dBc ${cr.toFixed(2)}\n`);
+      }
+    });
+    let lastAnswer = '';
+    const code = await done;
+    expect(code).toBe(0);
+    expect(all).toMatch(/sideband and carrier levels at 1000 Hz/);
+    expect(all).toMatch(/is not two levels/);
+    expect(all).toMatch(/dropped reading \d+/);
+    expect(all).toMatch(/== sideband and carrier nulls together/);
+    const p = validateProfile(JSON.parse(readFileSync(join(dir, 'p.json'), 'utf8')));
+    expect(p.results.readingsUsed).toBeLessThanOrEqual(16);
+    // The slip (−10, −10) was undone: no kept reading says −10.
+    expect(p.readings.some((r) => r.levelDb === -10)).toBe(false);
+    const after = ex.response(1000, p.trims, 0.5);
+    // From about 44 dB sideband and 34 dB carrier (common practice, no source) to deep nulls.
+    expect(-after.unwantedDbc).toBeGreaterThan(60);
+    expect(-after.carrierDbc).toBeGreaterThan(60);
+  });
+  it('--together with --simulate reads both per step within one budget; refused with --what sideband', () => {
+    const r = cli(['calibrate', '--simulate', '--together', '--format', 'json', '--max-readings', '16']);
+    expect(r.status).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(out.profile.results.readingsUsed).toBeLessThanOrEqual(16);
+    for (const run of out.runs) expect(run.trueEndDb).toBeGreaterThan(60);
+    const bad = cli(['calibrate', '--simulate', '--together', '--what', 'sideband']);
+    expect(bad.status).toBe(2);
+    expect(bad.stderr).toMatch(/--together .* --what both/);
   });
 });

@@ -33,11 +33,8 @@ export interface Levels {
   carrierDb: number;
 }
 
-/**
- * Frames of 4096 samples: the measure module's longer power-of-two frames (8192, 16384) were seen
- * to read the unwanted tone a bin or two off while this demo was written; 4096 reads it exactly.
- */
-const FRAME = 4096;
+/** Samples a virtual reading analyses after the exciter has settled (measure/ picks the frames). */
+const READ_SAMPLES = 6144;
 
 /**
  * An invented bench of our own whose imbalance changes across the band: the hand-built bench's
@@ -53,12 +50,16 @@ const SKEW_BENCH: Readonly<TolerancePreset> = Object.freeze({
   cornerPct: 10,
 });
 
-/** The invented benches the virtual exciter can stand for (tolerance presets of simulate/). */
-export const VIRTUAL_BENCHES: [string, string][] = [
-  ['homebrew-bench', 'Hand-built bench: 0.5% resistors, 6 mV offsets, 16-bit codec'],
-  ['one-percent', 'Kit build: 1% resistors, 2 mV offsets, 16-bit codec'],
-  ['precision', 'Precision build: 0.1% resistors, 0.5 mV offsets, 24-bit codec'],
-  ['skew-bench', 'Hand-built bench with codec skew and mismatched filter corners'],
+/** The invented benches the virtual exciter can stand for: value, short name, description. */
+export const VIRTUAL_BENCHES: [string, string, string][] = [
+  ['homebrew-bench', 'Hand-built bench', '0.5% resistors, 6 mV offsets, 16-bit codec, DC-coupled.'],
+  ['one-percent', 'Kit build', '1% resistors, 2 mV offsets, 16-bit codec.'],
+  ['precision', 'Precision build', '0.1% resistors, 0.5 mV offsets, 24-bit codec.'],
+  [
+    'skew-bench',
+    'Hand-built, skewed codec',
+    'The hand-built bench plus up to 2 µs between the codec channels and ±10% on its filter corners: its imbalance changes across the band.',
+  ],
 ];
 
 /** A device drawn from a preset and a seed. */
@@ -80,9 +81,9 @@ function settleSamples(model: ExciterModel, fs: number): number {
   return 24 + 64 + 32 + Math.ceil(10 * tau * fs);
 }
 
-/** Capture length a virtual reading needs, seconds: the settling span plus 1.5 frames. */
+/** Capture length a virtual reading needs, seconds: the settling span plus the samples read. */
 export function virtualCaptureSeconds(model: ExciterModel, fs: number): number {
-  return (settleSamples(model, fs) + 1.5 * FRAME) / fs;
+  return (settleSamples(model, fs) + READ_SAMPLES) / fs;
 }
 
 /**
@@ -117,11 +118,7 @@ export function virtualReader(
   const path = virtualPath(model, opts);
   return (cap) => {
     const { re, im } = path(cap);
-    const r = measureSideband(re, im, opts.sampleRate, {
-      toneHz: opts.toneHz,
-      sideband: opts.sideband,
-      frameLength: FRAME,
-    });
+    const r = measureSideband(re, im, opts.sampleRate, { toneHz: opts.toneHz, sideband: opts.sideband });
     return { sidebandDb: r.unwantedDbc, carrierDb: r.carrierDbc };
   };
 }
@@ -140,7 +137,7 @@ export function virtualToneReader(
   const K = opts.tonesHz.length;
   return (cap) => {
     const { re, im } = path(cap);
-    const r = measureTones({ i: re, q: im }, opts.sampleRate, freqs, { frameLength: FRAME });
+    const r = measureTones({ i: re, q: im }, opts.sampleRate, freqs);
     return opts.tonesHz.map((_, k) => r[K + k]!.levelDbfs - r[k]!.levelDbfs);
   };
 }
@@ -159,7 +156,7 @@ export function readReceiverAudio(
   fs: number,
   opts: AudioReadingOptions,
 ): SidebandReading {
-  return measureSideband(samples, null, fs, { ...opts, frameLength: FRAME });
+  return measureSideband(samples, null, fs, opts);
 }
 
 /** Reads receiver audio (mono) with the carrier at `offsetHz`: sideband and carrier, dBc. */

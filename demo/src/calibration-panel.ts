@@ -42,13 +42,23 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
   );
   const kind = select(
     [
-      ['single', 'One tone: carrier and sideband'],
-      ['multi', 'Across the band: correction filter'],
+      ['single', 'One tone (trims)'],
+      ['multi', 'Across the band (filter)'],
     ],
     'single',
     { id: 'cal-kind' },
   );
-  const bench = select(VIRTUAL_BENCHES, 'homebrew-bench', { id: 'cal-bench' });
+  const bench = select(
+    VIRTUAL_BENCHES.map(([v, short]) => [v, short]),
+    'homebrew-bench',
+    { id: 'cal-bench' },
+  );
+  const benchHint = h('div', { class: 'hint' });
+  const showBench = () => {
+    benchHint.textContent = VIRTUAL_BENCHES.find(([v]) => v === bench.value)?.[2] ?? '';
+  };
+  bench.addEventListener('change', showBench);
+  showBench();
   const seed = numberInput(711, { min: 0, step: 1, id: 'cal-seed' });
   const tone = numberInput(1800, { min: 50, step: 10, id: 'cal-tone' });
   const budget = numberInput(10, { min: 4, max: 60, step: 1, id: 'cal-budget' });
@@ -95,6 +105,7 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
     'div',
     {},
     field('Bench', bench),
+    benchHint,
     field('Unit (seed)', seed, 'each seed draws a different unit from the tolerances'),
   );
   const toneRow = field('Test tone, Hz', tone);
@@ -248,11 +259,13 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
       { label: 'carrier lowest so far', color: '#6b4fbb', dash: [5, 4] },
     ],
   });
+  let bandView: [number, number] = [270, 3300];
   const band = linePlot(mplots, {
     title: 'Opposite-sideband suppression across the band (read through the virtual exciter)',
     xLabel: 'Hz',
     yLabel: 'dB',
     logX: true,
+    xRange: () => bandView,
     series: [
       { label: 'before', color: '#8a96a0', points: true },
       { label: 'best single trims', color: '#6b4fbb', dash: [5, 4], points: true },
@@ -275,6 +288,7 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
     runBtn.textContent = multi ? 'Calibrate across the band' : 'Calibrate sideband and carrier';
     budget.value = multi ? '24' : '10';
     if (multi && bench.value === 'homebrew-bench') bench.value = 'skew-bench';
+    showBench();
     tableHead.replaceChildren(
       multi
         ? headRow('#', 'Q gain dB', 'Phase °', 'Worst tone dBc', 'Best tone dBc')
@@ -515,6 +529,7 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
       const net = engine.network;
       const tonesHz = logTones(net.band, CAL_TONES);
       const verifyHz = logTones(net.band, CHECK_TONES);
+      bandView = [net.band[0] / 1.1, net.band[1] * 1.1];
       const running = engine.running ?? (await engine.start());
       const model = virtualDevice(bench.value, Number(seed.value));
       const r = await runMultitoneCalibration({

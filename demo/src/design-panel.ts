@@ -47,7 +47,7 @@ export function designPanel(onUse: (net: Network) => void): DesignPanel {
     cost: figure('Multiplies / sample'),
     latency: figure('Latency'),
   };
-  const plots = h('div');
+  const plots = h('div', { id: 'design-plots' });
   const el = h(
     'section',
     { class: 'panel', id: 'panel-design' },
@@ -91,12 +91,22 @@ export function designPanel(onUse: (net: Network) => void): DesignPanel {
       h('div', {}, h('div', { class: 'figures' }, ...Object.values(figs).map((f) => f.el)), plots),
     ),
   );
+  // Plots span the band and a little beyond it (shaded), so the edges show where the error turns up.
+  let view: { range: [number, number]; band: [number, number]; phaseSpan: number } = {
+    range: [270, 3300],
+    band: [300, 3000],
+    phaseSpan: 0.1,
+  };
   const phasePlot = linePlot(plots, {
-    title: 'Phase error across the band (I − Q − 90°)',
+    title: 'Phase error across the band (I − Q − 90°; shaded: outside the band)',
     xLabel: 'Hz',
     yLabel: 'degrees',
     logX: true,
     series: [{ label: 'phase error', color: '#0f7c7a' }],
+    xRange: () => view.range,
+    // In-band ripple fills most of the height; the error beyond the edges runs off the top and bottom.
+    yRange: () => [-view.phaseSpan, view.phaseSpan],
+    shadeOutside: () => view.band,
   });
   const supPlot = linePlot(plots, {
     title: 'Predicted opposite-sideband suppression across the band',
@@ -107,6 +117,8 @@ export function designPanel(onUse: (net: Network) => void): DesignPanel {
       { label: 'suppression', color: '#c8452b' },
       { label: 'target', color: '#8a96a0', dash: [6, 4] },
     ],
+    xRange: () => view.range,
+    shadeOutside: () => view.band,
   });
 
   const panel: DesignPanel = { el, network: designNetwork(START_SPEC) };
@@ -142,11 +154,18 @@ export function designPanel(onUse: (net: Network) => void): DesignPanel {
     figs.latency.set(
       `${fmt(net.cost.latencySamples)} smp · ${fmt((1000 * net.cost.latencySamples) / fs, 2)} ms`,
     );
-    phasePlot.setData(a.frequencyHz, [a.phaseErrorDeg]);
-    supPlot.setData(a.frequencyHz, [
-      Array.from(a.suppressionDb, (s) => Math.min(s, 160)),
-      Array.from(a.frequencyHz, () => t),
+    // A little beyond the band: an eighth of it on each side (log scale), inside 0…Nyquist.
+    const [lo, hi] = net.band;
+    const margin = (hi / lo) ** (1 / 16);
+    const range: [number, number] = [Math.max(1, lo / margin), Math.min(0.499 * fs, hi * margin)];
+    view = { range, band: [lo, hi], phaseSpan: Math.max(1e-6, 1.6 * a.maxPhaseErrorDeg) };
+    const w = analyzeNetwork(net, { points: 480, fromHz: range[0], toHz: range[1], scale: 'log' });
+    phasePlot.setData(w.frequencyHz, [w.phaseErrorDeg]);
+    supPlot.setData(w.frequencyHz, [
+      Array.from(w.suppressionDb, (s) => Math.max(0, Math.min(s, 160))),
+      Array.from(w.frequencyHz, () => t),
     ]);
+    plots.dataset['xRange'] = JSON.stringify(range);
   }
 
   function run(): void {

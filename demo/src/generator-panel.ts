@@ -1,11 +1,19 @@
-/** Panel 2: the generator: source, level, sideband, trims, and a live monitor of I + jQ. */
+/**
+ * Panel 2: the generator: source, level, sideband, trims, correction filter, and a live monitor of
+ * I + jQ (spectrum, I/Q scope, and the readings that fit the source: one tone, two tones, or
+ * several tones across the band).
+ */
 import type { Trims } from '../../src/core/trims.js';
 import { measureSideband } from '../../src/measure/sideband.js';
 import { computeSpectrum } from '../../src/measure/spectrum.js';
+import { measureTones } from '../../src/measure/tones.js';
+import { measureTwoTone, type TwoToneReading } from '../../src/measure/two-tone.js';
 import type { SourceSpec } from '../../src/webaudio/messages.js';
+import { logTones } from './bench.js';
 import { field, figure, fmt, h, numberInput, select } from './dom.js';
 import type { Engine } from './engine.js';
 import { linePlot } from './plot.js';
+import { iqScope } from './scope.js';
 
 interface TrimControl {
   name: keyof Trims;
@@ -23,10 +31,20 @@ const TRIM_CONTROLS: TrimControl[] = [
   { name: 'dcQ', label: 'DC on Q, FS', range: 0.02, step: 0.00001, digits: 5 },
 ];
 
+/** Frame of the monitor's spectrum plot: 11.7 Hz bins at 48 kHz, two frames averaged per capture. */
+const PLOT_FRAME = 4096;
+/** Tones of the "several tones" source. */
+const MULTI_TONES = 5;
+
 export interface GeneratorPanel {
   el: HTMLElement;
   /** Shows trims set elsewhere (by the calibration) on the sliders. */
   showTrims(t: Trims): void;
+}
+
+/** A level in dB, or "≤ level" when the reading is at the floor (an upper bound). */
+function bound(db: number, atFloor: boolean, unit: string): string {
+  return `${atFloor ? '≤ ' : ''}${fmt(db)} ${unit}`;
 }
 
 export function generatorPanel(engine: Engine): GeneratorPanel {
@@ -36,6 +54,7 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
     [
       ['tone', 'One tone'],
       ['two-tone', 'Two tones'],
+      ['multitone', 'Tones across the band'],
       ['sweep', 'Sweep'],
       ['noise', 'Noise (band-limited)'],
       ['input', 'Sound card input (microphone or line)'],
@@ -45,7 +64,9 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
     { id: 'gen-source' },
   );
   const f1 = numberInput(1800, { min: 20, step: 10, id: 'gen-f1' });
-  const f2 = numberInput(700, { min: 20, step: 10 });
+  const f2 = numberInput(700, { min: 20, step: 10, id: 'gen-f2' });
+  const f1Row = field('Tone, Hz', f1);
+  const f2Row = field('Second tone, Hz', f2);
   const level = h('input', { type: 'range', min: -60, max: 0, step: 0.5, value: String(engine.levelDb) });
   const levelOut = h('output', {}, `${engine.levelDb} dBFS`);
   const sideband = select(
@@ -68,12 +89,83 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
     sliders.set(c.name, { input, out });
     return h('div', { class: 'trim' }, h('label', {}, c.label), input, out);
   });
+
+  // Correction filter (from the multi-tone calibration).
+  const corrText = h(
+    'div',
+    { class: 'hint', id: 'gen-corr-text' },
+    'None. A multi-tone calibration (panel 3) makes one for the whole band.',
+  );
+  const corrOn = h('input', { type: 'checkbox', id: 'gen-corr-on', disabled: true });
+  const corrRemove = h('button', { class: 'secondary', id: 'gen-corr-remove', disabled: true }, 'Remove');
+  const corrControls = h(
+    'div',
+    { hidden: true },
+    h('label', {}, corrOn, ' Run it (untick to compare without)'),
+    corrRemove,
+    h(
+      'p',
+      { class: 'hint' },
+      'While it runs, the generator’s own I/Q is deliberately unbalanced to cancel the exciter’s errors: ',
+      'the monitor below shows that; judge the suppression at the exciter’s output.',
+    ),
+  );
+  const corrBox = h(
+    'fieldset',
+    {},
+    h('legend', {}, 'Correction filter (after gain and phase)'),
+    corrText,
+    corrControls,
+  );
+
+  // Monitor figures: one set per kind of source, only the fitting one shown.
   const figs = {
     wanted: figure('Wanted tone'),
     sideband: figure('Sideband suppression'),
     carrier: figure('Carrier suppression'),
     peak: figure('Output peak'),
   };
+  const two = {
+    t1: figure('Tone 1'),
+    t2: figure('Tone 2'),
+    pep: figure('PEP'),
+    imd3: figure('IMD3 (worst)'),
+    imd5: figure('IMD5 (worst)'),
+  };
+  const multi = {
+    tones: figure('Each tone'),
+    worst: figure('Worst tone: sideband'),
+    best: figure('Best tone: sideband'),
+  };
+  const oneBox = h('div', { class: 'figures', id: 'gen-figs-tone' }, ...Object.values(figs).map((f) => f.el));
+  const twoBox = h(
+    'div',
+    { hidden: true, id: 'gen-figs-two' },
+    h('div', { class: 'figures wide' }, ...Object.values(two).map((f) => f.el)),
+    h(
+      'p',
+      { class: 'hint' },
+      'Products relative to one tone (dBc) and to the peak envelope power (dB PEP). This is the ',
+      'generator’s own I/Q: products here come from clipping or the sound card, not from the exciter. ',
+      'Read the exciter’s products at its output with a receiver.',
+    ),
+  );
+  const multiBox = h(
+    'div',
+    { hidden: true, id: 'gen-figs-multi' },
+    h('div', { class: 'figures' }, ...Object.values(multi).map((f) => f.el)),
+  );
+  const scope = iqScope();
+  const magnify = select(
+    [
+      ['1', 'as it is'],
+      ['10', 'deviation ×10'],
+      ['100', 'deviation ×100'],
+      ['1000', 'deviation ×1000'],
+    ],
+    '1',
+    { id: 'gen-magnify' },
+  );
   const monitor = h('div');
   const el = h(
     'section',
@@ -103,9 +195,16 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
           {},
           h('legend', {}, 'Source'),
           field('Signal', kind),
-          h('div', { class: 'row' }, field('Tone, Hz', f1), field('Second tone, Hz', f2)),
+          h('div', { class: 'row' }, f1Row, f2Row),
           field('Level', h('div', { class: 'level' }, level, levelOut), 'peak dBFS (two tones: PEP)'),
           field('Sideband', sideband),
+        ),
+        h(
+          'fieldset',
+          {},
+          h('legend', {}, 'I/Q scope'),
+          scope.el,
+          field('Show', magnify, 'magnify how far the trace strays from a circle'),
         ),
         status,
       ),
@@ -119,7 +218,10 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
           ...trimRows,
           h('button', { class: 'secondary', onclick: () => resetTrims() }, 'Zero all trims'),
         ),
-        h('div', { class: 'figures' }, ...Object.values(figs).map((f) => f.el)),
+        corrBox,
+        oneBox,
+        twoBox,
+        multiBox,
         monitor,
       ),
     ),
@@ -131,6 +233,7 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
     series: [{ label: 'level', color: '#0f7c7a' }],
     height: 220,
   });
+  scope.clear();
 
   function source(): SourceSpec {
     const a = Number(f1.value);
@@ -138,6 +241,8 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
     switch (kind.value) {
       case 'two-tone':
         return { kind: 'two-tone', frequenciesHz: [b, a] };
+      case 'multitone':
+        return { kind: 'multitone', frequenciesHz: logTones(engine.network.band, MULTI_TONES) };
       case 'sweep':
         return {
           kind: 'sweep',
@@ -155,6 +260,20 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
         return { kind: 'tone', frequencyHz: a };
     }
   }
+
+  /** Shows the figures and inputs that fit the source. */
+  function showSource(s: SourceSpec): void {
+    if (kind.value !== s.kind) kind.value = s.kind;
+    if (s.kind === 'tone') f1.value = String(s.frequencyHz);
+    f1Row.hidden = s.kind !== 'tone' && s.kind !== 'two-tone';
+    f2Row.hidden = s.kind !== 'two-tone';
+    oneBox.hidden = s.kind === 'two-tone' || s.kind === 'multitone';
+    twoBox.hidden = s.kind !== 'two-tone';
+    multiBox.hidden = s.kind !== 'multitone';
+    magnify.disabled = s.kind !== 'tone';
+  }
+  showSource(engine.source);
+  engine.onSource(showSource);
 
   const report = (e: unknown) => {
     status.className = 'status error';
@@ -184,8 +303,25 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
       ok(
         `Running at ${r.ctx.sampleRate} Hz, ${engine.network.kind} network, ${engine.network.band[0]}–${engine.network.band[1]} Hz.`,
       );
-    else ok('Stopped.');
+    else {
+      ok('Stopped.');
+      scope.clear();
+    }
   });
+  engine.onCorrection((c) => {
+    corrControls.hidden = !c;
+    corrOn.disabled = !c;
+    corrRemove.disabled = !c;
+    corrOn.checked = c?.on ?? false;
+    corrText.textContent = c
+      ? `${c.note}. ${c.on ? 'Running.' : 'Bypassed.'}`
+      : 'None. A multi-tone calibration (panel 3) makes one for the whole band.';
+  });
+  corrOn.addEventListener('change', () => {
+    const c = engine.correction;
+    if (c) engine.setCorrection({ ...c, on: corrOn.checked }).catch(report);
+  });
+  corrRemove.addEventListener('click', () => engine.setCorrection(null).catch(report));
   outputBox.addEventListener('change', () => engine.setOutput(outputBox.checked));
   for (const c of [kind, f1, f2]) {
     c.addEventListener('change', () => engine.setSource(source()).catch(report));
@@ -203,6 +339,36 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
     panel.showTrims({ gainDb: 0, phaseDeg: 0, skewSamples: 0, dcI: 0, dcQ: 0 });
   }
 
+  function showTwoTone(r: TwoToneReading): void {
+    const [a, b] = r.tones;
+    two.t1.set(`${fmt(a.levelDbfs)} dBFS · ${fmt(Math.abs(a.frequencyHz), 0)} Hz`);
+    two.t2.set(`${fmt(b.levelDbfs)} dBFS · ${fmt(Math.abs(b.frequencyHz), 0)} Hz`);
+    two.pep.set(`${fmt(r.pepDbfs)} dBFS`);
+    for (const [order, fig] of [
+      [3, two.imd3],
+      [5, two.imd5],
+    ] as const) {
+      const ps = r.products.filter((p) => p.order === order);
+      if (ps.length === 0) {
+        fig.set('—');
+        continue;
+      }
+      const worst = ps.reduce((w, p) => (p.dbcTone > w.dbcTone ? p : w));
+      fig.set(
+        `${bound(worst.dbcTone, worst.reading.atFloor, 'dBc')}\n${bound(worst.dbPep, worst.reading.atFloor, 'dB PEP')}`,
+      );
+    }
+    twoBox.dataset['reading'] = JSON.stringify({
+      tonesDbfs: [a.levelDbfs, b.levelDbfs],
+      pepDbfs: r.pepDbfs,
+      imd3Dbc: r.imd3Dbc,
+      imd3DbPep: r.imd3DbPep,
+      imd5Dbc: r.imd5Dbc,
+      imd5DbPep: r.imd5DbPep,
+      atFloor: r.products.map((p) => p.reading.atFloor),
+    });
+  }
+
   // Monitor: a capture of the generator's own I/Q a few times a second.
   let busy = false;
   setInterval(async () => {
@@ -213,7 +379,9 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
       const fs = r.ctx.sampleRate;
       const cap = await r.iq.capture(8192);
       const [i, q] = cap.channels as [Float32Array, Float32Array];
-      const s = computeSpectrum({ i, q }, fs, { frameLength: 4096 });
+      const src = engine.source;
+      scope.draw(i.subarray(0, 2048), q.subarray(0, 2048), src.kind === 'tone' ? Number(magnify.value) : 1);
+      const s = computeSpectrum({ i, q }, fs, { frameLength: PLOT_FRAME });
       const span = Math.min(fs / 2, engine.network.band[1] * 1.25);
       const xs: number[] = [];
       const ys: number[] = [];
@@ -228,17 +396,28 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
       let peak = 0;
       for (let k = 0; k < i.length; k++) peak = Math.max(peak, Math.abs(i[k]!), Math.abs(q[k]!));
       figs.peak.set(`${fmt(20 * Math.log10(Math.max(peak, 1e-9)))} dBFS`, peak > 1 ? 'bad' : '');
-      if (engine.source.kind === 'tone') {
-        const m = measureSideband(i, q, fs, {
-          toneHz: engine.source.frequencyHz,
-          sideband: engine.sideband,
-          frameLength: 4096,
-        });
+      const sign = engine.sideband === 'upper' ? 1 : -1;
+      if (src.kind === 'tone') {
+        const m = measureSideband(i, q, fs, { toneHz: src.frequencyHz, sideband: engine.sideband });
         figs.wanted.set(`${fmt(m.wanted.levelDbfs)} dBFS`);
         figs.sideband.set(`${fmt(m.sidebandSuppressionDb)} dB`);
         figs.carrier.set(`${fmt(m.carrierSuppressionDb)} dB`);
+      } else if (src.kind === 'two-tone') {
+        const [a, b] = src.frequenciesHz;
+        showTwoTone(measureTwoTone({ i, q }, fs, [sign * a, sign * b], { maxOrder: 5 }));
+      } else if (src.kind === 'multitone') {
+        const f = src.frequenciesHz;
+        const t = measureTones({ i, q }, fs, [...f.map((x) => sign * x), ...f.map((x) => -sign * x)], {});
+        const sup = f.map((_, k) => t[k]!.levelDbfs - t[f.length + k]!.levelDbfs);
+        const at = (k: number) => `${fmt(sup[k]!)} dB at ${f[k]} Hz`;
+        const worst = sup.indexOf(Math.min(...sup));
+        const best = sup.indexOf(Math.max(...sup));
+        multi.tones.set(`${fmt(t[0]!.levelDbfs)} dBFS × ${f.length}`);
+        multi.worst.set(at(worst));
+        multi.best.set(at(best));
+        multiBox.dataset['reading'] = JSON.stringify({ tonesHz: f, suppressionDb: sup });
       } else {
-        figs.wanted.set('one tone only');
+        figs.wanted.set('tone sources only');
         figs.sideband.set('—');
         figs.carrier.set('—');
       }

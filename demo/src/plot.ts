@@ -58,6 +58,9 @@ export function linePlot(
           stroke: '#5d6b77',
           grid: { stroke: '#e3e8ec' },
           ...(opts.integerX ? { incrs: [1, 2, 5, 10, 20, 50, 100] } : {}),
+          ...(opts.logX
+            ? { splits: (_u: uPlot, _i: number, min: number, max: number) => logTicks(min, max) }
+            : {}),
         },
         { label: opts.yLabel, stroke: '#5d6b77', grid: { stroke: '#e3e8ec' } },
       ],
@@ -111,4 +114,17 @@ export function linePlot(
       u.setData([Array.from(x), ...ys.map((y) => Array.from(y))] as unknown as uPlot.AlignedData);
     },
   };
+}
+
+/** Ticks at 1, 2, 3 and 5 times powers of ten within [min, max] (a log axis shorter than a decade). */
+function logTicks(min: number, max: number): number[] {
+  const out: number[] = [];
+  if (!(min > 0 && max > min)) return out;
+  for (let e = Math.floor(Math.log10(min)); e <= Math.ceil(Math.log10(max)); e++) {
+    for (const m of [1, 2, 3, 5]) {
+      const v = m * 10 ** e;
+      if (v >= min && v <= max) out.push(v);
+    }
+  }
+  return out;
 }

@@ -49,16 +49,8 @@ function render(req: Partial<RenderRequest>): Promise<RenderResult> {
   return browser.page.evaluate((r) => window.harness.render(r), full);
 }
 
-/**
- * Frames of 4096 samples, averaged (Welch) over the capture. Noted while writing these tests: with
- * the measure module's default frame (the capture length, capped at 16384), power-of-two frames of
- * 8192 and 16384 read the unwanted tone one or two bins off (e.g. −1502.6 Hz for a 1500 Hz tone),
- * reporting 2.6 dB too much suppression for a pure 3° error; 4096-sample frames read it exactly.
- */
-const READ = { frameLength: 4096 } as const;
-
 function suppression(r: RenderResult, from: number, to: number, toneHz: number) {
-  return measureSideband(r.i.subarray(from, to), r.q.subarray(from, to), FS, { toneHz, ...READ });
+  return measureSideband(r.i.subarray(from, to), r.q.subarray(from, to), FS, { toneHz });
 }
 
 describe('quadrature worklet in Chromium', () => {
@@ -101,7 +93,6 @@ describe('quadrature worklet in Chromium', () => {
     const m = measureSideband(r.i.subarray(4800), r.q.subarray(4800), FS, {
       toneHz,
       sideband: 'lower',
-      ...READ,
     });
     expect(Math.abs(m.sidebandSuppressionDb - predictSuppressionDb(net60, toneHz, {}, 'lower'))).toBeLessThan(
       0.5,

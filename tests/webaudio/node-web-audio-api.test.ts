@@ -54,7 +54,7 @@ describe('quadrature processor in node-web-audio-api', () => {
       { levelDb: -6 },
     );
     // Skip the first 0.1 s (network fill-in), measure the rest.
-    const r = measureSideband(i.subarray(4800), q.subarray(4800), FS, { toneHz, frameLength: 4096 });
+    const r = measureSideband(i.subarray(4800), q.subarray(4800), FS, { toneHz });
     const predicted = predictSuppressionDb(allpass60(FS), toneHz);
     expect(predicted).toBeGreaterThan(59);
     expect(Math.abs(r.sidebandSuppressionDb - predicted)).toBeLessThan(0.5);
@@ -68,7 +68,7 @@ describe('quadrature processor in node-web-audio-api', () => {
       levelDb: -3,
       trims: { phaseDeg: 1 },
     });
-    const r = measureSideband(i.subarray(4800), q.subarray(4800), FS, { toneHz: 1800, frameLength: 4096 });
+    const r = measureSideband(i.subarray(4800), q.subarray(4800), FS, { toneHz: 1800 });
     // REFERENCES.md §1 [C]: 1° phase error, g = 1 → 41.183 dB (Schmidt, QEX Aug 1994 §2). The 60 dB
     // network's own phase error (up to 0.115°, i.e. 1° ± 0.115°) allows 40.2…42.3 dB.
     expect(imageRejectionDb(1, (1 * Math.PI) / 180)).toBeCloseTo(41.183, 2);

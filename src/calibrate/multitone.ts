@@ -33,8 +33,12 @@ import { weightedLeastSquares } from './small-linear.js';
 
 /** Options of {@link calibrateMultitone}. */
 export interface MultitoneOptions {
-  /** Reads the unwanted sideband of every tone (same order as `tonesHz`) with these trims, dBc. */
-  measure: (trims: Trims) => readonly number[] | Promise<readonly number[]>;
+  /**
+   * Reads the unwanted sideband of every tone (same order as `tonesHz`) with these trims, dBc. The
+   * search calls it with the trims alone; the final verification passes the designed correction as
+   * the second argument, which `measure` must apply (in the generator) for that reading.
+   */
+  measure: (trims: Trims, correction?: Correction) => readonly number[] | Promise<readonly number[]>;
   /** Tone frequencies, Hz (at least 2, distinct, positive). */
   tonesHz: readonly number[];
   /** Sample rate the correction filter will run at, Hz. */
@@ -47,8 +51,14 @@ export interface MultitoneOptions {
   start?: Partial<Trims>;
   /** Standard deviation of one reading, dB. Default 0.5. */
   noiseDb?: number;
-  /** Hard budget of `measure` calls. Default 24. */
+  /** Hard budget of `measure` calls for the search. Default 24. */
   maxReadings?: number;
+  /**
+   * Confirming readings with the correction applied, taken after the search and NOT counted in
+   * `maxReadings` (each is one `measure(trims, correction)` call reading every tone). Default 1;
+   * 0 skips the verification.
+   */
+  verifyReadings?: number;
   signal?: AbortSignal;
   onReading?: (step: { index: number; trims: Trims; levelsDb: number[] }) => void;
 }
@@ -77,6 +87,26 @@ export interface ImbalanceModel {
   skewSeconds: number;
 }
 
+/** Readings at the calibration tones with the designed correction applied. */
+export interface MultitoneVerification {
+  /** `measure` calls made for the verification (failed ones included), outside `maxReadings`. */
+  readings: number;
+  /** Unwanted sideband of each tone, power mean of the good readings, dBc (NaN when all failed). */
+  levelsDb: number[];
+  /** Measured suppression of each tone, dB (positive; NaN when all readings failed). */
+  measuredDb: number[];
+  /** The worst measured suppression over the tones, dB. */
+  measuredWorstDb: number;
+  /** The model's worst predicted suppression at the same tones, dB (min of `predictedDb`). */
+  predictedWorstAtTonesDb: number;
+  /**
+   * Set when a tone measured more than 6 dB short of what the model allows (or of the lowest level
+   * the search read at that tone): the correction may not have been applied by `measure`, or the
+   * device changed.
+   */
+  warning?: string;
+}
+
 /** Result of {@link calibrateMultitone}. */
 export interface MultitoneResult {
   tones: ToneOptimum[];
@@ -91,9 +121,12 @@ export interface MultitoneResult {
   predictedDb: number[];
   /** Worst predicted suppression over the band on a fine grid (model and design error), dB. */
   predictedWorstDb: number;
+  /** `measure` calls of the search (at most `maxReadings`; the verification's are counted apart). */
   readings: number;
   history: { index: number; trims: Trims; levelsDb: number[] }[];
   stopReason: StopReason;
+  /** The final check with the correction applied (absent when skipped or the run was aborted). */
+  verification?: MultitoneVerification;
 }
 
 /**
@@ -255,8 +288,12 @@ export function designCorrection(
 
 /**
  * Calibrates a frequency-dependent sideband correction from one probe sequence over several tones.
- * @param options measure (levels per tone, dBc), tones, sample rate, band, taps, budget, noise.
- * @returns per-tone nulls, the fitted model, the correction and its predicted suppression.
+ * @param options measure (levels per tone, dBc; the correction as second argument for the
+ *   verification), tones, sample rate, band, taps, budget (`maxReadings` for the search), noise,
+ *   `verifyReadings` (default 1, outside the budget).
+ * @returns per-tone nulls, the fitted model, the correction, its predicted suppression and the
+ *   verification: measured worst-case suppression at the tones with the correction applied,
+ *   beside the model's figure.
  * @throws {OrthotoneError} INVALID_ARGUMENT for bad options (a failed reading is retried once per
  *   setting; readings that keep failing end the run with `measurement-failed`).
  */
@@ -279,6 +316,8 @@ export async function calibrateMultitone(options: MultitoneOptions): Promise<Mul
   const noiseDb = o.noiseDb === undefined ? 0.5 : requirePositive('noiseDb', o.noiseDb, 'dB');
   const maxReadings =
     o.maxReadings === undefined ? 24 : requireInteger('maxReadings', o.maxReadings, 4, 10_000);
+  const verifyReadings =
+    o.verifyReadings === undefined ? 1 : requireInteger('verifyReadings', o.verifyReadings, 0, 100);
   const taps = o.taps ?? 31;
   const band: [number, number] = o.band ?? [Math.min(...o.tonesHz), Math.max(...o.tonesHz)];
   for (const [i, b] of band.entries()) requireFinite(`band[${i}]`, b);
@@ -431,16 +470,85 @@ export async function calibrateMultitone(options: MultitoneOptions): Promise<Mul
     predictedWorstDb = Math.min(predictedWorstDb, residualDb(f, evaluateImbalanceModel(model, f)));
   }
   const single = seeker.best().point;
+  const trims: Trims = { ...start, gainDb: 0, phaseDeg: 0 };
+  const verification =
+    verifyReadings > 0 && stopReason !== 'aborted' && !o.signal?.aborted
+      ? await verify(
+          o,
+          trims,
+          correction,
+          verifyReadings,
+          predictedDb,
+          pts.map((p) => Math.min(...p.map((q) => q.db))),
+        )
+      : undefined;
   return {
     tones,
     model,
     correction,
-    trims: { ...start, gainDb: 0, phaseDeg: 0 },
+    trims,
     singleTrims: sidebandTrims(single, start),
     predictedDb,
     predictedWorstDb,
     readings: history.length,
     history,
     stopReason,
+    ...(verification ? { verification } : {}),
+  };
+}
+
+/**
+ * Reads every tone `count` times with the correction applied and compares with the model: levels
+ * are averaged in power per tone (failed readings skipped), and a tone more than 6 dB short of
+ * what the model allows, or of the lowest level read at that tone during the search (readings
+ * cannot show more than the analyzer's floor), raises a warning.
+ */
+async function verify(
+  o: MultitoneOptions,
+  trims: Trims,
+  correction: Correction,
+  count: number,
+  predictedDb: readonly number[],
+  lowestReadDb: readonly number[],
+): Promise<MultitoneVerification> {
+  const K = o.tonesHz.length;
+  const sums = new Array<number>(K).fill(0);
+  const ns = new Array<number>(K).fill(0);
+  let readings = 0;
+  for (let i = 0; i < count; i++) {
+    if (o.signal?.aborted) break;
+    readings++;
+    try {
+      const r = await o.measure(trims, correction);
+      if (Array.isArray(r) && r.length === K) {
+        r.forEach((db, k) => {
+          if (!Number.isFinite(db)) return;
+          sums[k] = sums[k]! + 10 ** (db / 10);
+          ns[k] = ns[k]! + 1;
+        });
+      }
+    } catch {
+      // A failed verification reading leaves that reading out; the others still count.
+    }
+  }
+  const levelsDb = sums.map((p, k) => (ns[k]! > 0 ? 10 * Math.log10(p / ns[k]!) : Number.NaN));
+  const measuredDb = levelsDb.map((x) => -x);
+  const finite = measuredDb.filter(Number.isFinite);
+  const measuredWorstDb = finite.length > 0 ? Math.min(...finite) : Number.NaN;
+  const predictedWorstAtTonesDb = Math.min(...predictedDb);
+  const short = measuredDb
+    .map((m, k) => ({ k, m, allowed: Math.min(predictedDb[k]!, -lowestReadDb[k]!) }))
+    .filter((x) => Number.isFinite(x.m) && x.m < x.allowed - 6);
+  const warning =
+    short.length > 0
+      ? `${short.map((x) => `${o.tonesHz[x.k]} Hz measured ${x.m.toFixed(1)} dB`).join(', ')} with the correction, more than 6 dB short of the model's ${short.map((x) => x.allowed.toFixed(1)).join(', ')} dB: check that measure applies the correction it is given (its second argument), and that the device has not changed`
+      : undefined;
+  return {
+    readings,
+    levelsDb,
+    measuredDb,
+    measuredWorstDb,
+    predictedWorstAtTonesDb,
+    ...(warning ? { warning } : {}),
   };
 }

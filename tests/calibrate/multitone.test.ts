@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { calibrateMultitone, equivalentTrims } from '../../src/calibrate/multitone.js';
 import { calibrateSideband } from '../../src/calibrate/sideband.js';
+import type { Correction } from '../../src/core/trims.js';
 import { createAnalyzer } from '../../src/simulate/analyzer.js';
 import { createVirtualExciter } from '../../src/simulate/exciter.js';
 import { drawDevice, TOLERANCE_PRESETS } from '../../src/simulate/model.js';
@@ -44,6 +45,67 @@ describe('multi-tone calibration with frequency-dependent imbalance (skew, misma
     }
     expect(Math.min(...multi)).toBeGreaterThanOrEqual(55);
     expect(Math.max(...single)).toBeLessThan(55);
+  });
+  it('verifies the correction with readings at the calibration tones, separate from the budget', async () => {
+    // Same invented bench; measure applies the correction it is given (here through the exciter's
+    // per-tone equivalent trims), so the final readings show what the correction really does.
+    const tol = {
+      ...TOLERANCE_PRESETS['homebrew-bench'],
+      skewSeconds: 2e-6,
+      couplingHighPassHz: 20,
+      antiImagingLowPassHz: 20000,
+      cornerPct: 10,
+    };
+    for (let seed = 1; seed <= 4; seed++) {
+      const ex = createVirtualExciter(drawDevice(tol, 31000 + seed), { sampleRate: FS, seed });
+      const an = createAnalyzer(ex, { seed: 41000 + seed, floorDbc: -70, noiseDb: 0.5 });
+      const calls: (Correction | undefined)[] = [];
+      const mt = await calibrateMultitone({
+        measure: (t, c) => {
+          calls.push(c);
+          return tones.map((f) => an.readSideband(f, equivalentTrims(c, t, f, FS), 0.5));
+        },
+        tonesHz: tones,
+        sampleRate: FS,
+        band: [300, 3000],
+        maxReadings: 24,
+        verifyReadings: 2,
+      });
+      const v = mt.verification!;
+      expect(mt.readings).toBeLessThanOrEqual(24);
+      expect(v.readings).toBe(2);
+      expect(calls).toHaveLength(mt.readings + 2);
+      // The search readings ran without a correction; the last two carried the designed one.
+      expect(calls.slice(0, mt.readings).every((c) => c === undefined)).toBe(true);
+      expect(calls.slice(-2)).toEqual([mt.correction, mt.correction]);
+      expect(v.measuredDb).toHaveLength(tones.length);
+      expect(v.measuredWorstDb).toBe(Math.min(...v.measuredDb));
+      expect(v.predictedWorstAtTonesDb).toBe(Math.min(...mt.predictedDb));
+      // What was measured agrees with the truth at the tones (the analyzer reads no deeper than
+      // its −70 dBc floor, with 0.5 dB noise averaged over two readings).
+      const truthWorst = Math.min(
+        ...tones.map(
+          (f) => -ex.response(f, equivalentTrims(mt.correction, mt.trims, f, FS), 0.5).unwantedDbc,
+        ),
+      );
+      expect(v.measuredWorstDb).toBeGreaterThan(Math.min(truthWorst, 70) - 3);
+      expect(v.measuredWorstDb).toBeGreaterThan(55);
+      expect(v.warning).toBeUndefined();
+    }
+  });
+  it('warns when the verification falls far short of the model (measure ignored the correction)', async () => {
+    const tol = { ...TOLERANCE_PRESETS['homebrew-bench'], skewSeconds: 2e-6 };
+    const ex = createVirtualExciter(drawDevice(tol, 31010), { sampleRate: FS, seed: 3 });
+    const an = createAnalyzer(ex, { seed: 41010, floorDbc: -70, noiseDb: 0.5 });
+    const mt = await calibrateMultitone({
+      measure: (t) => tones.map((f) => an.readSideband(f, t, 0.5)),
+      tonesHz: tones,
+      sampleRate: FS,
+      maxReadings: 24,
+    });
+    expect(mt.verification!.readings).toBe(1);
+    expect(mt.verification!.measuredWorstDb).toBeLessThan(mt.verification!.predictedWorstAtTonesDb - 10);
+    expect(mt.verification!.warning).toMatch(/correction/);
   });
   it('validates its options', async () => {
     await expect(calibrateMultitone({ measure: () => [0], tonesHz: [1000], sampleRate: FS })).rejects.toThrow(

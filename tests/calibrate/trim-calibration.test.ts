@@ -338,6 +338,33 @@ describe("quantised hardware trims: steps and bounds in the trims' own units", (
   // IRR = (1 + 2g cosφ + g²)/(1 − 2g cosφ + g²) (K. Schmidt, QEX Aug 1994 §2; REFERENCES.md §1).
   const gridBoundDb = (stepDb: number, stepDeg: number) =>
     imageRejectionDb(10 ** (stepDb / 40), degToRad(stepDeg / 2));
+  /** A measure function that records every setting it is asked for. */
+  const recording = (read: (t: Trims) => number) => {
+    const seen: Trims[] = [];
+    return {
+      seen,
+      measure: (t: Trims) => {
+        seen.push(t);
+        return read(t);
+      },
+    };
+  };
+  /** The deepest suppression among the 5×5 grid points around an exact null (x0, y0). */
+  const bestOnGrid = (
+    depth: (x: number, y: number) => number,
+    x0: number,
+    y0: number,
+    sx: number,
+    sy: number,
+  ) => {
+    let best = 0;
+    for (let a = -2; a <= 2; a++) {
+      for (let b = -2; b <= 2; b++) {
+        best = Math.max(best, depth((Math.round(x0 / sx) + a) * sx, (Math.round(y0 / sy) + b) * sy));
+      }
+    }
+    return best;
+  };
 
   it('sideband at 0.05 dB and 0.1° steps: every setting on the grid, and as deep as the grid allows', async () => {
     const stepDb = 0.05;
@@ -350,12 +377,9 @@ describe("quantised hardware trims: steps and bounds in the trims' own units", (
     for (let i = 0; i < 40; i++) {
       const dev = drawAnalyticDevice(createRng(8100 + i));
       const an = analyzer(dev, { seed: 8200 + i });
-      const seen: Trims[] = [];
+      const { seen, measure } = recording((t) => an.sideband(t));
       const r = await calibrateSideband({
-        measure: (t) => {
-          seen.push(t);
-          return an.sideband(t);
-        },
+        measure,
         maxReadings: 16,
         steps: { gainDb: stepDb, phaseDeg: stepDeg },
       });
@@ -364,16 +388,13 @@ describe("quantised hardware trims: steps and bounds in the trims' own units", (
         expect(onGrid(t.phaseDeg, stepDeg)).toBe(true);
       }
       // The best grid point for this device, by the same formula: the grid around its exact null.
-      const g0 = -20 * Math.log10(dev.gain);
-      const p0 = (-dev.phaseRad * 180) / Math.PI;
-      let bestGrid = 0;
-      for (let a = -2; a <= 2; a++) {
-        for (let b = -2; b <= 2; b++) {
-          const g = (Math.round(g0 / stepDb) + a) * stepDb;
-          const p = (Math.round(p0 / stepDeg) + b) * stepDeg;
-          bestGrid = Math.max(bestGrid, -trueSidebandDbc(dev, { gainDb: g, phaseDeg: p }));
-        }
-      }
+      const bestGrid = bestOnGrid(
+        (gainDb, phaseDeg) => -trueSidebandDbc(dev, { gainDb, phaseDeg }),
+        -20 * Math.log10(dev.gain),
+        (-dev.phaseRad * 180) / Math.PI,
+        stepDb,
+        stepDeg,
+      );
       expect(bestGrid).toBeGreaterThanOrEqual(bound - 1e-9);
       const reached = -trueSidebandDbc(dev, r.trims);
       // Readings stop at the −70 dBc floor: grid points deeper than about 65 dB look alike.
@@ -387,15 +408,8 @@ describe("quantised hardware trims: steps and bounds in the trims' own units", (
     for (let i = 0; i < 30; i++) {
       const dev = drawAnalyticDevice(createRng(8300 + i));
       const an = analyzer(dev, { seed: 8400 + i });
-      const seen: Trims[] = [];
-      const r = await calibrateCarrier({
-        measure: (t) => {
-          seen.push(t);
-          return an.carrier(t);
-        },
-        maxReadings: 16,
-        steps: { dcI: step, dcQ: step },
-      });
+      const { seen, measure } = recording((t) => an.carrier(t));
+      const r = await calibrateCarrier({ measure, maxReadings: 16, steps: { dcI: step, dcQ: step } });
       for (const t of [...seen, r.trims]) {
         expect(onGrid(t.dcI, step)).toBe(true);
         expect(onGrid(t.dcQ, step)).toBe(true);
@@ -404,14 +418,13 @@ describe("quantised hardware trims: steps and bounds in the trims' own units", (
       // (the DC gain of each channel scales the step it sees).
       const half = Math.hypot((dev.dcGainI * step) / 2, (dev.dcGainQ * step) / 2);
       const bound = -20 * Math.log10(half / dev.toneAmplitude);
-      const i0 = Math.round(-dev.dcI / dev.dcGainI / step);
-      const q0 = Math.round(-dev.dcQ / dev.dcGainQ / step);
-      let bestGrid = 0;
-      for (let a = -2; a <= 2; a++) {
-        for (let b = -2; b <= 2; b++) {
-          bestGrid = Math.max(bestGrid, -trueCarrierDbc(dev, { dcI: (i0 + a) * step, dcQ: (q0 + b) * step }));
-        }
-      }
+      const bestGrid = bestOnGrid(
+        (dcI, dcQ) => -trueCarrierDbc(dev, { dcI, dcQ }),
+        -dev.dcI / dev.dcGainI,
+        -dev.dcQ / dev.dcGainQ,
+        step,
+        step,
+      );
       expect(bestGrid).toBeGreaterThanOrEqual(bound - 1e-9);
       const reached = -trueCarrierDbc(dev, r.trims);
       expect(reached).toBeGreaterThanOrEqual(Math.min(bestGrid, 65) - 1);
@@ -421,12 +434,9 @@ describe("quantised hardware trims: steps and bounds in the trims' own units", (
   it('keeps every setting inside the given bounds and stops at the bound when the null lies beyond', async () => {
     const dev = { ...drawAnalyticDevice(createRng(8500)), gain: 10 ** (-0.8 / 20), phaseRad: 0.004 };
     const an = analyzer(dev, { seed: 8501 });
-    const seen: Trims[] = [];
+    const { seen, measure } = recording((t) => an.sideband(t));
     const r = await calibrateSideband({
-      measure: (t) => {
-        seen.push(t);
-        return an.sideband(t);
-      },
+      measure,
       steps: { gainDb: 0.05, phaseDeg: 0.1 },
       bounds: { gainDb: [-0.5, 0.5], phaseDeg: [-2, 2] },
     });

@@ -26,6 +26,8 @@ options:
   --sections N           all-pass sections, both branches together; with --method allpass
   --fir-method M         remez (equiripple, default) | kaiser (windowed)
   --form F               all-pass form: first-order | second-order (z^-2, band symmetric about fs/4)
+  --coefficients F       float64 (default) | float32 | q31 | q15: the format your firmware runs;
+                         the target is then met after rounding, and the document holds the rounded values
   --format F             table (default) | json | c | csv
   --name ID              identifier prefix in the C header (default ot)
   --out FILE             write to FILE instead of standard output
@@ -49,6 +51,14 @@ export function specFromOptions(v: Record<string, unknown>): NetworkSpec {
   if (sections !== undefined) spec.sections = sections;
   if (v['fir-method'] !== undefined) spec.firMethod = v['fir-method'] as NetworkSpec['firMethod'];
   if (v.form !== undefined) spec.allpassForm = v.form as NetworkSpec['allpassForm'];
+  if (v.coefficients !== undefined) {
+    spec.coefficientFormat = choiceOpt(
+      'coefficients',
+      v.coefficients,
+      ['float64', 'float32', 'q31', 'q15'] as const,
+      'float64',
+    );
+  }
   return spec;
 }
 
@@ -62,6 +72,7 @@ export const DESIGN_OPTIONS = {
   sections: { type: 'string' },
   'fir-method': { type: 'string' },
   form: { type: 'string' },
+  coefficients: { type: 'string' },
 } as const;
 
 /** A readable summary of a network: what it is, what it allows, what it costs. */
@@ -97,6 +108,9 @@ export function describeNetwork(net: Network): string {
       `float32 ${q.float32.worstSuppressionDb.toFixed(2)} dB, Q31 ${q.q31.worstSuppressionDb.toFixed(2)} dB, Q15 ${q.q15.worstSuppressionDb.toFixed(2)} dB`,
     ],
   ];
+  const format = net.design.coefficientFormat;
+  if (typeof format === 'string')
+    pairs.push(['coefficients', `rounded to ${format}; the figures above are the rounded network's`]);
   const reason = net.design.reason;
   if (typeof reason === 'string') pairs.push(['why this network', reason]);
   let out = formatPairs(pairs);

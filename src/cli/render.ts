@@ -51,7 +51,7 @@ output:
   --json                 print the report as JSON
 design options (without a network file):
   --rate HZ --band LO:HI --method fir|allpass|auto --target DB --taps N --sections N
-  --fir-method remez|kaiser --form first-order|second-order
+  --fir-method remez|kaiser --form first-order|second-order --coefficients float64|float32|q31|q15
   -h, --help             this help
 `;
 

@@ -19,6 +19,7 @@ import { networkCost, predictFigures } from './analysis.js';
 import { designHilbertFir, type HilbertFirDesign } from './hilbert-fir.js';
 import type { AllpassNetwork, FirNetwork, Network } from './network.js';
 import { validateNetwork } from './network.js';
+import { COEFFICIENT_FORMATS, type CoefficientFormat, quantizeNetwork } from './quantize.js';
 
 /** Spec for {@link designNetwork}. */
 export interface NetworkSpec {
@@ -44,6 +45,13 @@ export interface NetworkSpec {
   maxSections?: number;
   /** Largest FIR length the search may use (passed to the FIR designer). */
   maxTaps?: number;
+  /**
+   * The number format the coefficients will run in. Default 'float64' (no rounding). With
+   * 'float32', 'q31' or 'q15' the document holds the rounded coefficients, `predicted` is the
+   * rounded network's, and the size search goes on until the ROUNDED network meets targetDb
+   * (firmware running Q15 coefficients typically needs one more section or a few more taps).
+   */
+  coefficientFormat?: 'float64' | CoefficientFormat;
 }
 
 /** One design considered by method 'auto'. */
@@ -74,6 +82,7 @@ interface Checked {
   maxLatencySamples: number | undefined;
   maxSections: number;
   maxTaps: number | undefined;
+  format: CoefficientFormat | undefined;
 }
 
 function checkSpec(spec: NetworkSpec): Checked {
@@ -103,7 +112,13 @@ function checkSpec(spec: NetworkSpec): Checked {
     maxLatencySamples: opt(spec.maxLatencySamples, (v) => requirePositive('maxLatencySamples', v, 'samples')),
     maxSections,
     maxTaps: opt(spec.maxTaps, (v) => requireInteger('maxTaps', v, 3, 65535)),
+    format: undefined,
   };
+  const format = requireOneOf('coefficientFormat', spec.coefficientFormat ?? 'float64', [
+    'float64',
+    ...COEFFICIENT_FORMATS,
+  ]);
+  if (format !== 'float64') c.format = format;
   if (c.taps !== undefined && c.taps % 2 === 0) {
     throw new OrthotoneError(
       'INVALID_ARGUMENT',
@@ -123,9 +138,14 @@ function echo(spec: NetworkSpec): Record<string, unknown> {
   return out;
 }
 
+/** The document in the spec's coefficient format (rounded, re-evaluated), or as it is. */
+function rounded<T extends Network>(c: Checked, net: T): T {
+  return c.format === undefined ? net : (quantizeNetwork(net, c.format) as T);
+}
+
 function allpassDocument(c: Checked, d: AllpassPairDesign, design: Record<string, unknown>): AllpassNetwork {
   const body = { kind: 'allpass' as const, sampleRate: c.fs, band: c.band, branches: d.branches };
-  return {
+  return rounded(c, {
     format: 'orthotone-network',
     version: 1,
     ...body,
@@ -142,7 +162,7 @@ function allpassDocument(c: Checked, d: AllpassPairDesign, design: Record<string
         prototypePoles: d.prototypeOrder,
       },
     },
-  };
+  });
 }
 
 function firDocument(c: Checked, d: HilbertFirDesign, design: Record<string, unknown>): FirNetwork {
@@ -155,14 +175,14 @@ function firDocument(c: Checked, d: HilbertFirDesign, design: Record<string, unk
   };
   if (d.beta !== undefined) realised.beta = d.beta;
   if (d.iterations !== undefined) realised.iterations = d.iterations;
-  return {
+  return rounded(c, {
     format: 'orthotone-network',
     version: 1,
     ...body,
     predicted: predictFigures(body),
     cost: networkCost(body),
     design: { ...design, realised },
-  };
+  });
 }
 
 function shortfall(c: Checked, net: Network, targetDb: number | undefined, sizeName: string): void {
@@ -198,8 +218,10 @@ function designFir(c: Checked, targetDb: number | undefined, design: Record<stri
   // The document's figures are our own evaluation; should they fall a hair short of the FIR
   // designer's own, lengthen the filter (by 4 for a half-band design, keeping its end taps
   // non-zero) until they meet the target.
+  // Rounding the coefficients (coefficientFormat) may cost more length than that.
   const step = first.symmetricAboutQuarterRate ? 4 : 2;
-  for (let tries = 0; tries < 8 && net.predicted.worstSuppressionDb < target; tries++) {
+  const tries = c.format === undefined ? 8 : 64;
+  for (let t = 0; t < tries && net.predicted.worstSuppressionDb < target; t++) {
     const taps = net.taps.length + step;
     if (c.maxTaps !== undefined && taps > c.maxTaps) break;
     net = firDocument(c, designHilbertFir({ ...base, ...extra, taps }), design);
@@ -222,7 +244,23 @@ function designAllpass(
     ...(c.sections === undefined ? {} : { sections: c.sections }),
     ...(targetDb === undefined ? {} : { targetDb }),
   };
-  const net = allpassDocument(c, designAllpassPair(pairSpec), design);
+  let net = allpassDocument(c, designAllpassPair(pairSpec), design);
+  // With rounded coefficients the fewest sections may fall short: add sections until the rounded
+  // network meets the target (each design is again the closed-form optimum for its size).
+  let n = net.branches.i.sections.length + net.branches.q.sections.length;
+  while (
+    c.format !== undefined &&
+    c.sections === undefined &&
+    targetDb !== undefined &&
+    net.predicted.worstSuppressionDb < targetDb &&
+    n < c.maxSections
+  ) {
+    n += 1;
+    const { targetDb: _, ...sized } = pairSpec;
+    const next = designAllpassPair({ ...sized, sections: n });
+    n = next.sections;
+    net = allpassDocument(c, next, design);
+  }
   shortfall(c, net, targetDb, `sections ${net.branches.i.sections.length + net.branches.q.sections.length}`);
   return net;
 }
@@ -324,7 +362,8 @@ function designAuto(c: Checked, design: Record<string, unknown>): Network {
  * independent evaluation of the final coefficients; `design` echoes the spec plus what was
  * realised (`design.realised`).
  * @param spec sampleRate (Hz), band [lo, hi] (Hz), method, targetDb (dB), taps, sections,
- *   firMethod, allpassForm, maxLatencySamples (samples), maxSections, maxTaps.
+ *   firMethod, allpassForm, maxLatencySamples (samples), maxSections, maxTaps, coefficientFormat
+ *   ('float64' default; 'float32', 'q31', 'q15': the target is met after rounding).
  * @returns a validated network document.
  * @throws {OrthotoneError} INVALID_ARGUMENT / INVALID_BAND for a bad spec; UNREACHABLE_TARGET when
  *   the target (or latency limit) cannot be met within the size limits, or a given size falls

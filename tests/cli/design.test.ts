@@ -66,6 +66,26 @@ describe('orthotone design', () => {
     },
   );
 
+  it('--coefficients q15: the Q15 values in the document and header meet the target', () => {
+    const r = cli([
+      'design',
+      '--method',
+      'allpass',
+      '--target',
+      '60',
+      '--coefficients',
+      'q15',
+      '--format',
+      'json',
+    ]);
+    expect(r.status).toBe(0);
+    const doc = JSON.parse(r.stdout);
+    expect(sweepWorst(doc, 300, 3000)).toBeGreaterThanOrEqual(60);
+    const a = [...doc.branches.i.sections, ...doc.branches.q.sections].map((s: { a: number }) => s.a);
+    for (const x of a) expect(Number.isInteger(x * 32768)).toBe(true);
+    expect(cli(['design', '--coefficients', 'q7']).stderr).toMatch(/--coefficients "q7" must be/);
+  });
+
   it('writes a C header and CSV to files, and a readable table by default', () => {
     const dir = mkdtempSync(join(tmpdir(), 'orthotone-cli-'));
     expect(cli(['design', '--format', 'c', '--out', join(dir, 'n.h')]).status).toBe(0);

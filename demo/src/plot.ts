@@ -59,7 +59,12 @@ export function linePlot(
           grid: { stroke: '#e3e8ec' },
           ...(opts.integerX ? { incrs: [1, 2, 5, 10, 20, 50, 100] } : {}),
           ...(opts.logX
-            ? { splits: (_u: uPlot, _i: number, min: number, max: number) => logTicks(min, max) }
+            ? {
+                // A log axis labels only whole decades by default: label every tick given here.
+                splits: (_u: uPlot, _i: number, min: number, max: number) => logTicks(min, max),
+                filter: (_u: uPlot, splits: number[]) => splits,
+                values: (_u: uPlot, splits: number[]) => splits.map((v) => v.toLocaleString('en')),
+              }
             : {}),
         },
         { label: opts.yLabel, stroke: '#5d6b77', grid: { stroke: '#e3e8ec' } },

@@ -115,7 +115,10 @@ export interface MultitoneResult {
   correction: Correction;
   /** Trims to use with the correction: the start's skew and DC, gain and phase 0. */
   trims: Trims;
-  /** The best single gain/phase setting for all tones (the compromise without a correction). */
+  /**
+   * The best single gain/phase setting for all tones without a correction: the centroid of the
+   * per-tone nulls in natural units, which minimises the image power summed over the tones.
+   */
   singleTrims: Trims;
   /** Predicted suppression of each tone with the correction (fit and design error only), dB. */
   predictedDb: number[];
@@ -469,7 +472,12 @@ export async function calibrateMultitone(options: MultitoneOptions): Promise<Mul
     const f = band[0] * (band[1] / band[0]) ** (i / 63);
     predictedWorstDb = Math.min(predictedWorstDb, residualDb(f, evaluateImbalanceModel(model, f)));
   }
-  const single = seeker.best().point;
+  // The best single setting without a correction: with equal curvature at every tone, the total
+  // image power Σ¼[(u−uₖ)² + (v−vₖ)²] is least at the centroid of the per-tone nulls (uₖ, vₖ).
+  const single: [number, number] = [
+    fits.reduce((acc, f) => acc + f.cx, 0) / K,
+    fits.reduce((acc, f) => acc + f.cy, 0) / K,
+  ];
   const trims: Trims = { ...start, gainDb: 0, phaseDeg: 0 };
   const verification =
     verifyReadings > 0 && stopReason !== 'aborted' && !o.signal?.aborted

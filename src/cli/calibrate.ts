@@ -548,7 +548,7 @@ export async function run(argv: string[]): Promise<number> {
     ]);
   }
   out(
-    `\nresult (levels as read, dBc; "true" = the virtual exciter's noiseless response)\n${formatTable(summary)}`,
+    `\nresult (levels as read, dBc${exciter ? `; "true" = the virtual exciter's noiseless response` : ''})\n${formatTable(summary)}`,
   );
   out(
     `trims: gainDb ${current.gainDb.toFixed(5)}, phaseDeg ${current.phaseDeg.toFixed(5)}, dcI ${current.dcI.toExponential(4)}, dcQ ${current.dcQ.toExponential(4)}\n`,

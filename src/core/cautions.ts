@@ -10,7 +10,10 @@ export const TRANSMIT_CAUTIONS: readonly string[] = Object.freeze([
   'These figures are a design aid. Local regulations and licensed practice take precedence.',
 ]);
 
-/** The cautions as one block of text, each line prefixed with "! ". */
+/**
+ * The cautions as one block of text, each line prefixed with "! ".
+ * @throws never
+ */
 export function cautionsText(): string {
   return TRANSMIT_CAUTIONS.map((c) => `! ${c}`).join('\n');
 }

@@ -34,7 +34,10 @@ export class OrthotoneError extends Error {
   }
 }
 
-/** True when `e` is an {@link OrthotoneError}, optionally with the given code. */
+/**
+ * True when `e` is an {@link OrthotoneError}, optionally with the given code.
+ * @throws never
+ */
 export function isOrthotoneError(e: unknown, code?: OrthotoneErrorCode): e is OrthotoneError {
   return e instanceof OrthotoneError && (code === undefined || e.code === code);
 }

@@ -3,37 +3,59 @@
  * dBFS follows AES17: a full-scale sine (peak 1.0) reads 0 dBFS.
  */
 
-/** Amplitude ratio to dB: `20·log10(x)`. Returns -Infinity for 0. */
+/**
+ * Amplitude (voltage) ratio to dB: `20·log10(x)`. Returns -Infinity for 0 and NaN for a negative
+ * ratio. Definition of the decibel for field quantities, common practice, no source.
+ * @throws never
+ */
 export function ampToDb(x: number): number {
   return 20 * Math.log10(x);
 }
 
-/** dB to amplitude ratio: `10^(dB/20)`. */
+/**
+ * dB to amplitude (voltage) ratio: `10^(dB/20)`.
+ * @throws never
+ */
 export function dbToAmp(db: number): number {
   return 10 ** (db / 20);
 }
 
-/** Power ratio to dB: `10·log10(p)`. */
+/**
+ * Power ratio to dB: `10·log10(p)`. Returns -Infinity for 0 and NaN for a negative ratio.
+ * @throws never
+ */
 export function powToDb(p: number): number {
   return 10 * Math.log10(p);
 }
 
-/** dB to power ratio: `10^(dB/10)`. */
+/**
+ * dB to power ratio: `10^(dB/10)`.
+ * @throws never
+ */
 export function dbToPow(db: number): number {
   return 10 ** (db / 10);
 }
 
-/** Degrees to radians. */
+/**
+ * Degrees to radians.
+ * @throws never
+ */
 export function degToRad(deg: number): number {
   return (deg * Math.PI) / 180;
 }
 
-/** Radians to degrees. */
+/**
+ * Radians to degrees.
+ * @throws never
+ */
 export function radToDeg(rad: number): number {
   return (rad * 180) / Math.PI;
 }
 
-/** Wraps a phase in radians to (-π, π]. */
+/**
+ * Wraps a phase in radians to (-π, π]. A non-finite input gives NaN.
+ * @throws never
+ */
 export function wrapPi(rad: number): number {
   let r = rad % (2 * Math.PI);
   if (r <= -Math.PI) r += 2 * Math.PI;
@@ -44,7 +66,10 @@ export function wrapPi(rad: number): number {
 /**
  * Opposite-sideband suppression in dB for gain ratio `g` and phase error `phiRad` between I and Q:
  * `IRR = (1 + 2g·cosφ + g²) / (1 − 2g·cosφ + g²)`.
+ * `g` is the Q/I amplitude ratio (1 = balanced, dimensionless), `phiRad` the quadrature error in
+ * radians; the result is wanted/unwanted power in dB (positive; +Infinity for a perfect pair).
  * Reference: K. Schmidt, "Phase-Shift Network Analysis and Optimization", QEX Aug 1994, §2.
+ * @throws never
  */
 export function imageRejectionDb(g: number, phiRad: number): number {
   const c = 2 * g * Math.cos(phiRad);
@@ -54,12 +79,18 @@ export function imageRejectionDb(g: number, phiRad: number): number {
   return 10 * Math.log10(num / den);
 }
 
-/** Peak amplitude of a sine at `dbfs` (AES17: 0 dBFS = peak 1.0). */
+/**
+ * Peak amplitude (full-scale units) of a sine at `dbfs` dBFS (AES17: 0 dBFS = peak 1.0).
+ * @throws never
+ */
 export function dbfsToPeak(dbfs: number): number {
   return dbToAmp(dbfs);
 }
 
-/** dBFS (AES17) of a sine of peak amplitude `peak`. */
+/**
+ * Level in dBFS (AES17) of a sine of peak amplitude `peak` in full-scale units.
+ * @throws never
+ */
 export function peakToDbfs(peak: number): number {
   return ampToDb(peak);
 }

@@ -146,7 +146,11 @@ export function requireBand(band: unknown, sampleRate: number): [number, number]
   return [lo, hi];
 }
 
-/** Merges `partial` over frozen `defaults`, dropping keys whose value is `undefined`. */
+/**
+ * Merges `partial` over frozen `defaults`, dropping keys whose value is `undefined`. Validates
+ * nothing: callers validate the merged result.
+ * @throws never
+ */
 export function withDefaults<T extends object>(defaults: Readonly<T>, partial: Partial<T> | undefined): T {
   const out = { ...defaults } as T;
   if (partial) {

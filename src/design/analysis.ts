@@ -169,6 +169,10 @@ function gainOf(buf: Float64Array): number {
  * Finds the maximum of `fn` over a sorted grid, refining each of the largest grid maxima by
  * golden-section search between its neighbours. Returns the value and where it occurs; with
  * `stopAbove`, returns the unrefined grid maximum (`refined: false`) as soon as it exceeds that.
+ * `fn`'s argument and `at` are in the grid's own units (Hz for the designers' grids).
+ * Method: golden-section search (J. Kiefer, "Sequential minimax search for a maximum",
+ * Proc. Amer. Math. Soc. 4:502, 1953).
+ * @throws never itself; an exception from `fn` is passed on.
  * @internal shared with the all-pass designer.
  */
 export function maximizeOnGrid(
@@ -224,7 +228,10 @@ export function maximizeOnGrid(
 /**
  * A dense frequency grid over `band` (Hz), sorted, including both edges: `size` points uniform in
  * `warp(f)` merged with `size` points clustered toward the edges (cosine spacing), where the
- * extrema of equiripple designs crowd.
+ * extrema of equiripple designs crowd. `size` ≥ 2 is the caller's duty (not checked).
+ * Common practice, no source (dense grids denser near the band edges, as in Remez programs).
+ * @returns 2·`size` frequencies in Hz, ascending.
+ * @throws never itself; an exception from `warp`/`unwarp` is passed on.
  * @internal
  */
 export function bandGrid(
@@ -346,6 +353,8 @@ export function predictFigures(net: NetworkCoefficients): PredictedFigures {
  * @param w angular frequency, rad/sample.
  * Reference: the group delay of a first-order all-pass, e.g. Regalia, Mitra & Vaidyanathan,
  * "The digital all-pass filter: a versatile signal processing building block", Proc. IEEE 76(1), 1988.
+ * @returns group delay in samples.
+ * @throws never
  */
 export function allpassBranchGroupDelay(branch: AllpassBranch, w: number): number {
   let t = branch.delay;
@@ -362,6 +371,10 @@ export function allpassBranchGroupDelay(branch: AllpassBranch, w: number): numbe
  * is returned, which is its group delay everywhere else too.
  * @param taps FIR taps.
  * @param w angular frequency, rad/sample.
+ * @returns group delay in samples.
+ * Method: the same ratio scipy.signal.group_delay evaluates (derivative of the phase written as a
+ * ratio of two DFT sums).
+ * @throws never
  */
 export function firGroupDelay(taps: readonly number[], w: number): number {
   let hr = 0;

@@ -113,6 +113,7 @@ const MAX_TAPS_LIMIT = 16383;
  * `20·log10((2 + δ)/δ)`, about 0.1 dB better at 45 dB.)
  * @param ripple δ, 0 < δ < 1.
  * @returns suppression in dB.
+ * @throws never (δ outside (0, 1) gives NaN or a meaningless number: not checked).
  */
 export function hilbertSuppressionFromRipple(ripple: number): number {
   return 20 * Math.log10((2 - ripple) / ripple);
@@ -120,7 +121,9 @@ export function hilbertSuppressionFromRipple(ripple: number): number {
 
 /**
  * Ripple δ that gives a worst suppression of `suppressionDb` (inverse of
- * {@link hilbertSuppressionFromRipple}): δ = 2/(R + 1), R = 10^(dB/20).
+ * {@link hilbertSuppressionFromRipple}): δ = 2/(R + 1), R = 10^(dB/20). `suppressionDb` in dB;
+ * δ is a linear amplitude ripple (dimensionless).
+ * @throws never
  */
 export function hilbertRippleFromSuppression(suppressionDb: number): number {
   return 2 / (10 ** (suppressionDb / 20) + 1);
@@ -132,6 +135,11 @@ export function hilbertRippleFromSuppression(suppressionDb: number): number {
  * `N ≈ D∞(δ1, δ2)/Δf − f(δ1, δ2)·Δf + 1`. Coefficients as printed in [3] and in Rabiner & Gold,
  * Theory and Application of DSP (1975), eq. 3.69 (transcribed from memory; the estimate only seeds
  * the length search, which evaluates every candidate).
+ * @param delta1 pass-band ripple δ1 (linear, dimensionless).
+ * @param delta2 stop-band ripple δ2 (linear, dimensionless).
+ * @param transitionWidth Δf in cycles/sample (Hz / sample rate).
+ * @returns estimated length in taps (not rounded).
+ * @throws never
  */
 export function herrmannLength(delta1: number, delta2: number, transitionWidth: number): number {
   const l1 = Math.log10(delta1);
@@ -178,6 +186,8 @@ function responseAt(taps: ArrayLike<number>, w: number): { s: number; a: number 
  * @param sampleRate Hz.
  * @param band [lo, hi] Hz.
  * @returns worst suppression (dB), ripple max |A − 1|, and peak gain over 0 … fs/2 (dB).
+ * Method: golden-section search (J. Kiefer, Proc. Amer. Math. Soc. 4:502, 1953) on a DFT grid.
+ * @throws never (inputs are not validated: the designers pass checked taps and band).
  */
 export function evaluateHilbertFir(
   taps: ArrayLike<number>,
@@ -283,7 +293,13 @@ export function evaluateHilbertFir(
   };
 }
 
-/** Kaiser-windowed ideal Hilbert response, textbook sign: h[c ± n] = ±w[c ± n]·2/(πn), n odd. */
+/**
+ * Kaiser-windowed ideal Hilbert response, textbook sign: h[c ± n] = ±w[c ± n]·2/(πn), n odd [2], [4].
+ * @param numtaps length in taps (odd for a type III design).
+ * @param beta Kaiser β, dimensionless, ≥ 0.
+ * @throws {OrthotoneError} INVALID_ARGUMENT from {@link kaiserWindow} for a length outside
+ *   1 … 1 048 576 or a negative / non-finite β.
+ */
 export function kaiserHilbertTaps(numtaps: number, beta: number): Float64Array {
   const w = kaiserWindow(numtaps, beta);
   const c = (numtaps - 1) >> 1;

@@ -19,6 +19,8 @@ import { requireFinite, requireInteger } from '../core/validate.js';
  * the series is ten lines, converges for every real x (all terms positive, so no cancellation),
  * and for the β values a window uses (0…~40) it needs at most ~60 terms to reach full double
  * precision. Reference: Abramowitz & Stegun 9.6.12.
+ * @param x real argument (dimensionless).
+ * @throws never
  */
 export function besselI0(x: number): number {
   const q = (x * x) / 4;
@@ -90,6 +92,7 @@ export function kaiserOrder(
  * @param numtaps window length, taps.
  * @param transitionWidth Δ normalised to Nyquist = 1.
  * @returns A in dB.
+ * @throws never
  */
 export function kaiserAttenuation(numtaps: number, transitionWidth: number): number {
   return 2.285 * (numtaps - 1) * Math.PI * transitionWidth + 7.95;

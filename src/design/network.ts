@@ -104,6 +104,9 @@ function branchResponseAt(b: AllpassBranch, w: number): Complex {
  * @param net the network document.
  * @param frequencyHz frequency in Hz, 0 ≤ f ≤ fs/2.
  * @returns the complex responses `{ i, q }`.
+ * Method: direct evaluation of the transfer functions of DESIGN.md §3 on the unit circle.
+ * @throws never for a network that passed {@link validateNetwork}; the document is not re-checked
+ *   here, so a malformed object may fail with a TypeError.
  */
 export function evaluateBranches(net: Network, frequencyHz: number): BranchResponse {
   const w = (2 * Math.PI * frequencyHz) / net.sampleRate;
@@ -127,6 +130,8 @@ export function evaluateBranches(net: Network, frequencyHz: number): BranchRespo
  * wanted component `(Hi + jHq)/2·e^{jωt}` and the image `(Hi* + jHq*)/2·e^{−jωt}`, so
  * suppression = `20·log10(|Hi + jHq| / |Hi − jHq|)` dB. Ideal: `Hq = −j·Hi` (Q lags I by 90°).
  * Reference: K. Schmidt, QEX Aug 1994 §2 (the same quantity as the image-rejection ratio).
+ * @returns suppression in dB (positive when the wanted sideband is larger; +Infinity for no image).
+ * @throws never
  */
 export function suppressionFromResponse(r: BranchResponse): number {
   const wr = r.i.re - r.q.im;
@@ -138,14 +143,21 @@ export function suppressionFromResponse(r: BranchResponse): number {
   return 20 * Math.log10(Math.hypot(wr, wi) / u);
 }
 
-/** Phase of I minus phase of Q minus 90°, degrees, wrapped to (−180, 180]. */
+/**
+ * Phase of I minus phase of Q minus 90°, in degrees, wrapped to [−180, 180). 0 for an ideal pair
+ * (DESIGN.md §2: Q lags I by 90°).
+ * @throws never
+ */
 export function phaseErrorDegFromResponse(r: BranchResponse): number {
   let d = Math.atan2(r.i.im, r.i.re) - Math.atan2(r.q.im, r.q.re) - Math.PI / 2;
   d = ((((d + Math.PI) % (2 * Math.PI)) + 2 * Math.PI) % (2 * Math.PI)) - Math.PI;
   return (d * 180) / Math.PI;
 }
 
-/** Gain of Q relative to I, dB. */
+/**
+ * Gain of Q relative to I, in dB (0 for a balanced pair).
+ * @throws never
+ */
 export function gainErrorDbFromResponse(r: BranchResponse): number {
   return 20 * Math.log10(Math.hypot(r.q.re, r.q.im) / Math.hypot(r.i.re, r.i.im));
 }

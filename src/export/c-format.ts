@@ -19,13 +19,22 @@ export function requireCIdentifier(name: string): string {
   return name;
 }
 
-/** A C float literal of `x` rounded to single precision, 9 significant digits (round-trips binary32). */
+/**
+ * A C float literal of `x` rounded to single precision, 9 significant digits (round-trips binary32:
+ * IEEE 754-2008 §5.12.2, nine decimal digits suffice for binary32). Non-finite `x` gives text that
+ * is not a C literal (`NaNf`, `Infinityf`): callers pass finite coefficients.
+ * @throws never
+ */
 export function cFloat(x: number): string {
   const s = Math.fround(x).toPrecision(9);
   return `${s.includes('e') || s.includes('.') ? s : `${s}.0`}f`;
 }
 
-/** `static const <type> <ident>[n] = { ... };` with six values a line. */
+/**
+ * `static const <type> <ident>[n] = { ... };` with six values a line. `type` and `ident` are written
+ * as given: check `ident` with {@link requireCIdentifier} first.
+ * @throws never
+ */
 export function cArray(type: string, ident: string, values: readonly (string | number)[]): string {
   const lines: string[] = [];
   for (let k = 0; k < values.length; k += 6) lines.push(`  ${values.slice(k, k + 6).join(', ')},`);

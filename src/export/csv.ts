@@ -8,7 +8,8 @@ import type { Network } from '../design/network.js';
 /**
  * Coefficients as CSV. FIR: `index,offset,tap` (offset from the centre tap). All-pass:
  * `branch,section,order,a` rows, plus one `branch,delay,,<samples>` row per branch.
- * @param net a network document.
+ * @param net a network document (taps and `a` dimensionless, delays in samples).
+ * @throws never for a valid network document (not re-validated here).
  */
 export function networkToCsv(net: Network): string {
   const rows: string[] = [];
@@ -36,6 +37,7 @@ export function networkToCsv(net: Network): string {
  * `frequency_hz,phase_error_deg,gain_error_db,suppression_db,group_delay_i,group_delay_q`
  * (group delays in samples).
  * @param a an analysis from `analyzeNetwork`.
+ * @throws never
  */
 export function analysisToCsv(a: NetworkAnalysis): string {
   const rows = ['frequency_hz,phase_error_deg,gain_error_db,suppression_db,group_delay_i,group_delay_q'];

@@ -10,6 +10,7 @@ import { type Network, validateNetwork } from '../design/network.js';
  * Serialises a network document as pretty-printed JSON. Coefficients round-trip exactly.
  * @param net a network document.
  * @returns JSON text ending in a newline.
+ * @throws never for a network document (plain JSON data); it is serialised as given, not validated.
  */
 export function networkToJson(net: Network): string {
   return `${JSON.stringify(net, null, 2)}\n`;

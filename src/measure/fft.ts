@@ -28,12 +28,19 @@ interface FftJs {
   transform(out: Float64Array, data: Float64Array): void;
 }
 
-/** True when `n` is a power of two. */
+/**
+ * True when `n` is a power of two (an integer 1, 2, 4, …).
+ * @throws never
+ */
 export function isPowerOfTwo(n: number): boolean {
   return Number.isInteger(n) && n > 0 && (n & (n - 1)) === 0;
 }
 
-/** Smallest power of two ≥ `n` (n ≥ 1). */
+/**
+ * Smallest power of two ≥ `n` (n ≥ 1; 1 for n ≤ 1). `n` must be finite (not checked: +Infinity
+ * never returns).
+ * @throws never
+ */
 export function nextPowerOfTwo(n: number): number {
   let p = 1;
   while (p < n) p *= 2;

@@ -13,7 +13,10 @@ export interface IqCapture {
 /** A real capture (samples, full-scale units) or a complex {@link IqCapture}. */
 export type Capture = ArrayLike<number> | IqCapture;
 
-/** True when `c` is an {@link IqCapture}. */
+/**
+ * True when `c` is an {@link IqCapture} (an object with `i` and `q` and no `length`).
+ * @throws never
+ */
 export function isIqCapture(c: Capture): c is IqCapture {
   return typeof c === 'object' && c !== null && 'i' in c && 'q' in c && !('length' in c);
 }

@@ -97,13 +97,21 @@ export interface Spectrum extends FramePlan {
   power: Float64Array;
 }
 
-/** Frequency of FFT bin `k` in a spectrum, Hz (negative for the upper half of a complex one). */
+/**
+ * Frequency of FFT bin `k` in a spectrum, Hz (negative for the upper half of a complex one):
+ * `k·binHz`, binHz = sampleRate / fftSize.
+ * @throws never
+ */
 export function binFrequency(s: Pick<FramePlan, 'fftSize' | 'binHz' | 'complex'>, k: number): number {
   if (s.complex && k >= s.fftSize / 2) return (k - s.fftSize) * s.binHz;
   return k * s.binHz;
 }
 
-/** Nearest FFT bin to `hz` (wrapped into the FFT order for complex spectra). */
+/**
+ * Nearest FFT bin index to `hz` (Hz), wrapped into the FFT order for complex spectra. For a real
+ * spectrum the index is not clamped to 0 … fftSize/2.
+ * @throws never
+ */
 export function frequencyBin(s: Pick<FramePlan, 'fftSize' | 'binHz' | 'complex'>, hz: number): number {
   const k = Math.round(hz / s.binHz);
   return s.complex ? ((k % s.fftSize) + s.fftSize) % s.fftSize : k;
@@ -123,7 +131,11 @@ function remember<K, V>(m: Map<K, V>, k: K, make: () => V): V {
   return v;
 }
 
-/** The periodic window `name` of `length` samples, shared (do not modify). */
+/**
+ * The periodic window `name` of `length` samples, shared (do not modify); cached by name and length.
+ * @throws {OrthotoneError} INVALID_ARGUMENT from `createWindow` for an unknown window or a length
+ *   below 2.
+ */
 export function sharedWindow(name: WindowName, length: number): Float64Array {
   return remember(windowCache, `${name}:${length}`, () => createWindow(name, length));
 }
@@ -293,6 +305,9 @@ export function computeSpectrum(
  * the windowed transform of every frame evaluated directly at `hz` (Goertzel-like recurrence of a
  * unit phasor), `|X|²` averaged over frames.
  * Reference: Heinzel 2002 §10 (scaling); direct DTFT evaluation.
+ * @param hz frequency in Hz (any real value; negative for the lower half of an I/Q capture).
+ * @returns power in sine-peak² units (full scale² for a full-scale sine).
+ * @throws never (the capture is not re-checked against the plan: samples past its end read as NaN).
  */
 export function powerAt(capture: Capture, plan: FramePlan, window: Float64Array, hz: number): number {
   const { frameLength: n, hop, frames } = plan;
@@ -340,6 +355,9 @@ export function powerAt(capture: Capture, plan: FramePlan, window: Float64Array,
  * its mean (K equivalent averages, each bin a χ² with 2K degrees of freedom).
  * Reference (from memory): K. P. Choi, "On the medians of gamma distributions and an equation of
  * Ramanujan", Proc. AMS 121(1):245, 1994 — median ≈ K − 1/3 + 8/(405K); exact ln 2 for K = 1.
+ * @param k equivalent number of averages (values below 1 are taken as 1).
+ * @returns the dimensionless ratio median/mean, in [ln 2, 1) for finite `k` (NaN for NaN).
+ * @throws never
  */
 export function gammaMedianToMean(k: number): number {
   const kk = Math.max(k, 1);

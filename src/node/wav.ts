@@ -234,7 +234,9 @@ export async function readIqWavFile(
 
 /**
  * Mixes any WAV channels down to one mono signal (mean of the channels).
- * @returns the mono samples (the channel itself when there is one).
+ * @returns the mono samples, full-scale units (the channel itself, not a copy, when there is one).
+ * @throws never for data from {@link readWav} (at least one channel); an object with no channels
+ *   fails with a TypeError.
  */
 export function toMono(d: WavData): Float32Array {
   if (d.channels.length === 1) return d.channels[0]!;

@@ -131,7 +131,16 @@ function fitFir(target: (hz: number) => [number, number], fs: number): Float64Ar
   return h;
 }
 
-/** The channel FIR: anti-imaging low-pass times the channel's delay (bulk + skew for Q). */
+/**
+ * The channel FIR: the first-order anti-imaging low-pass (corner `antiImagingLowPassHz`, Hz) times the
+ * channel's delay (a bulk 24 samples, plus `skewSeconds` for Q), fitted as a 64-tap least-squares FIR
+ * over 0 … 0.45·`sampleRate` (least-squares frequency-domain fit by the normal equations, common
+ * practice, no source).
+ * @param channel 0 = I, 1 = Q.
+ * @param sampleRate Hz.
+ * @returns 64 taps (dimensionless).
+ * @throws never (the model is not re-validated; non-finite fields give NaN taps).
+ */
 export function designChannelFir(model: ExciterModel, channel: 0 | 1, sampleRate: number): Float64Array {
   const fl = model.antiImagingLowPassHz[channel];
   const delay = BULK / sampleRate + (channel === 1 ? model.skewSeconds : 0);

@@ -43,7 +43,12 @@ export interface MixerCoefficients {
   kappa: Complex;
 }
 
-/** `c_n/c_1 = sin(nπ/4) / (n·sin(π/4))`, exact zero for multiples of 4. */
+/**
+ * Relative amplitude of a four-phase commutating mixer's response at LO harmonic `n`:
+ * `c_n/c_1 = sin(nπ/4) / (n·sin(π/4))`, exact zero for multiples of 4 (dimensionless, signed).
+ * Fourier series of a 25 %-duty pulse train (see the file header; common practice, no source).
+ * @throws never
+ */
 export function mixerHarmonicRatio(n: number): number {
   if (n % 4 === 0) return 0;
   return Math.sin((n * Math.PI) / 4) / (n * Math.sin(Math.PI / 4));
@@ -87,6 +92,9 @@ export function mixerCoefficients(model: ExciterModel, n = 1): MixerCoefficients
 /**
  * Complex response of one analog channel (0 = I, 1 = Q) at frequency `hz` (signed): codec gain,
  * first-order coupling high-pass, first-order anti-imaging low-pass, and for Q the skew delay.
+ * @param hz signed frequency in Hz.
+ * @returns complex gain (dimensionless; codec gain included).
+ * @throws never (the model is not re-validated here).
  */
 export function channelResponse(model: ExciterModel, channel: 0 | 1, hz: number): Complex {
   let h: Complex = { re: model.codecGain[channel], im: 0 };
@@ -162,7 +170,10 @@ export function toneResponse(
   return { wanted, unwanted, carrier };
 }
 
-/** Levels of a tone response: wanted in dBFS, unwanted and carrier in dBc (floored at −300 dB). */
+/**
+ * Levels of a tone response: wanted in dBFS (AES17), unwanted and carrier in dBc (floored at −300 dB).
+ * @throws never
+ */
 export function responseLevels(r: ToneResponse): {
   wantedDbfs: number;
   unwantedDbc: number;

@@ -28,7 +28,9 @@ interface Job {
 
 /**
  * Makes the capture processor class over `Base`. Options: `processorOptions.channels` (1–8,
- * default 2), the number of channels recorded.
+ * default 2), the number of channels recorded; an out-of-range count falls back to 2.
+ * @throws never: neither defining the class nor its constructor, `process()` or message handler throws
+ *   (a bad capture request is answered with a `rejected` message).
  */
 export function defineCaptureProcessor<B extends ProcessorBase>(
   Base: Ctor<B>,

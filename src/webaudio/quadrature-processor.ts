@@ -71,6 +71,10 @@ const FAULT_REPORT_EVERY = 1000;
  * @param Base the base class to extend.
  * @param scope sample rate and current frame of the rendering context.
  * @returns a class to pass to `registerProcessor(QUADRATURE_PROCESSOR_NAME, …)`.
+ * @throws never itself. The returned class's constructor throws `OrthotoneError`
+ *   INVALID_DOCUMENT when `processorOptions.network` is missing or invalid, and INVALID_ARGUMENT for
+ *   a correction or source spec the generator or source factories refuse; its `process()` and
+ *   message handler never throw (faults are counted and reported).
  */
 export function defineQuadratureProcessor<B extends ProcessorBase>(
   Base: Ctor<B>,
@@ -355,6 +359,9 @@ export function defineQuadratureProcessor<B extends ProcessorBase>(
 /**
  * Linear cross-fade in place: `into[k] = w·into[k] + (1−w)·from[k]`, w rising from the fade position
  * to 1 over `total` samples; `left` samples of fade remain at entry. Returns the samples left after.
+ * `from` must be at least as long as `into` (not checked: the processor's scratch buffers are).
+ * Common practice, no source.
+ * @throws never
  */
 export function crossfade(into: Float32Array, from: Float32Array, left: number, total: number): number {
   const n = into.length;

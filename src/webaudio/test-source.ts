@@ -14,7 +14,12 @@ const HALF_DBFS = 20 * Math.log10(0.5);
 /** Most tones in a `multitone` source. */
 export const MAX_MULTITONE_TONES = 32;
 
-/** The generate/ spec for a test source at unit level (tone peak 0 dBFS, two-tone PEP 0 dBFS, noise RMS 0 dBFS). */
+/**
+ * The generate/ spec for a test source at unit level (tone peak 0 dBFS, two-tone PEP 0 dBFS so each
+ * tone is −6.02 dBFS, noise RMS 0 dBFS; dBFS per AES17). Frequencies pass through in Hz, durations
+ * in seconds; values are checked later, by `createSignalSource`.
+ * @throws {OrthotoneError} INVALID_ARGUMENT for a kind other than tone, two-tone, sweep or noise.
+ */
 export function signalSpecFor(spec: Exclude<SourceSpec, { kind: 'multitone' }>): SignalSpec {
   switch (spec?.kind) {
     case 'tone':
@@ -65,6 +70,7 @@ export function createTestSource(spec: SourceSpec, sampleRate: number): BlockSou
  * with low autocorrelation", IEEE Trans. Inf. Theory 16(1):85–89, 1970; from memory). They keep
  * the start of the signal, and tones on a harmonic grid throughout, well below the sum of the
  * amplitudes; tones off such a grid still come near it at times, which the 1/K levels allow for.
+ * @throws never
  */
 export function multitonePhaseRad(k: number, count: number): number {
   return (-Math.PI * k * k) / count;

@@ -24,7 +24,10 @@ export interface CarrierCalibrationOptions extends TrimCalibrationOptions {
 
 /**
  * Axes of the carrier calibration for a given curvature model and, optionally, hardware DC steps
- * and bounds (full-scale units: the seeker's own coordinates).
+ * and bounds (full-scale units: the seeker's own coordinates). `toneAmplitude` is the tone's peak in
+ * full-scale units (curvature 1/A², REFERENCES.md §1); without it the curvature is left to the fit.
+ * @throws never: nothing is validated here ({@link calibrateCarrier} checks `toneAmplitude`; the
+ *   seeker checks steps and bounds when it is created).
  */
 export function carrierAxes(toneAmplitude?: number, hw: HardwareTrimOptions = {}): TrimAxes {
   const known = toneAmplitude !== undefined;

@@ -44,7 +44,9 @@ export interface DiagnosisContext {
  * Diagnoses a (finished or running) seeker.
  * @param seeker the seeker after its readings.
  * @param ctx what is being nulled.
- * @returns findings, possibly none.
+ * @returns findings, possibly none (levels in dB, DC in full-scale units, as in each message).
+ * Thresholds are our own choices (common practice, no source).
+ * @throws never
  */
 export function diagnoseSeeker(seeker: NullSeeker, ctx: DiagnosisContext): Diagnosis[] {
   const out: Diagnosis[] = [];

@@ -133,8 +133,9 @@ export interface MultitoneResult {
 }
 
 /**
- * Evaluates an imbalance model: the gain and phase trim that nulls a tone at `hz`.
- * @returns `{ gainDb, phaseDeg }`.
+ * Evaluates an imbalance model: the gain and phase trim that nulls a tone at `hz` (Hz, > 0).
+ * @returns `{ gainDb, phaseDeg }` in dB and degrees (non-finite at `hz` = 0).
+ * @throws never
  */
 export function evaluateImbalanceModel(m: ImbalanceModel, hz: number): { gainDb: number; phaseDeg: number } {
   const r = hz / m.f0;
@@ -151,6 +152,9 @@ export function evaluateImbalanceModel(m: ImbalanceModel, hz: number): { gainDb:
  * @param trims the trims before it (gain and phase used).
  * @param hz tone frequency, Hz.
  * @param sampleRate Hz.
+ * @returns trims with gainDb in dB and phaseDeg in degrees; the other trims as given.
+ * Method: the correction's FIR pair evaluated at one frequency (see the file header).
+ * @throws never (the correction is not re-validated: give one that passed `validateCorrection`).
  */
 export function equivalentTrims(
   correction: Correction | undefined,

@@ -184,7 +184,10 @@ export function validateProfile(doc: unknown): CalibrationProfile {
   return d as unknown as CalibrationProfile;
 }
 
-/** Serialises a profile as pretty-printed JSON (numbers round-trip exactly). */
+/**
+ * Serialises a profile as pretty-printed JSON (numbers round-trip exactly), after validating it.
+ * @throws {OrthotoneError} INVALID_DOCUMENT when the profile is not valid (see {@link validateProfile}).
+ */
 export function profileToJson(p: CalibrationProfile): string {
   return `${JSON.stringify(validateProfile(p), null, 2)}\n`;
 }

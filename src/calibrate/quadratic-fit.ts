@@ -90,7 +90,11 @@ const K_MAX = 0.98;
 const HUBER = 1.5;
 const TUKEY = 4.685;
 
-/** Power of the surface at (x, y). */
+/**
+ * Power of the surface at (x, y): `c·q(x − cx, y − cy) + N`, a power ratio on the readings' scale
+ * (relative to the wanted tone for dBc readings); x, y in the seeker's coordinates.
+ * @throws never
+ */
 export function surfacePower(p: NullSurface, x: number, y: number): number {
   const dx = x - p.cx;
   const dy = y - p.cy;
@@ -98,12 +102,19 @@ export function surfacePower(p: NullSurface, x: number, y: number): number {
   return Math.exp(p.logC) * (es * dx * dx + 2 * p.k * dx * dy + (dy * dy) / es) + Math.exp(p.logN);
 }
 
-/** Level of the surface at (x, y), dB. */
+/**
+ * Level of the surface at (x, y), dB: `10·log10` of {@link surfacePower}.
+ * @throws never
+ */
 export function surfaceDb(p: NullSurface, x: number, y: number): number {
   return DB * Math.log(surfacePower(p, x, y));
 }
 
-/** The quadratic form of the surface without the floor, `c·q(dx, dy)`. */
+/**
+ * The quadratic form of the surface without the floor, `c·q(dx, dy)` (power ratio) at offset
+ * (dx, dy) from the null.
+ * @throws never
+ */
 export function surfaceExcess(p: NullSurface, dx: number, dy: number): number {
   const es = Math.exp(p.s);
   return Math.exp(p.logC) * (es * dx * dx + 2 * p.k * dx * dy + (dy * dy) / es);
@@ -296,7 +307,9 @@ function levenbergMarquardt(prob: Problem, start: Float64Array, loss: Loss, maxI
  * more), with Gaussian priors; the lowest final cost wins.
  * @param points readings (coordinates and dB); at least one.
  * @param options noise, priors, robustness and starting surfaces.
- * @returns the fitted surface, the covariance of its null position, residuals and weights.
+ * @returns the fitted surface, the covariance of its null position, residuals (dB) and weights.
+ * @throws never for `options.starts` with at least one surface (with none it fails with a
+ *   TypeError; the seeker always passes one). A fit that finds nothing finite returns the first start.
  */
 export function fitNullSurface(points: readonly SurfacePoint[], options: SurfaceFitOptions): SurfaceFit {
   const { mean, invVar, free } = priorArrays(options.priors);
@@ -359,6 +372,9 @@ export type LinearFitModel = 'known-curvature' | 'isotropic' | 'quadratic';
  * readings in general position.
  * @param floorGuess floor power used when the fit leaves none (or a negative one).
  * @returns the surface, or undefined when the readings do not determine a bowl.
+ * Method: linear least squares on the power form of a paraboloid (as in DESIGN.md §6; Golub & Van
+ * Loan, Matrix Computations, 4th ed., §5.3 for the normal equations, section from memory).
+ * @throws never
  */
 export function linearPowerFit(
   points: readonly SurfacePoint[],
@@ -428,6 +444,9 @@ export function linearPowerFit(
  * Candidate null positions from two readings on a bowl of known curvature and floor: the
  * intersections of the circles each reading implies (Hoppenstein, TI SLOA313, 2021). When the
  * circles do not meet (noise), the point between them on the line of centres.
+ * @param c curvature (power per squared coordinate unit); `floor` the floor power N (power ratio).
+ * @returns zero (coincident readings), one or two candidates; their `db` is 0 (not a reading).
+ * @throws never
  */
 export function circleCandidates(a: SurfacePoint, b: SurfacePoint, c: number, floor: number): SurfacePoint[] {
   const ra = Math.sqrt(Math.max(10 ** (a.db / 10) - floor, floor * 0.01) / c);

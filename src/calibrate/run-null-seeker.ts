@@ -37,6 +37,8 @@ export interface RunSeekerOptions {
  * @param seeker the ask/tell core.
  * @param measure reads the level at a setting, dB; may be async.
  * @returns the last measurement error, if any (for messages).
+ * @throws never for a failed reading or an abort (the promise resolves); an exception thrown by
+ *   `onReading` is passed on as a rejection.
  */
 export async function runNullSeeker(
   seeker: NullSeeker,

@@ -23,14 +23,22 @@ import {
 /** Curvature of the sideband bowl in (u, v): image/wanted power per squared unit. */
 export const SIDEBAND_CURVATURE = 0.25;
 
-/** Gain and phase trims to the sideband seeker's coordinates (u, v). */
+/**
+ * Gain and phase trims (dB, degrees) to the sideband seeker's coordinates (u, v) = (G·cos φ − 1,
+ * G·sin φ), dimensionless (see the file header; K. Schmidt, QEX Aug 1994 §2).
+ * @throws never
+ */
 export function sidebandPoint(t: Pick<Trims, 'gainDb' | 'phaseDeg'>): [number, number] {
   const g = 10 ** (t.gainDb / 20);
   const p = degToRad(t.phaseDeg);
   return [g * Math.cos(p) - 1, g * Math.sin(p)];
 }
 
-/** The sideband seeker's coordinates (u, v) back to trims, other trims taken from `base`. */
+/**
+ * The sideband seeker's coordinates (u, v) back to trims (gainDb in dB, phaseDeg in degrees), other
+ * trims taken from `base`. Inverse of {@link sidebandPoint}.
+ * @throws never
+ */
 export function sidebandTrims(p: readonly [number, number], base: Trims): Trims {
   const g = Math.hypot(1 + p[0], p[1]);
   return { ...base, gainDb: 20 * Math.log10(g), phaseDeg: radToDeg(Math.atan2(p[1], 1 + p[0])) };
@@ -61,7 +69,9 @@ const NEPER_PER_DB = Math.LN10 / 20;
  * exact affine coordinates (u, v) of {@link SIDEBAND_AXES}. With them, the log-polar coordinates
  * `x = ln G = gainDb·ln10/20`, `y = φ` (radians): equal to (u, v) to first order at the null (so the
  * bowl keeps its curvature ¼ there, to within the gain factor G², inside the curvature spread), and
- * a grid of dB and degree steps is a grid of the seeker's own axes.
+ * a grid of dB and degree steps is a grid of the seeker's own axes. Steps and bounds are in dB
+ * (gain) and degrees (phase).
+ * @throws never: steps and bounds are checked by the seeker when it is created.
  */
 export function sidebandAxes(hw: HardwareTrimOptions = {}): TrimAxes {
   const sg = hw.steps?.gainDb ?? 0;

@@ -10,7 +10,8 @@
  * @param a row-major n×n matrix (overwritten).
  * @param b right-hand side of length n (overwritten with the solution).
  * @param n system size.
- * @returns false when the matrix is singular to working precision (b is then undefined).
+ * @returns false when the matrix is singular to working precision (b then holds no solution).
+ * @throws never
  */
 export function solveInPlace(a: Float64Array, b: Float64Array, n: number): boolean {
   let scale = 0;
@@ -57,6 +58,7 @@ export function solveInPlace(a: Float64Array, b: Float64Array, n: number): boole
 /**
  * Inverse of a small n×n matrix (row-major), column by column.
  * @returns the inverse, or undefined when singular.
+ * @throws never
  */
 export function invert(a: Float64Array, n: number): Float64Array | undefined {
   const out = new Float64Array(n * n);
@@ -77,6 +79,9 @@ export function invert(a: Float64Array, n: number): Float64Array | undefined {
  * optional ridge term `ridge·|x|²` (0 for none).
  * @param rows design matrix rows, each of length m.
  * @returns the solution, or undefined when the normal matrix is singular.
+ * Method: normal equations solved by {@link solveInPlace} (Golub & Van Loan, Matrix Computations,
+ * 4th ed., §5.3, section from memory).
+ * @throws never
  */
 export function weightedLeastSquares(
   rows: readonly (readonly number[])[],

@@ -204,7 +204,11 @@ export function validateHardware(o: HardwareTrimOptions, start: Trims): void {
   }
 }
 
-/** `x` snapped to the grid of `step` (no change for step 0): removes the rounding of unit changes. */
+/**
+ * `x` snapped to the grid of `step` (no change for step 0 or undefined): removes the rounding of unit
+ * changes. `x` and `step` share a unit (dB, degrees, full scale).
+ * @throws never
+ */
 export function snapToStep(x: number, step: number | undefined): number {
   if (!step) return x;
   const k = Math.round(x / step);
@@ -213,7 +217,11 @@ export function snapToStep(x: number, step: number | undefined): number {
   return Number((k * step).toFixed(decimals));
 }
 
-/** Creates (or resumes) the seeker for a calibration. */
+/**
+ * Creates (or resumes) the seeker for a calibration.
+ * @throws {OrthotoneError} INVALID_ARGUMENT for a bad option (from {@link resolveTrimOptions} or the
+ *   seeker), INVALID_DOCUMENT when `resume` is not a saved seeker state.
+ */
 export function seekerFor(o: TrimCalibrationOptions, axes: TrimAxes): { seeker: NullSeeker; start: Trims } {
   const { start, noiseDb, maxReadings } = resolveTrimOptions(o);
   const opts: Partial<NullSeekerOptions> = {
@@ -234,7 +242,11 @@ export function seekerFor(o: TrimCalibrationOptions, axes: TrimAxes): { seeker: 
   return { seeker: createNullSeeker(opts), start };
 }
 
-/** Builds the result of a finished seeker. */
+/**
+ * Builds the result of a finished seeker; trims fall back to `start` when the best point maps to a
+ * non-finite trim.
+ * @throws never
+ */
 export function resultOf(
   seeker: NullSeeker,
   axes: TrimAxes,
@@ -270,7 +282,12 @@ export function resultOf(
   };
 }
 
-/** Runs a two-trim calibration end to end. */
+/**
+ * Runs a two-trim calibration end to end (the fitting method of DESIGN.md §6).
+ * @throws {OrthotoneError} INVALID_ARGUMENT / INVALID_DOCUMENT as {@link seekerFor}, before the first
+ *   reading. A failed reading or an abort never rejects: it ends the run with `stopReason`
+ *   `measurement-failed` or `aborted`. An exception thrown by `onReading` is passed on.
+ */
 export async function runTrimCalibration(
   o: TrimCalibrationOptions,
   axes: TrimAxes,

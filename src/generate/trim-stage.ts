@@ -486,9 +486,44 @@ export class TrimStage {
       if (this.cLen > 0) hC.copyWithin(0, wp - keep, wp);
       wp = keep;
     }
-    // Step 1: sideband, gain and phase, written straight into the histories (with the ramp).
     const ramped = this.rampPos < this.rampLen;
     const cur = this.cur;
+    const stats = this.stats;
+    if (!ramped && this.cLen === 0 && this.steadyFrac === 0) {
+      // The common case (steady trims, no correction, whole-sample skew) in one pass: step 1 into
+      // the histories, then the delayed reads, DC and the guard. Every loop over a chunk costs
+      // about a nanosecond per sample in V8 on its own, so this pass replaces two. The reads
+      // reach back ioff ≥ 0 and sBase ≥ 0 samples, never past the sample just written, and give
+      // exactly what the general path below gives.
+      const a = cur[0]!;
+      const b = cur[1]!;
+      const di = cur[3]!;
+      const dq = cur[4]!;
+      const ioff = this.kc + this.bulk;
+      const sBase = this.kc + this.steadyInt;
+      let peak = stats.peak;
+      for (let j = 0; j < n; j++) {
+        const p = wp + j;
+        const ii = iIn[j]!;
+        hI[p] = ii;
+        hQ[p] = a * qIn[j]! + b * ii;
+        let vi = hI[p - ioff]! + di;
+        let vq = hQ[p - sBase]! + dq;
+        const ai = Math.abs(vi);
+        const aq = Math.abs(vq);
+        if (!(ai >= OUTPUT_FLUSH && ai <= 1)) vi = guard(vi, stats);
+        if (!(aq >= OUTPUT_FLUSH && aq <= 1)) vq = guard(vq, stats);
+        if (ai > peak) peak = Math.min(ai, OUTPUT_LIMIT);
+        if (aq > peak) peak = Math.min(aq, OUTPUT_LIMIT);
+        outI[o + j] = vi;
+        outQ[o + j] = vq;
+      }
+      this.wp = wp + n;
+      stats.peak = peak;
+      stats.samplesOut += 2 * n;
+      return;
+    }
+    // Step 1: sideband, gain and phase, written straight into the histories (with the ramp).
     if (!ramped) {
       const a = cur[0]!;
       const b = cur[1]!;
@@ -560,7 +595,6 @@ export class TrimStage {
     const ioff = this.kc + this.bulk;
 
     // Step 2 (skew) and step 3 (DC), then the output guard.
-    const stats = this.stats;
     let peak = stats.peak;
     const bulk = this.bulk;
     const sFrac = this.steadyFrac;

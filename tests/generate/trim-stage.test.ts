@@ -1,0 +1,103 @@
+import { describe, expect, it } from 'vitest';
+import { createRng } from '../../src/core/rng.js';
+import type { Trims } from '../../src/core/trims.js';
+import { createNetworkRuntime, createQuadratureGenerator } from '../../src/generate/quadrature-generator.js';
+import { bitDiffs } from './dft.js';
+import { kaiserHilbertNetwork, niemitaloNetwork } from './reference-networks.js';
+
+// The trim stage has a one-pass path for the common case (steady trims, no correction, whole-sample
+// skew) beside the general path. These tests pin that path to the DESIGN.md §4 formulas, exactly,
+// and check that switching between the paths (ramps, a correction) keeps block-size invariance.
+
+const fs = 48000;
+const len = 3 * 28672; // 28672 = lcm(7, 4096): every block size has a boundary there
+const x = new Float32Array(len);
+const rng = createRng(5);
+for (let k = 0; k < len; k++)
+  x[k] = 0.4 * Math.cos((2 * Math.PI * 1300 * k) / fs) + 0.1 * (rng.uniform() - 0.5);
+
+/** Network outputs for `x` in double precision (the runtime on its own, 128-sample chunks). */
+function networkOutput(net: ReturnType<typeof niemitaloNetwork>) {
+  const rt = createNetworkRuntime(net);
+  const i = new Float64Array(len);
+  const q = new Float64Array(len);
+  const xc = new Float64Array(128);
+  const bi = new Float64Array(128);
+  const bq = new Float64Array(128);
+  for (let o = 0; o < len; o += 128) {
+    for (let j = 0; j < 128; j++) xc[j] = x[o + j]!;
+    rt.process(xc, 128, bi, bq);
+    i.set(bi, o);
+    q.set(bq, o);
+  }
+  return { i, q };
+}
+
+describe('trim stage steady path: DESIGN.md §4 exactly', () => {
+  for (const [name, net] of [
+    ['all-pass', niemitaloNetwork(false, fs)],
+    ['FIR', kaiserHilbertNetwork(127, 8, [2000, 22000], fs)],
+  ] as const) {
+    for (const opts of [{}, { maxCorrectionTaps: 0, maxSkewSamples: 0 }]) {
+      const skews = 'maxSkewSamples' in opts ? [0] : [0, 3, -2];
+      for (const skewSamples of skews) {
+        it(`${name} ${JSON.stringify(opts)} skew ${skewSamples}: I'' = I + dcI, Q'' = g(Q cos φ + I sin φ) + dcQ, delayed`, () => {
+          const trims: Trims = { gainDb: 0.7, phaseDeg: -3, skewSamples, dcI: 0.01, dcQ: -0.004 };
+          const gen = createQuadratureGenerator(net, { ...opts, trims });
+          const oi = new Float32Array(len);
+          const oq = new Float32Array(len);
+          for (let o = 0; o < len; o += 128) {
+            gen.process(x.subarray(o, o + 128), oi.subarray(o, o + 128), oq.subarray(o, o + 128));
+          }
+          const { i, q } = networkOutput(net);
+          const g = 10 ** (trims.gainDb / 20);
+          const phi = (trims.phaseDeg * Math.PI) / 180;
+          const a = g * Math.cos(phi);
+          const b = g * Math.sin(phi);
+          const lat = gen.trimLatencySamples;
+          const ei = new Float32Array(len);
+          const eq = new Float32Array(len);
+          for (let n = 0; n < len; n++) {
+            const ni = n - lat;
+            const nq = n - lat - skewSamples;
+            ei[n] = (ni >= 0 ? i[ni]! : 0) + trims.dcI;
+            eq[n] = (nq >= 0 ? a * q[nq]! + b * i[nq]! : 0) + trims.dcQ;
+          }
+          expect(bitDiffs(oi, ei)).toBe(0);
+          expect(bitDiffs(oq, eq)).toBe(0);
+        });
+      }
+    }
+  }
+});
+
+describe('trim stage: switching between the steady and the general path', () => {
+  const long = new Float32Array(4 * 28672);
+  for (let k = 0; k < long.length; k++) long[k] = x[k % len]!;
+  const script = (block: number) => {
+    const gen = createQuadratureGenerator(niemitaloNetwork(true, fs), {
+      trims: { skewSamples: 2, gainDb: -0.2 },
+      rampSeconds: 0.003,
+    });
+    const i = new Float32Array(len);
+    const q = new Float32Array(len);
+    for (let o = 0; o < len; o += block) {
+      // whole-sample skew to whole-sample skew through a ramp, then a correction, then none
+      // (events at multiples of 28672, where every block size has a boundary)
+      if (o === 28672) gen.setTrims({ skewSamples: -3, phaseDeg: 1.5, dcQ: 0.02 });
+      if (o === 2 * 28672) gen.setCorrection({ qFromQ: [0.02, 0.97, 0.01], qFromI: [0.01, 0, -0.01] });
+      if (o === 3 * 28672) gen.setCorrection(null);
+      const e = Math.min(long.length, o + block);
+      gen.process(long.subarray(o, e), i.subarray(o, e), q.subarray(o, e));
+    }
+    return { i, q };
+  };
+  it('block sizes 1, 7, 128 give output bit-identical to 4096', () => {
+    const ref = script(4096);
+    for (const b of [1, 7, 128]) {
+      const r = script(b);
+      expect(bitDiffs(r.i, ref.i)).toBe(0);
+      expect(bitDiffs(r.q, ref.q)).toBe(0);
+    }
+  });
+});

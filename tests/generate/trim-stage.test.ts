@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { createRng } from '../../src/core/rng.js';
 import type { Trims } from '../../src/core/trims.js';
+import type { Network } from '../../src/design/network.js';
 import { createNetworkRuntime, createQuadratureGenerator } from '../../src/generate/quadrature-generator.js';
 import { bitDiffs } from './dft.js';
 import { kaiserHilbertNetwork, niemitaloNetwork } from './reference-networks.js';
@@ -17,7 +18,7 @@ for (let k = 0; k < len; k++)
   x[k] = 0.4 * Math.cos((2 * Math.PI * 1300 * k) / fs) + 0.1 * (rng.uniform() - 0.5);
 
 /** Network outputs for `x` in double precision (the runtime on its own, 128-sample chunks). */
-function networkOutput(net: ReturnType<typeof niemitaloNetwork>) {
+function networkOutput(net: Network) {
   const rt = createNetworkRuntime(net);
   const i = new Float64Array(len);
   const q = new Float64Array(len);

@@ -23,7 +23,14 @@ options:
   -h, --help       this help
 `;
 
-/** Runs `orthotone analyze`; returns the exit status. */
+/**
+ * Runs `orthotone analyze`; returns the exit status (0).
+ * @throws {UsageError} for bad options, a missing or unreadable FILE or an unknown format;
+ *   OrthotoneError INVALID_DOCUMENT when FILE is not a network document, INVALID_ARGUMENT for a
+ *   frequency range or point count `analyzeNetwork` refuses;
+ *   a Node file-system error when an output file cannot be written. The CLI's `main` (through
+ *   `runGuarded`) turns UsageError and OrthotoneError into one line on stderr and exit status 2.
+ */
 export async function run(argv: string[]): Promise<number> {
   const { values: v, positionals } = parseCommand(
     argv,

@@ -16,7 +16,11 @@ export class UsageError extends Error {
 /** Option table for a command: parseArgs options plus a help line per option. */
 export type OptionTable = NonNullable<ParseArgsConfig['options']>;
 
-/** Parses `argv` strictly; unknown options become a {@link UsageError}. */
+/**
+ * Parses `argv` strictly (node:util `parseArgs`); unknown options become a {@link UsageError}.
+ * @throws {UsageError} the first line of parseArgs's message for an unknown option, a missing value
+ *   or a positional argument where none is allowed.
+ */
 export function parseCommand(
   argv: string[],
   options: OptionTable,
@@ -33,7 +37,10 @@ export function parseCommand(
   }
 }
 
-/** Parses a number option; `undefined` passes through. */
+/**
+ * Parses a number option; `undefined` passes through. The unit is the option's own (see its help).
+ * @throws {UsageError} `--NAME "x" is not a number` for text that is not a finite number.
+ */
 export function numberOpt(name: string, v: unknown): number | undefined {
   if (v === undefined) return undefined;
   const x = Number(v);
@@ -43,7 +50,12 @@ export function numberOpt(name: string, v: unknown): number | undefined {
   return x;
 }
 
-/** Parses a list of numbers separated by `sep` (e.g. `300:3000`, `700,1900`). */
+/**
+ * Parses a list of numbers separated by `sep` (e.g. `300:3000`, `700,1900`); `undefined` passes
+ * through. The unit is the option's own (see its help).
+ * @throws {UsageError} when the value is not text, a part is not a finite number, or the list does
+ *   not have `count` parts.
+ */
 export function numberListOpt(name: string, v: unknown, sep: string, count?: number): number[] | undefined {
   if (v === undefined) return undefined;
   if (typeof v !== 'string') throw new UsageError(`--${name} needs a value`);
@@ -92,7 +104,11 @@ export function lookupOpt<T>(
   return entry;
 }
 
-/** Runs a command body, mapping usage and library errors to one line on stderr and exit status 2. */
+/**
+ * Runs a command body, mapping usage and library errors to one line on stderr and exit status 2.
+ * @returns the body's exit status, or 2 after a {@link UsageError} or an OrthotoneError.
+ * @throws any other error from `body` (a bug, not a usage problem), passed on unchanged.
+ */
 export async function runGuarded(body: () => Promise<number> | number): Promise<number> {
   try {
     return await body();

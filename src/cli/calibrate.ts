@@ -108,7 +108,12 @@ const OPTIONS = {
 
 type Quantity = 'sideband' | 'carrier';
 
-/** Parses `--tolerance resistorPct=1,offsetMv=5` over a preset. */
+/**
+ * Parses `--tolerance resistorPct=1,offsetMv=5` over a preset (units as the preset's fields: %, mV,
+ * V, bits, dBFS, seconds, dB). Ranges are checked later, by `validateTolerance`.
+ * @throws {UsageError} for a part that is not KEY=VALUE with a known KEY, or a value that is not a
+ *   number (except `distribution`, taken as text).
+ */
 export function parseTolerance(text: string | undefined, base: Readonly<TolerancePreset>): TolerancePreset {
   const t: TolerancePreset = { ...base };
   if (!text) return t;
@@ -313,7 +318,14 @@ interface RunOut {
   trueEndDb?: number;
 }
 
-/** `orthotone calibrate` entry point. */
+/**
+ * `orthotone calibrate` entry point; returns the exit status.
+ * @throws {UsageError} for bad or conflicting options or an unreadable network file;
+ *   OrthotoneError INVALID_ARGUMENT for calibration or simulator settings the library refuses,
+ *   INVALID_DOCUMENT for a profile that fails validation. A failed reading never throws (the run stops with a reason);
+ *   a Node file-system error when an output file cannot be written. The CLI's `main` (through
+ *   `runGuarded`) turns UsageError and OrthotoneError into one line on stderr and exit status 2.
+ */
 export async function run(argv: string[]): Promise<number> {
   const { values: v } = parseCommand(argv, OPTIONS);
   if (v.help) {

@@ -34,7 +34,13 @@ options:
   -h, --help             this help
 `;
 
-/** Builds the design spec from parsed CLI values. */
+/**
+ * Builds the design spec from parsed CLI values: `--rate` in Hz, `--band LO:HI` in Hz, `--target`
+ * in dB of opposite-sideband suppression, `--taps` / `--sections` counts. Values are range-checked
+ * later, by `designNetwork`.
+ * @throws {UsageError} for a value that is not a number, a band not written as two numbers, or a
+ *   `--method` / `--coefficients` word outside its choices.
+ */
 export function specFromOptions(v: Record<string, unknown>): NetworkSpec {
   const band = numberListOpt('band', v.band ?? '300:3000', ':', 2) as [number, number];
   const method = choiceOpt('method', v.method, ['fir', 'allpass', 'auto'], 'auto');
@@ -75,7 +81,13 @@ export const DESIGN_OPTIONS = {
   coefficients: { type: 'string' },
 } as const;
 
-/** A readable summary of a network: what it is, what it allows, what it costs. */
+/**
+ * A readable summary of a network: what it is (size, band in Hz), what it allows (worst suppression
+ * in dB, phase error in degrees, gain error in dB), what it costs (multiplies per sample, latency in
+ * samples and ms), and its figures after rounding to float32/Q31/Q15.
+ * @throws {OrthotoneError} INVALID_DOCUMENT for an invalid network (from `analyzeNetwork` and
+ *   `quantizationReport`).
+ */
 export function describeNetwork(net: Network): string {
   const a = analyzeNetwork(net, { points: 2000 });
   const q = quantizationReport(net);
@@ -131,7 +143,11 @@ export function describeNetwork(net: Network): string {
   return out;
 }
 
-/** Renders a network in the requested output format. */
+/**
+ * Renders a network in the requested output format (table, json, c or csv).
+ * @throws {UsageError} for any other format; OrthotoneError INVALID_ARGUMENT when `name` is not a
+ *   C identifier (format c), INVALID_DOCUMENT for an invalid network (format table).
+ */
 export function renderNetwork(net: Network, format: string, name?: string): string {
   switch (format) {
     case 'json':
@@ -147,7 +163,12 @@ export function renderNetwork(net: Network, format: string, name?: string): stri
   }
 }
 
-/** Runs `orthotone design`; returns the exit status. */
+/**
+ * Runs `orthotone design`; returns the exit status.
+ * @throws {UsageError} for bad options; OrthotoneError from `designNetwork` (INVALID_ARGUMENT,
+ *   INVALID_BAND, UNREACHABLE_TARGET, NO_CONVERGENCE) and the renderers; a Node file-system error
+ *   when `--out` cannot be written. `main` maps the first two to one line and exit status 2.
+ */
 export async function run(argv: string[]): Promise<number> {
   const { values: v } = parseCommand(argv, {
     ...DESIGN_OPTIONS,

@@ -64,7 +64,12 @@ export async function readWav(path: string): Promise<WavData> {
   }
 }
 
-/** Writes channels as a 32-bit float WAV file through the shared writer. */
+/**
+ * Writes channels (full-scale units) as a 32-bit float WAV file through the shared writer;
+ * `sampleRate` in Hz.
+ * @throws {OrthotoneError} INVALID_ARGUMENT as `encodeWav` (no channels, channels of different
+ *   lengths, a bad sample rate); a Node file-system error when the file cannot be written.
+ */
 export async function writeWav(path: string, sampleRate: number, channels: Float32Array[]): Promise<void> {
   await writeWavFile(path, channels, sampleRate, 'float32');
 }
@@ -83,7 +88,14 @@ function toneRow(name: string, r: ToneReading, refDbfs?: number): string[] {
 
 const HEAD = ['component', 'Hz', 'dBFS', 'dBc', 'above floor dB'];
 
-/** `orthotone measure` entry point. */
+/**
+ * `orthotone measure` entry point; returns the exit status (0).
+ * @throws {UsageError} for bad options or a WAV file that cannot be opened or has the wrong channel
+ *   count; OrthotoneError from the reader and the measurements (INVALID_ARGUMENT for a file that is
+ *   not WAV or a tone the measurement refuses, CAPTURE_TOO_SHORT, TONES_UNRESOLVED);
+ *   a Node file-system error when an output file cannot be written. The CLI's `main` (through
+ *   `runGuarded`) turns UsageError and OrthotoneError into one line on stderr and exit status 2.
+ */
 export async function run(argv: string[]): Promise<number> {
   const { values: v, positionals } = parseCommand(argv, OPTIONS, true);
   if (v.help) {

@@ -141,7 +141,15 @@ function trimsFromOptions(v: Record<string, unknown>): Partial<Trims> {
   return validateTrims(t);
 }
 
-/** Runs `orthotone render`; returns the exit status. */
+/**
+ * Runs `orthotone render`; returns the exit status (0).
+ * @throws {UsageError} for bad options, an unreadable or silent input, or an unreadable network
+ *   file; OrthotoneError (INVALID_DOCUMENT for a bad network document, INVALID_ARGUMENT for trims,
+ *   signal settings or a WAV encoding the library refuses, INVALID_BAND / UNREACHABLE_TARGET from
+ *   designing the network);
+ *   a Node file-system error when an output file cannot be written. The CLI's `main` (through
+ *   `runGuarded`) turns UsageError and OrthotoneError into one line on stderr and exit status 2.
+ */
 export async function run(argv: string[]): Promise<number> {
   // Let numeric options take negative values without '=' (`--level -7`, `--gain-db -0.3`).
   const args: string[] = [];

@@ -40,7 +40,14 @@ const OPTIONS = {
   help: { type: 'boolean', short: 'h' },
 } as const;
 
-/** `orthotone simulate` entry point. */
+/**
+ * `orthotone simulate` entry point; returns the exit status (0).
+ * @throws {UsageError} for bad options, an unreadable or mono input file, or an `--offset` outside
+ *   0 … Nyquist; OrthotoneError INVALID_ARGUMENT for a file that is not WAV or a device or receiver
+ *   setting the simulator refuses;
+ *   a Node file-system error when an output file cannot be written. The CLI's `main` (through
+ *   `runGuarded`) turns UsageError and OrthotoneError into one line on stderr and exit status 2.
+ */
 export async function run(argv: string[]): Promise<number> {
   const { values: v, positionals } = parseCommand(argv, OPTIONS, true);
   if (v.help) {

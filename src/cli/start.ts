@@ -49,7 +49,13 @@ const BAND: [number, number] = [300, 3000];
 const TONE_HZ = 1000;
 const TONE_AMPLITUDE = 0.5;
 
-/** `orthotone start` entry point. */
+/**
+ * `orthotone start` entry point; returns the exit status (0).
+ * @throws {UsageError} for bad options; OrthotoneError only on an internal fault (the demo's own
+ *   settings are fixed and valid);
+ *   a Node file-system error when an output file cannot be written. The CLI's `main` (through
+ *   `runGuarded`) turns UsageError and OrthotoneError into one line on stderr and exit status 2.
+ */
 export async function run(argv: string[]): Promise<number> {
   const { values: v } = parseCommand(argv, OPTIONS);
   if (v.help) {

@@ -34,6 +34,8 @@ export const FRACTIONAL_DELAY_ACCURACY = Object.freeze({ errorDbTo025: -90, erro
  * The windowed-sinc kernel at `t` samples from its centre: `sinc(t)·w(t)`, w the Kaiser window of
  * half-width {@link FRACTIONAL_DELAY_TAPS}/2 and β = {@link FRACTIONAL_DELAY_KAISER_BETA}.
  * @param t offset from the kernel centre, samples.
+ * @returns the kernel value (dimensionless; 1 at the centre, 0 at and beyond ±TAPS/2 samples).
+ * @throws never
  */
 export function windowedSinc(t: number): number {
   const half = FRACTIONAL_DELAY_TAPS / 2;
@@ -78,6 +80,8 @@ function tapTable(): Float64Array {
  * @param frac fractional delay in [0, 1]; values outside are clamped.
  * @param out destination, length ≥ offset + TAPS.
  * @param offset first index written.
+ * @throws never (NaN `frac` reads as 0; writes past the end of `out` are dropped, as for any typed
+ *   array).
  */
 export function fractionalDelayTaps(frac: number, out: Float64Array, offset = 0): void {
   const m = FRACTIONAL_DELAY_TAPS;

@@ -213,6 +213,10 @@ export function signalLevels(spec: SignalSpec, sampleRate: number): SignalLevels
  * `h[n] = (sin ω2n − sin ω1n)/(πn)`; its Hilbert transform `(cos ω1n − cos ω2n)/(πn)` (0 at n = 0),
  * both windowed and scaled together so the band-pass has unit power gain (Σh² = 1, white noise of
  * variance σ² comes out with variance σ²). Length: about 10·fs/lo (transition ≈ lo/2), odd, 63…2047.
+ * @param band [lo, hi] in Hz, 0 < lo < hi < fs/2 (checked by the caller, not here).
+ * @param sampleRate Hz.
+ * @returns the band-pass `bp` and its Hilbert transform `hb`, taps (dimensionless).
+ * @throws never (the length is always a valid window length).
  */
 export function bandNoiseFilters(
   band: [number, number],

@@ -80,7 +80,10 @@ const SPARE = 16 * RUNTIME_CHUNK;
 const FD_TAPS = FRACTIONAL_DELAY_TAPS;
 const FD_HALF = FD_TAPS / 2 - 1;
 
-/** A new zeroed stats object. */
+/**
+ * A new zeroed stats object (counts in samples; `peak` in full-scale units).
+ * @throws never
+ */
 export function emptyStats(): GeneratorStats {
   return { samplesOut: 0, nonFiniteInputs: 0, clampedInputs: 0, overFullScale: 0, peak: 0 };
 }
@@ -129,7 +132,10 @@ function naturalParams(t: Trims, sign: number, out: Float64Array): void {
 
 /**
  * Sanitises `n` input samples from `src[from…]` into `dst[0…]`: NaN/±Inf → 0 and counted, beyond
- * ±INPUT_LIMIT limited and counted, magnitudes below OUTPUT_FLUSH → 0.
+ * ±INPUT_LIMIT limited and counted, magnitudes below OUTPUT_FLUSH → 0 (full-scale units). Part of
+ * the audio path, so it never throws: samples read past the end of `src` count as non-finite and
+ * become 0. Common practice, no source (input guarding against NaN and denormals).
+ * @throws never
  */
 export function sanitiseInput(
   src: Float32Array | Float64Array,

@@ -60,19 +60,30 @@ export interface CombinedSeeker {
   next(): Trims | undefined;
   /**
    * Reports both levels read with the trims `next()` gave; a non-finite level records a failed
-   * reading of that quantity. `error` is kept in the history.
+   * reading of that quantity. `error` is kept in the history. Levels in dB (dBc).
+   * @throws {OrthotoneError} INVALID_ARGUMENT when the calibration has stopped (both nulls done, the
+   *   budget used, or `stop()` called).
    */
   tell(levels: BothLevels, error?: unknown): CombinedStep;
-  /** Removes the last reading from both calibrations (a person mistyped it). */
+  /**
+   * Removes the last reading from both calibrations (a person mistyped it); undoes a stop.
+   * @throws never in normal use (as `NullSeeker.undo`).
+   */
   undo(): void;
-  /** Stops both (e.g. a person quits); the results keep the best trims so far. */
+  /**
+   * Stops both (e.g. a person quits); the results keep the best trims so far.
+   * @throws never
+   */
   stop(reason: 'aborted' | 'budget'): void;
   /** Readings taken, resumed ones included. */
   readonly count: number;
   readonly done: boolean;
   /** The best trims so far, and the level at each null (dB). */
   best(): { trims: Trims; sidebandDb: number; carrierDb: number };
-  /** The results so far (each calibration's, and the combined trims). */
+  /**
+   * The results so far (each calibration's, and the combined trims). Stops any seeker still running.
+   * @throws never
+   */
   result(lastError?: unknown): CombinedCalibrationResult;
 }
 

@@ -167,16 +167,27 @@ export interface NullSeekerState {
 
 /** The ask/tell seeker. */
 export interface NullSeeker {
-  /** The setting to read next, or undefined when stopped. Repeated calls give the same setting. */
+  /**
+   * The setting to read next, or undefined when stopped. Repeated calls give the same setting.
+   * @throws never
+   */
   next(): [number, number] | undefined;
   /**
    * Reports the level read at `point` (which may differ from what `next()` proposed, e.g. after
    * rounding by hardware). A non-finite `db` records a failed reading.
+   * @throws {OrthotoneError} INVALID_ARGUMENT when the seeker has stopped, or when a coordinate of
+   *   `point` is not finite.
    */
   tell(point: readonly [number, number], db: number): void;
-  /** Removes the last reading (a person mistyped it). */
+  /**
+   * Removes the last reading (a person mistyped it) by replaying the others from the start.
+   * @throws never in normal use: it replays readings the seeker accepted before.
+   */
   undo(): void;
-  /** Stops the seeker (e.g. on abort); `best()` stays valid. */
+  /**
+   * Stops the seeker (e.g. on abort); `best()` stays valid. The first reason given is kept.
+   * @throws never
+   */
   stop(reason: StopReason): void;
   /** True once stopped. */
   readonly done: boolean;
@@ -198,7 +209,10 @@ export interface NullSeeker {
   estimate(): SeekerEstimate | undefined;
   readings(): readonly SeekerReading[];
   axes(): readonly [AxisStatus, AxisStatus];
-  /** Saves the state for a later {@link restoreNullSeeker}. */
+  /**
+   * Saves the state for a later {@link restoreNullSeeker} (plain JSON data; failed readings as null).
+   * @throws never
+   */
   save(): NullSeekerState;
   readonly options: Readonly<NullSeekerOptions>;
 }

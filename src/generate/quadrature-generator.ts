@@ -63,11 +63,14 @@ export interface QuadratureGenerator {
    * @throws {OrthotoneError} INVALID_ARGUMENT when malformed or longer than `maxCorrectionTaps`.
    */
   setCorrection(c: Correction | null): void;
-  /** Zeroes the counters. */
+  /** Zeroes the counters. @throws never */
   resetStats(): void;
-  /** Clears all signal state (and the counters), ending ramps at their targets; keeps settings. */
+  /**
+   * Clears all signal state (and the counters), ending ramps at their targets; keeps settings.
+   * @throws never
+   */
   reset(): void;
-  /** An independent copy; its future output is bit-identical to this one's. */
+  /** An independent copy; its future output is bit-identical to this one's. @throws never */
   clone(): QuadratureGenerator;
 }
 

@@ -104,9 +104,16 @@ export function lookupOpt<T>(
   return entry;
 }
 
+/** A Node file-system error (ENOENT, EACCES, EISDIR, …) on a path the user named. */
+function isFileError(e: unknown): e is NodeJS.ErrnoException & { path: string } {
+  const x = e as NodeJS.ErrnoException | null;
+  return typeof x?.code === 'string' && typeof x.syscall === 'string' && typeof x.path === 'string';
+}
+
 /**
- * Runs a command body, mapping usage and library errors to one line on stderr and exit status 2.
- * @returns the body's exit status, or 2 after a {@link UsageError} or an OrthotoneError.
+ * Runs a command body, mapping usage errors, library errors and file errors on paths the user
+ * named (a folder that does not exist, no permission) to one line on stderr and exit status 2.
+ * @returns the body's exit status, or 2 after a {@link UsageError}, an OrthotoneError or a file error.
  * @throws any other error from `body` (a bug, not a usage problem), passed on unchanged.
  */
 export async function runGuarded(body: () => Promise<number> | number): Promise<number> {
@@ -115,6 +122,12 @@ export async function runGuarded(body: () => Promise<number> | number): Promise<
   } catch (e) {
     if (e instanceof UsageError || isOrthotoneError(e)) {
       process.stderr.write(`orthotone: ${e.message}\n`);
+      return 2;
+    }
+    if (isFileError(e)) {
+      process.stderr.write(
+        `orthotone: cannot ${e.syscall} ${e.path}: ${e.code}: check the path and permissions\n`,
+      );
       return 2;
     }
     throw e;

@@ -109,12 +109,17 @@ describe('orthotone design', () => {
       ['design', '--nonsense'],
       ['design', '--method', 'allpass', '--target', '400'],
       ['analyze', '/nonexistent.json'],
+      ['design', '--out', '/nonexistent-folder/net.json'],
+      ['render', '--tone', '1000', '--duration', '0.1', '--out', '/nonexistent-folder/t.wav'],
     ]) {
       const r = cli(args);
       expect(r.status, args.join(' ')).toBe(2);
       expect(r.stderr.trim().split('\n')).toHaveLength(1);
     }
     expect(cli(['design', '--band', '300:30000']).stderr).toMatch(/30000 Hz must be below Nyquist 24000 Hz/);
+    expect(cli(['design', '--out', '/nonexistent-folder/net.json']).stderr).toMatch(
+      /cannot open \/nonexistent-folder\/net.json: ENOENT/,
+    );
   });
 
   it('has --help on every command it knows', () => {

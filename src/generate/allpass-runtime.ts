@@ -19,8 +19,10 @@
  * - Every loop over a chunk costs about a nanosecond per sample in V8 on its own (no
  *   vectorisation, a bounds check per access), so the pass count is kept small: the first pass
  *   reads the input (or the delay history) and adds the anti-denormal offset, the last pass
- *   removes it and writes the caller's arrays; there are no separate copy loops. The delay
- *   history is written only when a branch has a delay.
+ *   removes it and writes the caller's arrays; there are no separate copy loops. Branch delays
+ *   need no history copy either: the first pass runs in two parts, the first `max delay` samples
+ *   from a small buffer that joins the previous chunk's tail to this chunk's head, the rest
+ *   straight from the input, `delay` samples back.
  *
  * Denormals: a recursion fed silence decays geometrically into subnormal numbers, which slow some
  * CPUs by orders of magnitude. Each branch therefore adds a constant 1e-20 (−400 dBFS) at its input
@@ -34,8 +36,6 @@ import { type NetworkRuntime, RUNTIME_CHUNK } from './network-runtime.js';
 
 /** The anti-denormal constant added at each branch input and removed at its output. */
 export const ANTI_DENORMAL_OFFSET = 1e-20;
-
-const HISTORY_SPARE = 16 * RUNTIME_CHUNK;
 
 /** One branch: coefficients and orders (immutable) and per-section state (copied by clone). */
 interface BranchState {
@@ -82,8 +82,8 @@ function copyBranch(s: BranchState): BranchState {
 }
 
 /**
- * Where one pass reads and writes. A pass reads `inI[offI + j] + add` (and the same for Q) and
- * writes `y − sub` to `outI[j]`: the first pass reads the input or the delay history with
+ * Where one pass reads and writes, for `n` samples j = 0…n−1. A pass reads `inI[offI + j] + add`
+ * (and the same for Q) and writes `y − sub` to `outI[oo + j]`: the first pass reads the input with
  * `add` = the anti-denormal offset, the last writes the caller's arrays with `sub` = the offset,
  * the passes between run in place on the work arrays with both 0 (`v + 0` and `v − 0` are exact).
  * One object per runtime, filled before each pass (its fields are read once per pass).
@@ -96,6 +96,7 @@ interface PassIo {
   add: number;
   outI: Float64Array;
   outQ: Float64Array;
+  oo: number;
   sub: number;
   n: number;
 }
@@ -106,15 +107,16 @@ function passThrough(
   off: number,
   add: number,
   out: Float64Array,
+  oo: number,
   sub: number,
   n: number,
 ): void {
-  for (let j = 0; j < n; j++) out[j] = inp[off + j]! + add - sub;
+  for (let j = 0; j < n; j++) out[oo + j] = inp[off + j]! + add - sub;
 }
 
 /**
  * One section of one branch over a chunk: `y = a·(x − y[n−m]) + x[n−m]`, reading
- * `inp[off + j] + add`, writing `y − sub` to `out[j]`.
+ * `inp[off + j] + add`, writing `y − sub` to `out[oo + j]`.
  */
 function runSection(
   b: BranchState,
@@ -123,6 +125,7 @@ function runSection(
   off: number,
   add: number,
   out: Float64Array,
+  oo: number,
   sub: number,
   n: number,
 ): void {
@@ -139,7 +142,7 @@ function runSection(
       const yn = a * (xn - y1) + x1;
       x1 = xn;
       y1 = yn;
-      out[j] = yn - sub;
+      out[oo + j] = yn - sub;
     }
   } else {
     for (let j = 0; j < n; j++) {
@@ -149,7 +152,7 @@ function runSection(
       x1 = xn;
       y2 = y1;
       y1 = yn;
-      out[j] = yn - sub;
+      out[oo + j] = yn - sub;
     }
   }
   st[o] = x1;
@@ -164,7 +167,7 @@ function runSection(
  * Each recursion computes exactly what {@link runSection} computes.
  */
 function runQuad1(bi: BranchState, bq: BranchState, s: number, io: PassIo): void {
-  const { inI, inQ, offI, offQ, add, outI, outQ, sub, n } = io;
+  const { inI, inQ, offI, offQ, add, outI, outQ, oo, sub, n } = io;
   const si = bi.st;
   const sq = bq.st;
   const o = 4 * s;
@@ -195,8 +198,8 @@ function runQuad1(bi: BranchState, bq: BranchState, s: number, io: PassIo): void
     iy1 = ui;
     qx1 = tq;
     qy1 = uq;
-    outI[j] = ui - sub;
-    outQ[j] = uq - sub;
+    outI[oo + j] = ui - sub;
+    outQ[oo + j] = uq - sub;
   }
   si[o] = ix0;
   si[o + 2] = iy0;
@@ -217,7 +220,7 @@ function runQuad1(bi: BranchState, bq: BranchState, s: number, io: PassIo): void
  * Each recursion computes exactly what {@link runSection} computes.
  */
 function runHex1(bi: BranchState, bq: BranchState, s: number, io: PassIo): void {
-  const { inI, inQ, offI, offQ, add, outI, outQ, sub, n } = io;
+  const { inI, inQ, offI, offQ, add, outI, outQ, oo, sub, n } = io;
   const si = bi.st;
   const sq = bq.st;
   const o = 4 * s;
@@ -260,8 +263,8 @@ function runHex1(bi: BranchState, bq: BranchState, s: number, io: PassIo): void 
     iy2 = vi;
     qx2 = uq;
     qy2 = vq;
-    outI[j] = vi - sub;
-    outQ[j] = vq - sub;
+    outI[oo + j] = vi - sub;
+    outQ[oo + j] = vq - sub;
   }
   si[o] = ix0;
   si[o + 2] = iy0;
@@ -279,7 +282,7 @@ function runHex1(bi: BranchState, bq: BranchState, s: number, io: PassIo): void 
 
 /** As {@link runQuad1} for four second-order (z⁻²) sections. */
 function runQuad2(bi: BranchState, bq: BranchState, s: number, io: PassIo): void {
-  const { inI, inQ, offI, offQ, add, outI, outQ, sub, n } = io;
+  const { inI, inQ, offI, offQ, add, outI, outQ, oo, sub, n } = io;
   const si = bi.st;
   const sq = bq.st;
   const o = 4 * s;
@@ -326,8 +329,8 @@ function runQuad2(bi: BranchState, bq: BranchState, s: number, io: PassIo): void
     qx11 = tq;
     qy12 = qy11;
     qy11 = uq;
-    outI[j] = ui - sub;
-    outQ[j] = uq - sub;
+    outI[oo + j] = ui - sub;
+    outQ[oo + j] = uq - sub;
   }
   si[o] = ix01;
   si[o + 1] = ix02;
@@ -352,6 +355,7 @@ const HEX1 = 0;
 const QUAD1 = 1;
 const QUAD2 = 2;
 const SINGLES = 3;
+const THROUGH = 4;
 
 /** True when sections s…s+count−1 of both branches exist and all have order `order`. */
 function uniform(bi: BranchState, bq: BranchState, s: number, count: number, order: number): boolean {
@@ -369,6 +373,7 @@ function makePlan(bi: BranchState, bq: BranchState): { kind: Uint8Array; index: 
   const idx: number[] = [];
   const ni = bi.order.length;
   const nq = bq.order.length;
+  if (ni === 0 && nq === 0) return { kind: Uint8Array.of(THROUGH), index: Int32Array.of(0) };
   let s = 0;
   while (s < Math.max(ni, nq)) {
     idx.push(s);
@@ -389,12 +394,6 @@ function makePlan(bi: BranchState, bq: BranchState): { kind: Uint8Array; index: 
   return { kind: Uint8Array.from(kinds), index: Int32Array.from(idx) };
 }
 
-/** Input history for the branch delays (raw input): linear, over-allocated, one span. */
-interface InputHistory {
-  h: Float64Array;
-  wp: number;
-}
-
 /**
  * Creates the runtime for an all-pass pair network.
  * @param branches the two branches `{ i, q }` of a network document (DESIGN.md §3).
@@ -406,7 +405,9 @@ export function createAllpassRuntime(branches: { i: AllpassBranch; q: AllpassBra
   checkBranch('i', branches.i);
   checkBranch('q', branches.q);
   const multipliesPerSample = branches.i.sections.length + branches.q.sections.length;
-  const keep = Math.max(branches.i.delay, branches.q.delay);
+  const dI = branches.i.delay;
+  const dQ = branches.q.delay;
+  const keep = Math.max(dI, dQ);
   const plan = makePlan(newBranch(branches.i), newBranch(branches.q));
   const steps = plan.kind.length;
   const ni = branches.i.sections.length;
@@ -414,71 +415,104 @@ export function createAllpassRuntime(branches: { i: AllpassBranch; q: AllpassBra
   // Work arrays between passes (shared by clones: they hold nothing between calls).
   const wi = new Float64Array(RUNTIME_CHUNK);
   const wq = new Float64Array(RUNTIME_CHUNK);
-  const io: PassIo = { inI: wi, inQ: wq, offI: 0, offQ: 0, add: 0, outI: wi, outQ: wq, sub: 0, n: 0 };
-  const make = (bi: BranchState, bq: BranchState, hist: InputHistory): NetworkRuntime => ({
+  const io: PassIo = {
+    inI: wi,
+    inQ: wq,
+    offI: 0,
+    offQ: 0,
+    add: 0,
+    outI: wi,
+    outQ: wq,
+    oo: 0,
+    sub: 0,
+    n: 0,
+  };
+
+  /** Runs plan step k over `n` samples (the I/O in `io`, set by the caller but for add/sub). */
+  const step = (bi: BranchState, bq: BranchState, k: number): void => {
+    io.add = k === 0 ? ANTI_DENORMAL_OFFSET : 0;
+    io.sub = k === steps - 1 ? ANTI_DENORMAL_OFFSET : 0;
+    const s = plan.index[k]!;
+    const kind = plan.kind[k];
+    if (kind === HEX1) runHex1(bi, bq, s, io);
+    else if (kind === QUAD1) runQuad1(bi, bq, s, io);
+    else if (kind === QUAD2) runQuad2(bi, bq, s, io);
+    else {
+      const { inI, inQ, offI, offQ, add, outI, outQ, oo, sub, n } = io;
+      if (s < ni) runSection(bi, s, inI, offI, add, outI, oo, sub, n);
+      else passThrough(inI, offI, add, outI, oo, sub, n);
+      if (s < nq) runSection(bq, s, inQ, offQ, add, outQ, oo, sub, n);
+      else passThrough(inQ, offQ, add, outQ, oo, sub, n);
+    }
+  };
+
+  // `head` (branch delays only): the last `keep` input samples, then room for `keep` more.
+  const make = (bi: BranchState, bq: BranchState, head: Float64Array): NetworkRuntime => ({
     kind: 'allpass',
     multipliesPerSample,
     process(x, n, outI, outQ) {
-      // The first pass reads the input itself, or (a branch has a delay) the history it is
-      // appended to; a delayed read never reaches past the sample just written.
-      let src = x;
-      let offI = 0;
-      let offQ = 0;
-      if (keep > 0) {
-        const h = hist.h;
-        let wp = hist.wp;
-        if (wp + n > h.length) {
-          h.copyWithin(0, wp - keep, wp);
-          wp = keep;
+      const last = steps === 1;
+      io.outI = last ? outI : wi;
+      io.outQ = last ? outQ : wq;
+      if (keep === 0) {
+        // The first pass reads the input itself.
+        io.inI = x;
+        io.inQ = x;
+        io.offI = 0;
+        io.offQ = 0;
+        io.oo = 0;
+        io.n = n;
+        step(bi, bq, 0);
+      } else {
+        // Branch delays without copying the chunk into a history: the first pass runs in two
+        // parts. Samples 0…m−1 (m = min(n, keep)) may reach into the previous chunk: they read
+        // `head`, the last `keep` samples followed by this chunk's first m. Samples m…n−1 read
+        // the input itself, `d` samples back. Splitting a pass is exact: its states carry over.
+        const m = Math.min(n, keep);
+        for (let j = 0; j < m; j++) head[keep + j] = x[j]!;
+        io.inI = head;
+        io.inQ = head;
+        io.offI = keep - dI;
+        io.offQ = keep - dQ;
+        io.oo = 0;
+        io.n = m;
+        step(bi, bq, 0);
+        if (n > m) {
+          io.inI = x;
+          io.inQ = x;
+          io.offI = m - dI;
+          io.offQ = m - dQ;
+          io.oo = m;
+          io.n = n - m;
+          step(bi, bq, 0);
         }
-        for (let j = 0; j < n; j++) h[wp + j] = x[j]!;
-        hist.wp = wp + n;
-        src = h;
-        offI = wp - bi.delay;
-        offQ = wp - bq.delay;
+        // Keep the last `keep` samples for the next chunk.
+        if (n >= keep) for (let j = 0; j < keep; j++) head[j] = x[n - keep + j]!;
+        else head.copyWithin(0, n, n + keep);
       }
-      if (steps === 0) {
-        passThrough(src, offI, ANTI_DENORMAL_OFFSET, outI, ANTI_DENORMAL_OFFSET, n);
-        passThrough(src, offQ, ANTI_DENORMAL_OFFSET, outQ, ANTI_DENORMAL_OFFSET, n);
-        return;
-      }
+      // The other passes, in place on the work arrays; the last writes the caller's arrays.
+      io.inI = wi;
+      io.inQ = wq;
+      io.offI = 0;
+      io.offQ = 0;
+      io.oo = 0;
       io.n = n;
-      for (let k = 0; k < steps; k++) {
-        const first = k === 0;
-        const last = k === steps - 1;
-        io.inI = first ? src : wi;
-        io.inQ = first ? src : wq;
-        io.offI = first ? offI : 0;
-        io.offQ = first ? offQ : 0;
-        io.add = first ? ANTI_DENORMAL_OFFSET : 0;
-        io.outI = last ? outI : wi;
-        io.outQ = last ? outQ : wq;
-        io.sub = last ? ANTI_DENORMAL_OFFSET : 0;
-        const s = plan.index[k]!;
-        const kind = plan.kind[k];
-        if (kind === HEX1) runHex1(bi, bq, s, io);
-        else if (kind === QUAD1) runQuad1(bi, bq, s, io);
-        else if (kind === QUAD2) runQuad2(bi, bq, s, io);
-        else {
-          if (s < ni) runSection(bi, s, io.inI, io.offI, io.add, io.outI, io.sub, n);
-          else passThrough(io.inI, io.offI, io.add, io.outI, io.sub, n);
-          if (s < nq) runSection(bq, s, io.inQ, io.offQ, io.add, io.outQ, io.sub, n);
-          else passThrough(io.inQ, io.offQ, io.add, io.outQ, io.sub, n);
+      for (let k = 1; k < steps; k++) {
+        if (k === steps - 1) {
+          io.outI = outI;
+          io.outQ = outQ;
         }
+        step(bi, bq, k);
       }
     },
     reset() {
       bi.st.fill(0);
       bq.st.fill(0);
-      hist.h.fill(0);
-      hist.wp = keep;
+      head.fill(0);
     },
     clone() {
-      return make(copyBranch(bi), copyBranch(bq), { h: hist.h.slice(), wp: hist.wp });
+      return make(copyBranch(bi), copyBranch(bq), head.slice());
     },
   });
-  return make(newBranch(branches.i), newBranch(branches.q), {
-    h: new Float64Array(keep > 0 ? keep + HISTORY_SPARE : 0),
-    wp: keep,
-  });
+  return make(newBranch(branches.i), newBranch(branches.q), new Float64Array(2 * keep));
 }

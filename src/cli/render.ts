@@ -4,7 +4,7 @@
  * output levels read back from what was written, the predicted suppression, and the transmitting
  * cautions.
  */
-import { readFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { cautionsText } from '../core/cautions.js';
 import { OrthotoneError } from '../core/errors.js';
 import type { Trims } from '../core/trims.js';
@@ -48,6 +48,8 @@ trims and sideband:
 output:
   --out FILE.wav         the I/Q file to write (required)
   --encoding E           float32 (default) | int24 | int16
+  --vectors FILE.csv     also write test vectors for a firmware port: n,input,i,q per sample
+                         (float32 values, 9 significant digits; trims and network as above)
   --json                 print the report as JSON
 design options (without a network file):
   --rate HZ --band LO:HI --method fir|allpass|auto --target DB --taps N --sections N
@@ -142,6 +144,19 @@ function trimsFromOptions(v: Record<string, unknown>): Partial<Trims> {
 }
 
 /**
+ * Writes firmware test vectors as CSV: `n,input,i,q`, one row per sample, float32 values at 9
+ * significant digits (enough to round-trip binary32), RFC 4180 layout.
+ * @throws Node file-system errors when FILE cannot be written (reported as one line by the CLI).
+ */
+function writeVectors(file: string, x: Float32Array, i: Float32Array, q: Float32Array): void {
+  const g = (v: number): string => String(Number(v.toPrecision(9)));
+  const rows = new Array<string>(x.length + 1);
+  rows[0] = 'n,input,i,q';
+  for (let k = 0; k < x.length; k++) rows[k + 1] = `${k},${g(x[k]!)},${g(i[k]!)},${g(q[k]!)}`;
+  writeFileSync(file, `${rows.join('\n')}\n`);
+}
+
+/**
  * Runs `orthotone render`; returns the exit status (0).
  * @throws {UsageError} for bad options, an unreadable or silent input, or an unreadable network
  *   file; OrthotoneError (INVALID_DOCUMENT for a bad network document, INVALID_ARGUMENT for trims,
@@ -183,6 +198,7 @@ export async function run(argv: string[]): Promise<number> {
       'dc-q': { type: 'string' },
       out: { type: 'string' },
       encoding: { type: 'string' },
+      vectors: { type: 'string' },
       json: { type: 'boolean' },
       help: { type: 'boolean', short: 'h' },
     },
@@ -286,20 +302,21 @@ export async function run(argv: string[]): Promise<number> {
   const gen = createQuadratureGenerator(net, { trims, sideband });
   const i = new Float32Array(frames);
   const q = new Float32Array(frames);
+  const x = spec ? new Float32Array(frames) : input!;
   if (spec) {
     const src = createSignalSource(spec, fs);
-    const block = new Float32Array(4096);
-    for (let o = 0; o < frames; o += block.length) {
-      const n = Math.min(block.length, frames - o);
-      const b = n === block.length ? block : block.subarray(0, n);
+    for (let o = 0; o < frames; o += 4096) {
+      const n = Math.min(4096, frames - o);
+      const b = x.subarray(o, o + n);
       src.fill(b);
       gen.process(b, i.subarray(o, o + n), q.subarray(o, o + n));
     }
   } else {
-    gen.process(input!, i, q);
+    gen.process(x, i, q);
   }
   const stats = { ...gen.stats };
   const report = await writeIqWavFile(v.out, i, q, fs, encoding);
+  if (typeof v.vectors === 'string') writeVectors(v.vectors, x, i, q);
 
   // Realised levels, read back from the output.
   let peakI = 0;
@@ -413,6 +430,7 @@ export async function run(argv: string[]): Promise<number> {
       'wrote',
       `${v.out} (${encoding}, stereo: left I, right Q, ${fs} Hz, ${frames} frames, ${fixed(frames / fs, 3)} s; I/Q delay through the trims ${gen.trimLatencySamples} samples)`,
     ]);
+    if (typeof v.vectors === 'string') pairs.push(['vectors', `${v.vectors} (${frames} rows: n,input,i,q)`]);
     process.stdout.write(formatPairs(pairs));
   }
   for (const w of warnings) process.stderr.write(`${w}\n`);

@@ -1,5 +1,5 @@
 import { execFileSync, spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -155,6 +155,39 @@ describe('orthotone render', () => {
     expect(r.code).toBe(0);
     expect(r.out).toMatch(/signal +input .*peak -3.00 dBFS/);
     expect(r.out).toMatch(/48000 frames/);
+  });
+
+  it('--vectors: the CSV holds the input and exactly the I/Q samples written to the WAV', () => {
+    const wav = join(dir, 'vec.wav');
+    const csv = join(dir, 'vec.csv');
+    const r = render([
+      netFile,
+      '--tone',
+      '1000',
+      '--duration',
+      '0.05',
+      '--phase-deg',
+      '1',
+      '--out',
+      wav,
+      '--vectors',
+      csv,
+    ]);
+    expect(r.code).toBe(0);
+    expect(r.out).toMatch(/vectors +.*vec\.csv \(2400 rows: n,input,i,q\)/);
+    const rows = readFileSync(csv, 'utf8').trim().split('\n');
+    expect(rows[0]).toBe('n,input,i,q');
+    expect(rows).toHaveLength(2401);
+    const { channels } = decodeWav(readFileSync(wav));
+    for (const k of [0, 1, 777, 2399]) {
+      const [n, x, i, q] = rows[k + 1]!.split(',').map(Number);
+      expect(n).toBe(k);
+      // 9 significant digits round-trip binary32 exactly (IEEE 754-2019 §5.12.2).
+      expect(Math.fround(i!)).toBe(channels[0]![k]);
+      expect(Math.fround(q!)).toBe(channels[1]![k]);
+      // The default tone level is -6 dBFS (AES17: peak 10^(-6/20)).
+      expect(x).toBeCloseTo(10 ** (-6 / 20) * Math.cos((2 * Math.PI * 1000 * k) / 48000), 6);
+    }
   });
 
   it('usage errors: one line, exit 2', () => {

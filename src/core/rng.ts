@@ -6,11 +6,25 @@
  * splitmix32, with Box–Muller normals.
  */
 export interface Rng {
-  /** Uniform in [0, 1). */
+  /**
+   * Uniform in [0, 1), a multiple of 2^−32 (dimensionless). Method: sfc32 (C. Doty-Humphrey,
+   * PractRand), one 32-bit output per call.
+   * @throws never
+   */
   uniform(): number;
-  /** Standard normal (mean 0, standard deviation 1). */
+  /**
+   * Standard normal (mean 0, standard deviation 1, dimensionless). Method: Box–Muller (Box & Muller,
+   * Ann. Math. Stat. 29:610, 1958) on two uniforms; the second value of each pair is kept and
+   * returned by the next call.
+   * @throws never
+   */
   normal(): number;
-  /** The generator's internal state, for clone/resume. */
+  /**
+   * The generator's internal state (four 32-bit words), for clone/resume with `createRng(seed, state)`.
+   * It does not include a pending Box–Muller spare: resuming after an odd number of `normal()` calls
+   * continues the uniforms exactly but starts a fresh normal pair.
+   * @throws never
+   */
   state(): [number, number, number, number];
 }
 

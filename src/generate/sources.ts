@@ -77,22 +77,57 @@ export interface SignalSource {
   /** Sample rate, Hz. */
   readonly sampleRate: number;
   readonly levels: Readonly<SignalLevels>;
-  /** Writes the next `out.length` samples. Allocation-free. */
+  /**
+   * Writes the next `out.length` samples, in full-scale units (1.0 = the peak of a 0 dBFS sine,
+   * AES17), and advances the source by that many samples. Tones and sweeps are computed from the
+   * absolute sample index (exponential sweep: Farina, AES preprint 5093, 2000), so the output does
+   * not depend on how it is split into blocks; noise is Box–Muller on the seeded generator, band-passed
+   * by a Kaiser-windowed FIR when the spec has a band. Allocation-free; a zero-length `out` is a no-op.
+   * @param out caller-owned buffer, overwritten in full.
+   * @throws never
+   */
   fill(out: Float32Array): void;
-  /** Back to sample 0 (noise: back to its seed). */
+  /**
+   * Back to sample 0 (noise: back to its seed, with the band-pass history cleared to silence).
+   * @throws never
+   */
   reset(): void;
-  /** An independent copy that continues bit-identically. */
+  /**
+   * An independent copy whose future output is bit-identical to this one's (allocates: not for the
+   * audio path).
+   * @throws never
+   */
   clone(): SignalSource;
 }
 
 /** A block source of the ideal analytic I/Q version of a test signal. */
 export interface AnalyticSource {
   readonly spec: Readonly<SignalSpec>;
+  /** Sample rate, Hz. */
   readonly sampleRate: number;
   readonly levels: Readonly<SignalLevels>;
-  /** Writes the next samples: I = Re, Q = Im of the analytic signal (Q lags I by 90°). */
+  /**
+   * Writes the next `outI.length` samples: I = Re, Q = Im of the analytic signal (Q lags I by 90°,
+   * DESIGN.md §2), in full-scale units (1.0 = the peak of a 0 dBFS sine, AES17), and advances the
+   * source by that many samples. Tones and sweeps: `A·cos φ(n)`, `A·sin φ(n)` from the absolute sample
+   * index; band-limited noise: the Kaiser band-pass output and its exact Hilbert transform
+   * ({@link bandNoiseFilters}). Allocation-free.
+   * @param outI caller-owned buffer for I, overwritten in full.
+   * @param outQ caller-owned buffer for Q, the same length as `outI`.
+   * @throws {OrthotoneError} BUFFER_MISMATCH when `outI` and `outQ` differ in length (nothing is
+   *   written and the source does not advance).
+   */
   fill(outI: Float32Array, outQ: Float32Array): void;
+  /**
+   * Back to sample 0 (noise: back to its seed, with the filter history cleared to silence).
+   * @throws never
+   */
   reset(): void;
+  /**
+   * An independent copy whose future output is bit-identical to this one's (allocates: not for the
+   * audio path).
+   * @throws never
+   */
   clone(): AnalyticSource;
 }
 

@@ -254,32 +254,51 @@ export class TrimStage {
     return this.sidebandSel === 'lower' ? -1 : 1;
   }
 
-  /** The trims the stage is at or ramping towards. */
+  /**
+   * The trims the stage is at or ramping towards (DESIGN.md §4 units: gainDb dB, phaseDeg degrees,
+   * skewSamples samples, dcI/dcQ full-scale units).
+   * @throws never
+   */
   get trims(): Readonly<Trims> {
     return this.targetTrims;
   }
 
-  /** The selected sideband. */
+  /**
+   * The selected sideband (the target, also while a change is still ramping).
+   * @throws never
+   */
   get sideband(): Sideband {
     return this.sidebandSel;
   }
 
-  /** The correction in use, or null. */
+  /**
+   * The correction in use (a copy of the taps given to {@link TrimStage.setCorrection}, taps
+   * dimensionless), or null.
+   * @throws never
+   */
   get correction(): Correction | null {
     return this.correctionDoc;
   }
 
-  /** True while a trim or sideband change is still ramping. */
+  /**
+   * True while a trim or sideband change is still ramping.
+   * @throws never
+   */
   get ramping(): boolean {
     return this.rampPos < this.rampLen;
   }
 
   /**
    * Changes some trims (the others keep their values); ramps from the current values.
-   * @param t trims to change (DESIGN.md §4 units).
-   * @param opts `rampSeconds` overrides the stage's ramp time for this change (0 = immediate).
+   * The ramp is linear per sample in the natural units `A = s·g·cos φ`, `B = g·sin φ`, skew, dcI,
+   * dcQ (common practice, no source: a linear parameter ramp to avoid clicks).
+   * @param t trims to change (DESIGN.md §4 units: gainDb dB, phaseDeg degrees, skewSamples samples,
+   *   dcI/dcQ full-scale units).
+   * @param opts `rampSeconds` overrides the stage's ramp time for this change, seconds, 0…10
+   *   (0 = immediate).
    * @throws {OrthotoneError} INVALID_ARGUMENT when a trim is non-finite or out of range
-   *   (`validateTrims`), or |skewSamples| exceeds `maxSkewSamples`.
+   *   (`validateTrims`), |skewSamples| exceeds `maxSkewSamples`, or `opts.rampSeconds` is outside
+   *   0…10 s; nothing changes then.
    */
   setTrims(t: Partial<Trims>, opts?: { rampSeconds?: number }): void {
     validateTrims(t);
@@ -296,8 +315,11 @@ export class TrimStage {
   }
 
   /**
-   * Selects the sideband (Q negated for 'lower'), ramped like a trim change.
-   * @throws {OrthotoneError} INVALID_ARGUMENT for anything but 'upper' or 'lower'.
+   * Selects the sideband (Q negated for 'lower', DESIGN.md §2), ramped like a trim change.
+   * @param sideband 'upper' or 'lower'.
+   * @param opts `rampSeconds` overrides the stage's ramp time for this change, seconds, 0…10.
+   * @throws {OrthotoneError} INVALID_ARGUMENT for anything but 'upper' or 'lower', or an
+   *   `opts.rampSeconds` outside 0…10 s.
    */
   setSideband(sideband: Sideband, opts?: { rampSeconds?: number }): void {
     requireOneOf('sideband', sideband, ['upper', 'lower'] as const);
@@ -309,6 +331,11 @@ export class TrimStage {
   /**
    * Sets or removes (null) the frequency-dependent correction; it takes effect at the next block.
    * Its taps are copied into storage preallocated at construction: nothing is allocated later.
+   * Method: a widely-linear FIR pair `Q_c = qFromQ ∗ Q' + qFromI ∗ I'` (Anttila, Valkama & Renfors,
+   * IEEE TCAS-II, Apr 2008).
+   * @param c the correction (taps dimensionless, odd length), or null to remove it.
+   * @throws {OrthotoneError} INVALID_ARGUMENT when the stage was created with maxCorrectionTaps 0
+   *   (and `c` is not null).
    * @throws {OrthotoneError} INVALID_ARGUMENT when the correction is malformed or longer than
    *   `maxCorrectionTaps` (see `validateCorrection`).
    */
@@ -370,7 +397,11 @@ export class TrimStage {
     fractionalDelayTaps(this.steadyFrac, this.steadyTaps);
   }
 
-  /** Clears the signal state, ends any ramp at its target and zeroes the stats; keeps the settings. */
+  /**
+   * Clears the signal state (histories) to silence, ends any ramp at its target and zeroes the stats;
+   * keeps the settings (trims, sideband, correction).
+   * @throws never
+   */
   reset(): void {
     this.cur.set(this.tgt);
     this.rampPos = 0;
@@ -384,7 +415,10 @@ export class TrimStage {
     this.resetStats();
   }
 
-  /** Zeroes the counters. */
+  /**
+   * Zeroes the counters in {@link TrimStage.stats} (the same object, updated in place).
+   * @throws never
+   */
   resetStats(): void {
     const s = this.stats;
     s.samplesOut = 0;
@@ -394,7 +428,13 @@ export class TrimStage {
     s.peak = 0;
   }
 
-  /** An independent copy in the same state; its future output is bit-identical. */
+  /**
+   * An independent copy in the same state; its future output is bit-identical (allocates: not for
+   * the audio path).
+   * @throws {OrthotoneError} INVALID_ARGUMENT in one corner only: a non-integer sampleRate with a
+   *   ramp time so close to the 10 s limit that the ramp, rounded to whole samples and divided back
+   *   by the sample rate, exceeds 10 s (e.g. 1000.05 Hz with rampSeconds 10). Otherwise never.
+   */
   clone(): TrimStage {
     const c = new TrimStage(this.sampleRate, {
       rampSeconds: this.rampDefault / this.sampleRate,
@@ -432,7 +472,12 @@ export class TrimStage {
 
   /**
    * Applies the trims to an I/Q pair (e.g. an ideal analytic source). Allocation-free.
-   * Non-finite input samples are replaced by 0 and counted.
+   * Non-finite input samples are replaced by 0 and counted; input beyond ±{@link INPUT_LIMIT} is
+   * limited and counted; output is guarded (see the file comment). Method: DESIGN.md §4.
+   * @param inI I input, full-scale units (1.0 = the peak of a 0 dBFS sine).
+   * @param inQ Q input, full-scale units, same length.
+   * @param outI I output, full-scale units, same length; delayed by {@link TrimStage.latencySamples}.
+   * @param outQ Q output, full-scale units, same length.
    * @throws {OrthotoneError} BUFFER_MISMATCH when the four arrays differ in length.
    */
   process(inI: Float32Array, inQ: Float32Array, outI: Float32Array, outQ: Float32Array): void {
@@ -471,7 +516,17 @@ export class TrimStage {
 
   /**
    * Runs one chunk (n ≤ RUNTIME_CHUNK) of network output `iIn`, `qIn` (indices 0…n−1) through the
-   * trims into `outI[o…]`, `outQ[o…]`. Used by the generator; allocation-free.
+   * trims into `outI[o…]`, `outQ[o…]`. Used by the generator; allocation-free. The input must already
+   * be sanitised (finite, within ±{@link INPUT_LIMIT}: see {@link sanitiseInput}); the output is
+   * guarded. Method: DESIGN.md §4.
+   * @param iIn network I output, full-scale units.
+   * @param qIn network Q output, full-scale units.
+   * @param n number of samples, a whole number 0…RUNTIME_CHUNK.
+   * @param outI I output, full-scale units; indices o…o+n−1 are written.
+   * @param outQ Q output, full-scale units; indices o…o+n−1 are written.
+   * @param o offset into `outI` and `outQ`, samples.
+   * @throws never (hot path: `n`, `o` and the lengths are not checked; out-of-range values give
+   *   unspecified output, never an exception).
    */
   processChunk(
     iIn: Float64Array,

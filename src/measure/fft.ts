@@ -12,12 +12,25 @@ export interface Fft {
   readonly size: number;
   /**
    * Forward transform of a real frame: `input` has `size` samples; `out` receives the full complex
-   * spectrum interleaved (re, im), `2·size` values, bin k at `out[2k], out[2k+1]`.
+   * spectrum interleaved (re, im), `2·size` values, bin k at `out[2k], out[2k+1]` (bin k is
+   * `k·sampleRate/size` Hz). Unnormalised, `X[k] = Σ x[n]·e^{−j2πkn/N}`: the output is in the input's
+   * units times samples (a real tone of amplitude A with window w reads `|X[k]| = A·Σw/2`, Heinzel,
+   * Rüdiger & Schilling 2002). Method: fft.js radix-4 `realTransform`, then `completeSpectrum` to
+   * fill the upper half by conjugate symmetry (fft.js README). Allocation-free.
+   * @param input `size` real samples (not modified).
+   * @param out caller-owned, `2·size` values, overwritten; must not be `input`.
+   * @throws never (lengths are not checked here: callers allocate from `size`; wrong lengths give
+   *   unspecified output, never an exception from this wrapper).
    */
   realForward(input: Float64Array, out: Float64Array): void;
   /**
    * Forward transform of a complex frame, both interleaved (re, im) with `2·size` values.
-   * Sign convention: `X[k] = Σ x[n]·e^{−j2πkn/N}`.
+   * Sign convention: `X[k] = Σ x[n]·e^{−j2πkn/N}`, unnormalised (input units times samples; a
+   * complex tone `A·e^{jωn}` reads `|X[k]| = A·Σw`). Method: fft.js radix-4 `transform` (fft.js
+   * README). Allocation-free.
+   * @param input `size` complex samples, interleaved (re, im), `2·size` values (not modified).
+   * @param out caller-owned, `2·size` values, overwritten; must not be `input`.
+   * @throws never (lengths are not checked here, as for `realForward`).
    */
   complexForward(input: Float64Array, out: Float64Array): void;
 }

@@ -162,7 +162,23 @@ function mergeToneOptions(options: Partial<ToneOptions>): ToneOptions {
 /** Reads tones from one capture's spectrum; several reads share one spectrum. */
 export interface ToneReader {
   readonly spectrum: Spectrum;
-  /** Reads one tone (validated against Nyquist like the tones given at creation). */
+  /**
+   * Reads one tone from the shared spectrum: locates the strongest bin within the search span of the
+   * nominal frequency, refines the frequency between bins when the tone stands clear of the floor
+   * and the leakage of strong components (iterated parabolic interpolation of the directly evaluated,
+   * frame-averaged windowed transform: Rife & Boorstyn, IEEE Trans. Inf. Theory 20(5):591, 1974),
+   * and reads its level there, with the local floor subtracted when `subtractFloor` is set
+   * (Heinzel, Rüdiger & Schilling 2002 §10 scaling). Validated against Nyquist like the tones given
+   * at creation. The frequency need not be one of the features given at creation, but a tone closer
+   * than the planned resolution to another component is not separated from it.
+   * @param request the nominal frequency, Hz, or `{ hz, refine, searchHz }` (`searchHz` in Hz,
+   *   capped at a third of the way to the nearest other feature; `refine: 'never'` reads at `hz`).
+   * @returns the reading: frequencies in Hz, `amplitude` peak in full-scale units, `levelDbfs` and
+   *   `floorDbfs` in dBFS (AES17), `floorDbfsPerHz` in dBFS/Hz, `aboveFloorDb` and `uncertaintyDb`
+   *   in dB.
+   * @throws {OrthotoneError} INVALID_ARGUMENT when the frequency is not finite, or is outside
+   *   0…fs/2 (real capture) or beyond ±fs/2 (I/Q capture).
+   */
   read(request: ToneRequest): ToneReading;
 }
 

@@ -37,11 +37,44 @@ export const DEFAULT_ANALYZER_OPTIONS = Object.freeze({
 
 /** A reading analyzer. */
 export interface Analyzer {
-  /** Unwanted-sideband level relative to the wanted tone, dBc, as the analyzer shows it. */
+  /**
+   * Unwanted-sideband level relative to the wanted tone, dBc, as the analyzer shows it: the
+   * exciter's analytic level ({@link VirtualExciter.response}) power-added to the floor, plus
+   * Gaussian reading noise and, with probability `outlierRate`, ±`outlierDb` (reading model of
+   * DESIGN.md §6; power addition of incoherent components, common practice, no source). Counts as
+   * one reading (also when it fails).
+   * @param toneHz tone frequency, Hz, signed (negative = lower sideband).
+   * @param trims DESIGN.md §4 units: gainDb dB, phaseDeg degrees, skewSamples samples, dcI/dcQ
+   *   full-scale units.
+   * @param toneAmplitude peak tone amplitude, full-scale units (default 1 = 0 dBFS).
+   * @returns the reading, dBc.
+   * @throws {OrthotoneError} MEASUREMENT_FAILED with probability `failureRate` (a simulated failed
+   *   reading); INVALID_ARGUMENT from {@link VirtualExciter.response} for a non-finite tone or a trim
+   *   out of range (no reading is counted then).
+   */
   readSideband(toneHz: number, trims: Partial<Trims>, toneAmplitude?: number): number;
-  /** Carrier level relative to the wanted tone, dBc, as the analyzer shows it. */
+  /**
+   * Carrier level relative to the wanted tone, dBc, as the analyzer shows it (same reading model
+   * as {@link Analyzer.readSideband}). Counts as one reading.
+   * @param toneHz tone frequency, Hz, signed (negative = lower sideband).
+   * @param trims DESIGN.md §4 units (dcI/dcQ in full-scale units move the carrier).
+   * @param toneAmplitude peak tone amplitude, full-scale units (default 1).
+   * @returns the reading, dBc.
+   * @throws {OrthotoneError} MEASUREMENT_FAILED with probability `failureRate`; INVALID_ARGUMENT
+   *   for a non-finite tone or a trim out of range.
+   */
   readCarrier(toneHz: number, trims: Partial<Trims>, toneAmplitude?: number): number;
-  /** Both from one setting (counts as two readings). */
+  /**
+   * Both from one setting (counts as two readings: sideband first, then carrier; each with its own
+   * noise, outlier and failure draw).
+   * @param toneHz tone frequency, Hz, signed.
+   * @param trims DESIGN.md §4 units.
+   * @param toneAmplitude peak tone amplitude, full-scale units (default 1).
+   * @returns `sidebandDbc` and `carrierDbc`, dBc.
+   * @throws {OrthotoneError} MEASUREMENT_FAILED when either reading fails (if the sideband reading
+   *   fails, the carrier is not read and only one reading is counted); INVALID_ARGUMENT for a
+   *   non-finite tone or a trim out of range.
+   */
   readBoth(
     toneHz: number,
     trims: Partial<Trims>,

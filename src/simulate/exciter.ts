@@ -40,6 +40,7 @@ export interface VirtualExciterOptions {
 /** A seeded virtual exciter and its receiver. */
 export interface VirtualExciter {
   readonly model: ExciterModel;
+  /** Sample rate of the I/Q blocks, Hz. */
   readonly sampleRate: number;
   /** Delay of the output relative to the input, samples. */
   readonly latencySamples: number;
@@ -47,18 +48,46 @@ export interface VirtualExciter {
    * Runs one block. `i`, `q` in full-scale units; writes the receiver's complex baseband into
    * `outRe`, `outIm` (full-scale units: an ideal device gives `I + jQ` back, delayed). Processes
    * `min` of the four lengths; allocation-free; output independent of how the stream is cut into
-   * blocks; never throws, never emits NaN (non-finite input samples are read as 0).
+   * blocks; never emits NaN (non-finite input samples are read as 0). The output is delayed by
+   * {@link VirtualExciter.latencySamples} samples. Method: the sampled chain of the file comment —
+   * TPDF-dithered quantisation (common practice, no source), a 64-tap least-squares FIR for the
+   * anti-imaging low-pass and skew (Parks & Burrus 1987 §3.2, from memory), the coupling high-pass by
+   * the prewarped bilinear transform, and the four-phase mixer's widely-linear combination
+   * `z = α·x̃_I + β·x̃_Q + κ` (response.ts), plus the receiver's complex noise at `floorDbc` dBc/Hz.
+   * @param i I samples, full-scale units (1.0 = the peak of a 0 dBFS sine).
+   * @param q Q samples, full-scale units.
+   * @param outRe real part of the receiver's baseband, relative to the tuned LO harmonic, full-scale units.
+   * @param outIm imaginary part, full-scale units.
+   * @throws never
    */
   process(i: Float32Array, q: Float32Array, outRe: Float32Array, outIm: Float32Array): void;
-  /** Clears filter states and restarts the noise sequences from the seed. */
+  /**
+   * Clears filter states to silence and restarts the dither, converter and receiver noise sequences
+   * from the seed (allocates a little: not for the audio path).
+   * @throws never
+   */
   reset(): void;
-  /** An independent copy in the same state: both continue bit-identically. */
+  /**
+   * An independent copy in the same state (filter histories and noise generator position): both
+   * continue bit-identically. Allocates.
+   * @throws never
+   */
   clone(): VirtualExciter;
   /**
    * Noiseless steady-state response to an ideal I/Q tone at `toneHz` (negative = lower sideband)
    * and `toneAmplitude` (full scale 1), with `trims` applied digitally before the exciter
    * (DESIGN.md §4): wanted level in dBFS, unwanted and carrier in dBc, at the LO fundamental.
-   * Analytic and fast (for Monte Carlo and calibration benches).
+   * Analytic and fast (for Monte Carlo and calibration benches). Ignores the converter, dither and
+   * receiver noise; the analog filters are the exact analog responses, not the sampled FIR that
+   * `process` runs. Method: {@link toneResponse} (four-phase mixer Fourier analysis, image rejection
+   * per K. Schmidt, QEX Aug 1994 §2). Levels are floored at −300 dB; a zero `toneAmplitude` gives NaN
+   * for the dBc figures. The tone frequency is not checked against Nyquist.
+   * @param toneHz tone frequency, Hz, signed (negative = lower sideband).
+   * @param trims DESIGN.md §4 units: gainDb dB, phaseDeg degrees, skewSamples samples at this
+   *   exciter's sample rate, dcI/dcQ full-scale units.
+   * @param toneAmplitude peak amplitude of the I/Q tone, full-scale units (default 1 = 0 dBFS).
+   * @throws {OrthotoneError} INVALID_ARGUMENT when `toneHz` or `toneAmplitude` is not finite, or a
+   *   trim is non-finite or out of range (`validateTrims`).
    */
   response(
     toneHz: number,
@@ -67,7 +96,16 @@ export interface VirtualExciter {
   ): { wantedDbfs: number; unwantedDbc: number; carrierDbc: number };
   /**
    * Response at LO harmonic `n`: the component at +toneHz and at −toneHz around n·f_LO and the
-   * carrier leak there, each relative to the wanted tone at the fundamental, dBc.
+   * carrier leak there, each relative to the wanted tone at the fundamental, dBc (floored at −300 dB).
+   * Noiseless and analytic like {@link VirtualExciter.response}. Method: the 25%-duty switching
+   * functions' Fourier series `c_n = (2/(nπ))·sin(nπ/4)` (response.ts; e.g. the 3rd harmonic, −9.54 dB,
+   * carries the opposite sideband, the 5th the same; multiples of 4 are nulls, −300 dBc).
+   * @param toneHz tone frequency, Hz, signed (negative = lower sideband).
+   * @param n LO harmonic, a whole number 1…15.
+   * @param trims DESIGN.md §4 units (default none).
+   * @param toneAmplitude peak amplitude, full-scale units (default 1).
+   * @throws {OrthotoneError} INVALID_ARGUMENT when `n` is not a whole number 1…15, `toneHz` or
+   *   `toneAmplitude` is not finite, or a trim is out of range.
    */
   harmonicResponse(
     toneHz: number,

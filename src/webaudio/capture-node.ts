@@ -37,10 +37,24 @@ export interface CaptureResult {
 export interface CaptureNode<N extends WorkletNodeLike = WorkletNodeLike> {
   readonly node: N;
   /**
-   * Records `frames` frames, starting after `skipFrames` (default 0) from the next quantum.
-   * @throws {OrthotoneError} INVALID_ARGUMENT when frames is not 1…2^20 or skipFrames is negative.
+   * Records `frames` frames of the node's input, starting after `skipFrames` (default 0) from the
+   * next quantum the processor runs. Several captures may run at once. Samples are as the audio
+   * graph carries them (full-scale units, 1.0 = the peak of a 0 dBFS sine).
+   * @param frames length of the capture, sample frames at the context's sample rate, 1…2^20.
+   * @param options `skipFrames`: frames to skip first, a whole number 0…2^30.
+   * @returns resolves with one Float32Array per channel and `startFrame`, the context frame (samples)
+   *   of the first recorded sample; rejects with OrthotoneError INVALID_ARGUMENT after `dispose`, or
+   *   ABORTED when the node is disposed before the capture completes. If the processor stops with an
+   *   error, the promise does not settle: race it against a timeout when that matters.
+   * @throws {OrthotoneError} INVALID_ARGUMENT (synchronously) when `frames` is not a whole number
+   *   1…2^20 or `skipFrames` is not a whole number 0…2^30.
    */
   capture(frames: number, options?: { skipFrames?: number }): Promise<CaptureResult>;
+  /**
+   * Stops the processor and disconnects the node; pending captures are rejected with ABORTED.
+   * Idempotent: a second call does nothing.
+   * @throws never (a node already disconnected is ignored).
+   */
   dispose(): void;
 }
 

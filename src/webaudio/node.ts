@@ -90,41 +90,99 @@ export interface QuadratureNode<N extends WorkletNodeLike = WorkletNodeLike> {
   readonly node: N;
   /** The AudioParams (k-rate): gainDb, phaseDeg, skewSamples, dcI, dcQ, levelDb. Automate freely. */
   readonly params: Readonly<Record<QuadratureParamName, AudioParamLike>>;
+  /** The context's sample rate, Hz (equal to the network's). */
   readonly sampleRate: number;
   /** The network currently requested (the last one passed to the factory or `setNetwork`). */
   readonly network: Network;
   /**
    * Sets trims through the AudioParams, ramping linearly over `rampSeconds` (default 0: a step in
-   * the parameter, which the generator itself still ramps click-free).
-   * @throws {OrthotoneError} INVALID_ARGUMENT for an out-of-range trim (see validateTrims).
+   * the parameter, which the generator itself still ramps click-free). Trims not given keep their
+   * values; automation already scheduled on a given trim's AudioParam after now is cancelled. The
+   * params are k-rate, so the change is applied per 128-frame quantum (Web Audio API, AudioParam
+   * automation). Works also after `dispose` (it then changes nothing audible).
+   * @param trims DESIGN.md §4 units: gainDb dB, phaseDeg degrees, skewSamples samples, dcI/dcQ
+   *   full-scale units.
+   * @param options `rampSeconds`: ramp time, seconds, 0…60 (default 0).
+   * @throws {OrthotoneError} INVALID_ARGUMENT for an out-of-range or non-finite trim (see
+   *   validateTrims) or `rampSeconds` outside 0…60 s; nothing is scheduled then.
    */
   setTrims(trims: Partial<Trims>, options?: { rampSeconds?: number }): void;
-  /** The trims as the AudioParams hold them now. */
+  /**
+   * The trims as the AudioParams hold them now (their `value`: during a ramp, the value the context
+   * last computed), in DESIGN.md §4 units (gainDb dB, phaseDeg degrees, skewSamples samples, dcI/dcQ
+   * full-scale units).
+   * @throws never
+   */
   getTrims(): Trims;
   /**
-   * Sets the source level in dB (ramped over `rampSeconds`, default 0.02 s).
-   * @throws {OrthotoneError} INVALID_ARGUMENT when not finite or outside −140…24 dB.
+   * Sets the source level (ramped linearly over `rampSeconds`, default 0.02 s): a gain in dB on the
+   * node's input, or the test source's level in dBFS (tone peak, two-tone PEP, noise RMS: see
+   * `SourceSpec`).
+   * @param levelDb level, dB (dBFS for a test source), −140…24.
+   * @param options `rampSeconds`: ramp time, seconds, 0…60 (default 0.02).
+   * @throws {OrthotoneError} INVALID_ARGUMENT when `levelDb` is not finite or outside −140…24 dB, or
+   *   `rampSeconds` is outside 0…60 s.
    */
   setLevel(levelDb: number, options?: { rampSeconds?: number }): void;
   /**
-   * Swaps the network at a quantum boundary, cross-faded. Resolves when the processor has made the
-   * swap. @throws {OrthotoneError} INVALID_DOCUMENT (synchronously) for a bad document, or when its
-   * sample rate differs from the context's.
+   * Swaps the network at a quantum boundary, cross-faded over `crossfadeSamples`. The document is
+   * validated and its kernels built here first, so a network the kernels refuse never reaches the
+   * audio thread.
+   * @param network a network document (DESIGN.md §3) for the context's sample rate.
+   * @returns resolves with the context frame (samples) at which the processor made the swap; rejects
+   *   with OrthotoneError INVALID_ARGUMENT after `dispose`, MEASUREMENT_FAILED when the node is
+   *   disposed or the processor fails before acknowledging, or the processor's own code if it refuses.
+   * @throws {OrthotoneError} INVALID_DOCUMENT (synchronously, not as a rejection) for a bad document,
+   *   or when its sample rate differs from the context's.
    */
   setNetwork(network: Network): Promise<SwapAck>;
-  /** Swaps the correction filter (null removes it). @throws {OrthotoneError} for a bad correction. */
+  /**
+   * Swaps the frequency-dependent correction (widely-linear FIR pair; null removes it), cross-faded.
+   * The correction is checked against the current network's generator here first.
+   * @param correction the correction (taps dimensionless, odd length up to the generator's
+   *   `maxCorrectionTaps`, 63 by default), or null.
+   * @returns resolves with the swap frame (samples); rejects as for `setNetwork`.
+   * @throws {OrthotoneError} INVALID_ARGUMENT (synchronously) for a malformed correction or one
+   *   longer than the generator supports.
+   */
   setCorrection(correction: Correction | null): Promise<SwapAck>;
-  /** Swaps the source. @throws {OrthotoneError} INVALID_ARGUMENT for a bad source spec. */
+  /**
+   * Swaps the source (the node's input, silence, or a unit-level test signal scaled by `levelDb`),
+   * cross-faded. The source is built here first, so a bad spec never reaches the audio thread.
+   * @param source see `SourceSpec`: frequencies in Hz (below Nyquist), durations in seconds.
+   * @returns resolves with the swap frame (samples); rejects as for `setNetwork`.
+   * @throws {OrthotoneError} INVALID_ARGUMENT (synchronously) for an unknown kind, a bad frequency,
+   *   duration or band, or a multitone list outside 2…32 tones or with a repeated tone.
+   */
   setSource(source: SourceSpec): Promise<SwapAck>;
-  /** Selects the sideband (negates Q for lower), cross-faded. */
+  /**
+   * Selects the sideband (negates Q for lower, DESIGN.md §2), cross-faded.
+   * @param sideband 'upper' or 'lower'.
+   * @returns resolves with the swap frame (samples); rejects as for `setNetwork`.
+   * @throws {OrthotoneError} INVALID_ARGUMENT (synchronously) for anything but 'upper' or 'lower'.
+   */
   setSideband(sideband: Sideband): Promise<SwapAck>;
-  /** Clears the network and source state (a fresh start; may click). */
+  /**
+   * Clears the network and source state (a fresh start; may click). Settings are kept.
+   * @returns resolves with the frame (samples) at which the reset took effect; rejects as for
+   *   `setNetwork`.
+   * @throws never (failures arrive as a rejected promise).
+   */
   reset(): Promise<SwapAck>;
-  /** The processor's counters. */
+  /**
+   * The processor's counters (quanta, frames, faults, swaps; `peak` in full-scale units).
+   * @returns resolves with a snapshot; rejects with OrthotoneError INVALID_ARGUMENT after `dispose`,
+   *   or MEASUREMENT_FAILED when the node is disposed or the processor fails before answering.
+   * @throws never (failures arrive as a rejected promise).
+   */
   stats(): Promise<ProcessorStats>;
   /** Called when the processor reports a fault (process() caught an exception). */
   onfault: ((fault: ProcessorFault) => void) | null;
-  /** Stops the processor and disconnects the node. */
+  /**
+   * Stops the processor and disconnects the node; every pending swap or stats request is rejected
+   * with MEASUREMENT_FAILED. Idempotent: a second call does nothing.
+   * @throws never (a node already disconnected is ignored).
+   */
   dispose(): void;
 }
 

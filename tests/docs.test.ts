@@ -151,13 +151,13 @@ function isPublicMember(m: ts.ClassElement): boolean {
  */
 function checkMembers(fileName: string, text: string): DocFinding[] {
   const sf = ts.createSourceFile(fileName, text, ts.ScriptTarget.Latest, true, ts.ScriptKind.TS);
-  const owners = new Map<string, ts.InterfaceDeclaration[] | ts.ClassDeclaration[]>();
+  const owners = new Map<string, (ts.InterfaceDeclaration | ts.ClassDeclaration)[]>();
   const exported = new Set<string>();
   for (const st of sf.statements) {
     if ((ts.isInterfaceDeclaration(st) || ts.isClassDeclaration(st)) && st.name !== undefined) {
-      const list = (owners.get(st.name.text) ?? []) as ts.Node[];
+      const list = owners.get(st.name.text) ?? [];
       list.push(st);
-      owners.set(st.name.text, list as ts.InterfaceDeclaration[]);
+      owners.set(st.name.text, list);
       if (hasExportModifier(st)) exported.add(st.name.text);
     } else if (ts.isExportDeclaration(st) && st.moduleSpecifier === undefined && st.exportClause) {
       if (ts.isNamedExports(st.exportClause)) {

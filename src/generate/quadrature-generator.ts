@@ -72,8 +72,7 @@ export interface QuadratureGenerator {
   reset(): void;
   /**
    * An independent copy; its future output is bit-identical to this one's.
-   * @throws {OrthotoneError} INVALID_ARGUMENT only in the corner described at {@link TrimStage.clone}
-   *   (a non-integer sampleRate with rampSeconds within half a sample of 10 s); otherwise never.
+   * @throws never
    */
   clone(): QuadratureGenerator;
 }

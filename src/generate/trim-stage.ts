@@ -431,13 +431,13 @@ export class TrimStage {
   /**
    * An independent copy in the same state; its future output is bit-identical (allocates: not for
    * the audio path).
-   * @throws {OrthotoneError} INVALID_ARGUMENT in one corner only: a non-integer sampleRate with a
-   *   ramp time so close to the 10 s limit that the ramp, rounded to whole samples and divided back
-   *   by the sample rate, exceeds 10 s (e.g. 1000.05 Hz with rampSeconds 10). Otherwise never.
+   * @throws never (the state, the ramp length included, is copied in samples).
    */
   clone(): TrimStage {
+    // The ramp length is copied in samples below; rebuilding it from seconds could round past the
+    // 10 s limit at a non-whole sample rate.
     const c = new TrimStage(this.sampleRate, {
-      rampSeconds: this.rampDefault / this.sampleRate,
+      rampSeconds: 0,
       maxSkewSamples: this.maxSkewSamples,
       maxCorrectionTaps: this.maxCorrectionTaps,
     });

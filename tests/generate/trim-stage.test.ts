@@ -102,3 +102,20 @@ describe('trim stage: switching between the steady and the general path', () => 
     }
   });
 });
+
+describe('trim stage: clone', () => {
+  it('never throws, even where the ramp in seconds would round past the 10 s limit', () => {
+    // Found in review: 1000.05 Hz with rampSeconds 10 rebuilt the ramp from seconds and overflowed.
+    const net = niemitaloNetwork(false, 1000.05);
+    const gen = createQuadratureGenerator(net, { rampSeconds: 10 });
+    const x = new Float32Array(64).fill(0.25);
+    const a = [new Float32Array(64), new Float32Array(64)] as const;
+    const b = [new Float32Array(64), new Float32Array(64)] as const;
+    gen.setTrims({ gainDb: 1 });
+    gen.process(x, a[0], a[1]);
+    const copy = gen.clone();
+    gen.process(x, a[0], a[1]);
+    copy.process(x, b[0], b[1]);
+    expect(bitDiffs(a[0], b[0]) + bitDiffs(a[1], b[1])).toBe(0);
+  });
+});

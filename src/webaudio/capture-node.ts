@@ -43,9 +43,9 @@ export interface CaptureNode<N extends WorkletNodeLike = WorkletNodeLike> {
    * @param frames length of the capture, sample frames at the context's sample rate, 1…2^20.
    * @param options `skipFrames`: frames to skip first, a whole number 0…2^30.
    * @returns resolves with one Float32Array per channel and `startFrame`, the context frame (samples)
-   *   of the first recorded sample; rejects with OrthotoneError INVALID_ARGUMENT after `dispose`, or
-   *   ABORTED when the node is disposed before the capture completes. If the processor stops with an
-   *   error, the promise does not settle: race it against a timeout when that matters.
+   *   of the first recorded sample; rejects with OrthotoneError INVALID_ARGUMENT after `dispose`,
+   *   ABORTED when the node is disposed before the capture completes, or MEASUREMENT_FAILED when the
+   *   processor stops with an error (then, and for every later capture).
    * @throws {OrthotoneError} INVALID_ARGUMENT (synchronously) when `frames` is not a whole number
    *   1…2^20 or `skipFrames` is not a whole number 0…2^30.
    */
@@ -100,6 +100,15 @@ export async function createCaptureNode<N extends WorkletNodeLike = WorkletNodeL
     else p.reject(new OrthotoneError('INVALID_ARGUMENT', m.message));
   };
   let disposed = false;
+  let failed = false;
+  // A processor that stops with an error never answers: fail what is pending and what comes next.
+  node.onprocessorerror = () => {
+    failed = true;
+    for (const [, p] of pending) {
+      p.reject(new OrthotoneError('MEASUREMENT_FAILED', 'the capture processor stopped with an error'));
+    }
+    pending.clear();
+  };
   return {
     node,
     capture(frames, opts) {
@@ -107,6 +116,14 @@ export async function createCaptureNode<N extends WorkletNodeLike = WorkletNodeL
       const skipFrames = requireInteger('skipFrames', opts?.skipFrames ?? 0, 0, 1 << 30);
       if (disposed) {
         return Promise.reject(new OrthotoneError('INVALID_ARGUMENT', 'the capture node was disposed'));
+      }
+      if (failed) {
+        return Promise.reject(
+          new OrthotoneError(
+            'MEASUREMENT_FAILED',
+            'the capture processor stopped with an error: create a new node',
+          ),
+        );
       }
       const id = nextId++;
       return new Promise<CaptureResult>((resolve, reject) => {

@@ -94,3 +94,31 @@ describe('createTrimReader validation', () => {
     expect(calls).toEqual(['trims {"gainDb":0.1}', 'capture 2400 after 4800']);
   });
 });
+
+describe('createCaptureNode', () => {
+  /** A stand-in AudioWorkletNode whose processor never answers, so only errors settle captures. */
+  class SilentWorkletNode {
+    onprocessorerror: ((ev: Event) => void) | null = null;
+    readonly posted: unknown[] = [];
+    readonly port = {
+      onmessage: null as ((ev: MessageEvent) => void) | null,
+      postMessage: (m: unknown) => this.posted.push(m),
+    };
+    connect() {}
+    disconnect() {}
+  }
+
+  it('fails pending and later captures when the processor stops with an error, instead of hanging', async () => {
+    const { createCaptureNode } = await import('../../src/webaudio/capture-node.js');
+    const cap = await createCaptureNode<SilentWorkletNode & never>(ctx, {
+      moduleLoaded: true,
+      AudioWorkletNode: SilentWorkletNode as never,
+    });
+    const pending = code(cap.capture(128));
+    (cap.node as unknown as SilentWorkletNode).onprocessorerror?.(new Event('processorerror'));
+    expect(await pending).toBe('MEASUREMENT_FAILED');
+    expect(await code(cap.capture(128))).toBe('MEASUREMENT_FAILED');
+    cap.dispose();
+    expect(await code(cap.capture(128))).toBe('INVALID_ARGUMENT');
+  });
+});

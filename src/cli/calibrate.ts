@@ -13,12 +13,15 @@ import type { Diagnosis } from '../calibrate/diagnosis.js';
 import type { NullSeeker } from '../calibrate/null-seeker.js';
 import { createProfile, type ProfileReading, profileToJson } from '../calibrate/profile.js';
 import { runNullSeeker } from '../calibrate/run-null-seeker.js';
-import { SIDEBAND_AXES } from '../calibrate/sideband.js';
+import { sidebandAxes } from '../calibrate/sideband.js';
 import {
+  type HardwareTrimOptions,
   resultOf,
   seekerFor,
   type TrimAxes,
   type TrimCalibrationResult,
+  type TrimName,
+  validateHardware,
 } from '../calibrate/trim-calibration.js';
 import { cautionsText } from '../core/cautions.js';
 import { OrthotoneError } from '../core/errors.js';
@@ -67,6 +70,8 @@ options:
                          profile carries it
   --tone-amplitude A     peak tone level, full scale 1, if known (fixes the carrier bowl's curvature)
   --max-readings N       budget per null (default 16)
+  --steps K=V,...        hardware trims with fixed steps, in their own units, e.g.
+                         gainDb=0.05,phaseDeg=0.1,dcI=0.001,dcQ=0.001: every setting asked for lies on the grid
   --target DB            stop a null once the fit puts it this many dB down
   --noise DB             standard deviation of one reading, dB (default 0.5)
   --floor DBC            the analyzer's floor, dBc, if known (otherwise estimated from the readings)
@@ -98,6 +103,7 @@ const OPTIONS = {
   preset: { type: 'string' },
   'device-seed': { type: 'string' },
   tolerance: { type: 'string' },
+  steps: { type: 'string' },
   seed: { type: 'string' },
   outliers: { type: 'string' },
   profile: { type: 'string' },
@@ -128,6 +134,27 @@ export function parseTolerance(text: string | undefined, base: Readonly<Toleranc
     else (t as unknown as Record<string, number>)[k] = numberOpt(`tolerance ${k}`, v)!;
   }
   return t;
+}
+
+/**
+ * Parses `--steps gainDb=0.05,phaseDeg=0.1,dcI=0.001,dcQ=0.001` (dB, degrees, full scale).
+ * Ranges are checked by `validateHardware`.
+ * @throws {UsageError} for a part that is not KEY=VALUE with KEY a trim, or a value that is not a number.
+ */
+export function parseSteps(text: string | undefined): Partial<Record<TrimName, number>> {
+  const out: Partial<Record<TrimName, number>> = {};
+  if (!text) return out;
+  const names: readonly TrimName[] = ['gainDb', 'phaseDeg', 'dcI', 'dcQ'];
+  for (const part of text.split(',')) {
+    const [k, x] = part.split('=');
+    if (!k || x === undefined || !(names as readonly string[]).includes(k)) {
+      throw new UsageError(
+        `--steps ${JSON.stringify(part)} must be KEY=VALUE with KEY one of ${names.join(', ')}`,
+      );
+    }
+    out[k as TrimName] = numberOpt(`steps ${k}`, x)!;
+  }
+  return out;
 }
 
 const fmtTrims = (q: Quantity, t: Trims): string =>
@@ -350,6 +377,10 @@ export async function run(argv: string[]): Promise<number> {
   const targetDb = numberOpt('target', v.target);
   const noiseDb = numberOpt('noise', v.noise ?? '0.5')!;
   const floorDb = numberOpt('floor', v.floor);
+  const hw: HardwareTrimOptions = { steps: parseSteps(v.steps as string | undefined) };
+  validateHardware(hw, ZERO_TRIMS);
+  const axesFor = (q: Quantity): TrimAxes =>
+    q === 'sideband' ? sidebandAxes(hw) : carrierAxes(toneAmplitude, hw);
   const network = typeof v.network === 'string' ? await readNetwork(v.network) : undefined;
   const givenRate = numberOpt('rate', v.rate);
   if (givenRate !== undefined) requireSampleRate(givenRate);
@@ -410,6 +441,7 @@ export async function run(argv: string[]): Promise<number> {
   try {
     if (together) {
       const core = createCombinedSeeker({
+        ...hw,
         noiseDb,
         maxReadings,
         ...(targetDb !== undefined ? { targetDb } : {}),
@@ -473,9 +505,10 @@ export async function run(argv: string[]): Promise<number> {
       sharedReadings = res.readings;
     }
     for (const q of together ? [] : quantities) {
-      const axes = q === 'sideband' ? SIDEBAND_AXES : carrierAxes(toneAmplitude);
+      const axes = axesFor(q);
       const { seeker, start } = seekerFor(
         {
+          ...hw,
           measure: () => 0,
           start: current,
           noiseDb,
@@ -575,10 +608,7 @@ export async function run(argv: string[]): Promise<number> {
         }))
       : r.result.state.readings.map((x) => ({
           quantity: r.q,
-          trims:
-            r.q === 'sideband'
-              ? SIDEBAND_AXES.toTrims(x.point, ZERO_TRIMS)
-              : { ...ZERO_TRIMS, dcI: x.point[0], dcQ: x.point[1] },
+          trims: axesFor(r.q).toTrims(x.point, ZERO_TRIMS),
           levelDb: x.db,
         })),
   );

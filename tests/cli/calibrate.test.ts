@@ -42,6 +42,33 @@ describe('orthotone calibrate --simulate', () => {
     expect(p.results.source).toBe('simulated');
     expect(readFileSync(join(dir, 'p.h'), 'utf8')).toMatch(/#define OT_CAL_GAIN_DB/);
   });
+  it('--steps: every setting asked for and the result lie on the hardware grid, and the nulls still deepen', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'ot-cal-'));
+    const steps = { gainDb: 0.05, phaseDeg: 0.1, dcI: 0.001, dcQ: 0.001 };
+    const r = cli([
+      'calibrate',
+      '--simulate',
+      '--steps',
+      'gainDb=0.05,phaseDeg=0.1,dcI=0.001,dcQ=0.001',
+      '--format',
+      'json',
+      '--profile',
+      join(dir, 'p.json'),
+    ]);
+    expect(r.status).toBe(0);
+    const out = JSON.parse(r.stdout);
+    const onGrid = (x: number, step: number) => Math.abs(x / step - Math.round(x / step)) < 1e-6;
+    const p = validateProfile(JSON.parse(readFileSync(join(dir, 'p.json'), 'utf8')));
+    for (const t of [out.trims, ...p.readings.map((x) => x.trims)]) {
+      for (const [k, step] of Object.entries(steps)) expect(onGrid(t[k], step), `${k} ${t[k]}`).toBe(true);
+    }
+    // A 0.05 dB / 0.1° grid can leave up to 0.025 dB and 0.05° of error: at least about 57 dB
+    // (image-rejection formula, REFERENCES.md §1); the carrier grid of 0.001 FS is finer than its null.
+    for (const run of out.runs) expect(run.trueEndDb).toBeGreaterThan(run.trueStartDb + 10);
+    expect(cli(['calibrate', '--simulate', '--steps', 'gain=0.1']).stderr).toMatch(
+      /--steps "gain=0.1" must be/,
+    );
+  });
   it('prints the convergence table, the result and the cautions', () => {
     const r = cli(['calibrate', '--simulate', '--what', 'sideband', '--tolerance', 'resistorPct=1']);
     expect(r.status).toBe(0);

@@ -105,6 +105,22 @@ async function readOnce(): Promise<PageReading> {
   return JSON.parse((await page.getAttribute('#panel-calibrate', 'data-reading')) ?? '{}') as PageReading;
 }
 
+/**
+ * Reads until two readings in a row agree within 0.1 dB (at most 4 readings). Chromium's fake
+ * microphone picks up a newly written file while a capture may still be running, so the first
+ * reading after a file change can straddle both files: a property of the test bench, not of the page.
+ */
+async function readSettled(): Promise<PageReading> {
+  let r = await readOnce();
+  for (let k = 0; k < 3; k++) {
+    const again = await readOnce();
+    if (Math.abs(again.sidebandDb - r.sidebandDb) < 0.1 && Math.abs(again.carrierDb - r.carrierDb) < 0.1)
+      break;
+    r = again;
+  }
+  return r;
+}
+
 describe('demo page, live receiver path (fake microphone)', () => {
   it('reads the sideband and carrier suppression the formulas predict, within 0.5 dB', async () => {
     const { page, errors } = browser;
@@ -128,7 +144,7 @@ describe('demo page, live receiver path (fake microphone)', () => {
     expect(irrDb).toBeCloseTo(39.614, 3); // REFERENCES.md §1 table, 0.1 dB and 1°
     const wantedAmp = (A * Math.hypot(1 + g * Math.cos(phi), g * Math.sin(phi))) / 2;
     const carrierDb = -20 * Math.log10(Math.hypot(dcI, dcQ) / wantedAmp);
-    const r1 = await readOnce();
+    const r1 = await readSettled();
     console.log('fake microphone, formula case:', JSON.stringify(r1), { irrDb, carrierDb });
     expect(Math.abs(r1.sidebandDb - irrDb)).toBeLessThanOrEqual(0.5);
     expect(Math.abs(r1.carrierDb - carrierDb)).toBeLessThanOrEqual(0.5);
@@ -143,7 +159,7 @@ describe('demo page, live receiver path (fake microphone)', () => {
     const bench = drawDevice(TOLERANCE_PRESETS['homebrew-bench']!, 711);
     writeFileSync(MIC, receiverAudio(bench, {}));
     const predicted = createVirtualExciter(bench, { sampleRate: FS, seed: 1 }).response(TONE_HZ, {}, A);
-    const r2 = await readOnce();
+    const r2 = await readSettled();
     console.log('fake microphone, hand-built bench:', JSON.stringify(r2), predicted);
     expect(Math.abs(r2.sidebandDb + predicted.unwantedDbc)).toBeLessThanOrEqual(0.5);
     expect(Math.abs(r2.carrierDb + predicted.carrierDbc)).toBeLessThanOrEqual(0.5);

@@ -106,7 +106,7 @@ async function readOnce(): Promise<PageReading> {
 }
 
 /**
- * Reads until two readings in a row agree within 0.1 dB (at most 4 readings). Chromium's fake
+ * Reads until two readings in a row agree within 0.05 dB (at most 6 readings). Chromium's fake
  * microphone picks up a newly written file while a capture may still be running, so the first
  * reading after a file change can straddle both files: a property of the test bench, not of the page.
  */

@@ -112,9 +112,9 @@ async function readOnce(): Promise<PageReading> {
  */
 async function readSettled(): Promise<PageReading> {
   let r = await readOnce();
-  for (let k = 0; k < 3; k++) {
+  for (let k = 0; k < 5; k++) {
     const again = await readOnce();
-    if (Math.abs(again.sidebandDb - r.sidebandDb) < 0.1 && Math.abs(again.carrierDb - r.carrierDb) < 0.1)
+    if (Math.abs(again.sidebandDb - r.sidebandDb) < 0.05 && Math.abs(again.carrierDb - r.carrierDb) < 0.05)
       break;
     r = again;
   }

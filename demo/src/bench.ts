@@ -373,6 +373,9 @@ export async function runMultitoneCalibration(o: MultitoneRunOptions): Promise<M
     start,
     noiseDb: o.noiseDb,
     maxReadings: o.maxReadings,
+    // This measure cannot apply a correction (the node gets it only below), so no verification
+    // readings here: the band check below reads the correction running in the node.
+    verifyReadings: 0,
     signal: o.signal,
     onReading: o.onReading,
   });

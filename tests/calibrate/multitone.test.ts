@@ -9,19 +9,21 @@ import { drawDevice, TOLERANCE_PRESETS } from '../../src/simulate/model.js';
 const FS = 48000;
 const grid = Array.from({ length: 60 }, (_, i) => 300 * 10 ** (i / 59));
 const tones = [300, 600, 1200, 2000, 3000];
+/** Invented bench of our own: homebrew-bench parts plus ±2 µs codec skew and ±10% filter corners. */
+const SKEW_BENCH = {
+  ...TOLERANCE_PRESETS['homebrew-bench'],
+  skewSeconds: 2e-6,
+  couplingHighPassHz: 20,
+  antiImagingLowPassHz: 20000,
+  cornerPct: 10,
+};
 
 describe('multi-tone calibration with frequency-dependent imbalance (skew, mismatched corners)', () => {
   it('reaches ≥ 55 dB worst case over 300–3000 Hz where a single-tone calibration falls short', async () => {
     // Invented bench of our own: homebrew-bench parts plus ±2 µs codec skew and ±10% corners on
     // 20 Hz coupling and 20 kHz anti-imaging filters. REFERENCES.md §6 [C]: skew τ gives phase
     // error 2πfτ; −60 dBc at 2.7 kHz needs |τ| ≤ 0.12 µs, so one trim cannot hold over the band.
-    const tol = {
-      ...TOLERANCE_PRESETS['homebrew-bench'],
-      skewSeconds: 2e-6,
-      couplingHighPassHz: 20,
-      antiImagingLowPassHz: 20000,
-      cornerPct: 10,
-    };
+    const tol = SKEW_BENCH;
     const single: number[] = [];
     const multi: number[] = [];
     for (let seed = 1; seed <= 12; seed++) {
@@ -49,13 +51,7 @@ describe('multi-tone calibration with frequency-dependent imbalance (skew, misma
   it('reports the best single trims: the least total image power over the tones, better than the start', async () => {
     // Same invented bench. The image power summed over the tones (true, from the noiseless model)
     // with singleTrims must beat the start and every tone's own null used as the single setting.
-    const tol = {
-      ...TOLERANCE_PRESETS['homebrew-bench'],
-      skewSeconds: 2e-6,
-      couplingHighPassHz: 20,
-      antiImagingLowPassHz: 20000,
-      cornerPct: 10,
-    };
+    const tol = SKEW_BENCH;
     for (let seed = 1; seed <= 4; seed++) {
       const ex = createVirtualExciter(drawDevice(tol, 32000 + seed), { sampleRate: FS, seed });
       const an = createAnalyzer(ex, { seed: 42000 + seed, floorDbc: -70, noiseDb: 0.5 });
@@ -77,13 +73,7 @@ describe('multi-tone calibration with frequency-dependent imbalance (skew, misma
   it('verifies the correction with readings at the calibration tones, separate from the budget', async () => {
     // Same invented bench; measure applies the correction it is given (here through the exciter's
     // per-tone equivalent trims), so the final readings show what the correction really does.
-    const tol = {
-      ...TOLERANCE_PRESETS['homebrew-bench'],
-      skewSeconds: 2e-6,
-      couplingHighPassHz: 20,
-      antiImagingLowPassHz: 20000,
-      cornerPct: 10,
-    };
+    const tol = SKEW_BENCH;
     for (let seed = 1; seed <= 4; seed++) {
       const ex = createVirtualExciter(drawDevice(tol, 31000 + seed), { sampleRate: FS, seed });
       const an = createAnalyzer(ex, { seed: 41000 + seed, floorDbc: -70, noiseDb: 0.5 });

@@ -393,13 +393,20 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
     }
   }
 
-  async function run(): Promise<CalibrationRun | undefined> {
+  /** The common start of a calibration run: controls busy, results shown, table and notes cleared. */
+  function beginRun(): AbortController {
     busy(true);
     showResults();
-    abort = new AbortController();
+    const ac = new AbortController();
+    abort = ac;
     tableBody.replaceChildren();
     notes.replaceChildren();
     saveBox.hidden = true;
+    return ac;
+  }
+
+  async function run(): Promise<CalibrationRun | undefined> {
+    const ac = beginRun();
     const xs: number[] = [];
     const s: number[] = [];
     const c: number[] = [];
@@ -444,7 +451,7 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
         noiseDb: 0.3,
         settleSeconds,
         captureSeconds,
-        signal: abort.signal,
+        signal: ac.signal,
         onReading(step) {
           xs.push(step.index);
           s.push(step.levelDb);
@@ -517,12 +524,7 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
   }
 
   async function runMulti(): Promise<MultitoneRun | undefined> {
-    busy(true);
-    showResults();
-    abort = new AbortController();
-    tableBody.replaceChildren();
-    notes.replaceChildren();
-    saveBox.hidden = true;
+    const ac = beginRun();
     band.setData([], [[], [], []]);
     for (const f of Object.values(mfigs)) f.set('—');
     try {
@@ -543,7 +545,7 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
         maxReadings: Number(budget.value),
         noiseDb: 0.3,
         sideband: engine.sideband,
-        signal: abort.signal,
+        signal: ac.signal,
         onStage: (text) => say(text),
         onReading(step) {
           tableBody.append(

@@ -17,6 +17,8 @@ export type OrthotoneErrorCode =
   | 'TONES_UNRESOLVED' // tones closer than the window can separate
   | 'TRIM_INACTIVE' // a trim does not move the reading
   | 'MEASUREMENT_FAILED' // a reading could not be taken
+  | 'WRITE_FAILED' // a file could not be written (the previous file, if any, is kept)
+  | 'OUTPUT_IS_INPUT' // an output file is the same file as an input or as another output
   | 'ABORTED'; // an AbortSignal fired
 
 /** The library's single error type. `code` is stable; `message` is for people. */

@@ -1,4 +1,5 @@
 /** Node-only entry: files, WAV, streams. */
 export * from '../index.js';
+export * from './files.js';
 export * from './iq-stream.js';
 export * from './wav.js';

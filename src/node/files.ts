@@ -1,0 +1,140 @@
+/**
+ * Safe file output for the command line and Node users: every write goes to a temporary file in the
+ * destination's own folder and is renamed into place, so a full disk or a crash leaves the old file
+ * (or no file), never a truncated one; and outputs are checked against inputs (by real path and by
+ * inode) before any work starts, so no command can overwrite what it reads.
+ */
+import { randomBytes } from 'node:crypto';
+import {
+  closeSync,
+  fsyncSync,
+  openSync,
+  realpathSync,
+  renameSync,
+  statSync,
+  unlinkSync,
+  writeSync,
+} from 'node:fs';
+import { basename, dirname, join, resolve } from 'node:path';
+import { OrthotoneError } from '../core/errors.js';
+
+/** Errors Node raises for a write that cannot be done, turned into one readable line. */
+function describeFsError(e: unknown, path: string): string {
+  const err = e as NodeJS.ErrnoException;
+  switch (err.code) {
+    case 'ENOSPC':
+      return `cannot write ${path}: the disk is full (the previous file, if any, is kept)`;
+    case 'EACCES':
+    case 'EPERM':
+      return `cannot write ${path}: permission denied`;
+    case 'ENOENT':
+      return `cannot write ${path}: its folder ${dirname(path)} does not exist`;
+    case 'EISDIR':
+      return `cannot write ${path}: it is a folder`;
+    case 'EROFS':
+      return `cannot write ${path}: the file system is read-only`;
+    default:
+      return `cannot write ${path}: ${err.message ?? String(e)}`;
+  }
+}
+
+/**
+ * A temporary name beside `path` (same folder, so the rename is atomic on one file system).
+ * @throws never
+ */
+export function temporaryPathFor(path: string): string {
+  return join(dirname(path), `.${basename(path)}.${process.pid}.${randomBytes(4).toString('hex')}.tmp`);
+}
+
+/**
+ * Writes a whole file atomically: to a temporary file in the same folder, flushed, then renamed over
+ * `path`. On any failure the temporary file is removed and an existing `path` is left untouched.
+ * Method: write-then-rename, atomic within one POSIX file system (IEEE Std 1003.1, `rename()`).
+ * @param path destination file.
+ * @param data text (written as UTF-8) or bytes.
+ * @throws {OrthotoneError} `WRITE_FAILED` with one line naming the file and the cause (disk full,
+ *   permission denied, missing folder, read-only file system).
+ */
+export function writeFileAtomic(path: string, data: string | Uint8Array): void {
+  const tmp = temporaryPathFor(path);
+  const bytes = typeof data === 'string' ? Buffer.from(data, 'utf8') : data;
+  let fd: number | undefined;
+  try {
+    fd = openSync(tmp, 'wx', 0o644);
+    let off = 0;
+    while (off < bytes.length) off += writeSync(fd, bytes, off, bytes.length - off);
+    fsyncSync(fd);
+    closeSync(fd);
+    fd = undefined;
+    renameSync(tmp, path);
+  } catch (e) {
+    if (fd !== undefined) {
+      try {
+        closeSync(fd);
+      } catch {
+        // already failing; the write error is the one to report
+      }
+    }
+    try {
+      unlinkSync(tmp);
+    } catch {
+      // the temporary file was never created
+    }
+    throw new OrthotoneError('WRITE_FAILED', describeFsError(e, path), path);
+  }
+}
+
+/** Identity of an existing file: device and inode, or undefined when it does not exist. */
+function identity(path: string): { key: string; real: string } | undefined {
+  try {
+    const s = statSync(path);
+    return { key: `${s.dev}:${s.ino}`, real: realpathSync(path) };
+  } catch {
+    return undefined;
+  }
+}
+
+/**
+ * Refuses when an output is the same file as an input, or two outputs are the same file: compared
+ * by device and inode when the file exists (catching hard and symbolic links) and by resolved real
+ * path otherwise. Call it before any work, so nothing is read or computed for a run that would
+ * destroy its own input.
+ * @param inputs `[optionName, path]` pairs of files the command reads (undefined entries skipped).
+ * @param outputs `[optionName, path]` pairs of files the command writes (undefined entries skipped).
+ * @throws {OrthotoneError} `OUTPUT_IS_INPUT` naming both options and the file, with the fix.
+ */
+export function assertDistinctFiles(
+  inputs: ReadonlyArray<readonly [string, string | undefined]>,
+  outputs: ReadonlyArray<readonly [string, string | undefined]>,
+): void {
+  const keyOf = (path: string): string => {
+    const id = identity(path);
+    if (id) return id.key;
+    // A file that does not exist yet: its real folder plus its name.
+    let dir = resolve(dirname(path));
+    try {
+      dir = realpathSync(dir);
+    } catch {
+      // folder missing: the write will report it
+    }
+    const dirId = identity(dir);
+    return `${dirId?.key ?? dir}/${basename(path)}`;
+  };
+  const seen: Array<{ name: string; path: string; key: string; isInput: boolean }> = [];
+  for (const [name, path] of inputs)
+    if (path !== undefined) seen.push({ name, path, key: keyOf(path), isInput: true });
+  for (const [name, path] of outputs) {
+    if (path === undefined || path === '-') continue;
+    const key = keyOf(path);
+    const clash = seen.find((s) => s.key === key);
+    if (clash) {
+      const what = clash.isInput ? 'is also the input' : 'is also the output';
+      throw new OrthotoneError(
+        'OUTPUT_IS_INPUT',
+        `${name} ${path} ${what} ${clash.name} ${clash.path}: writing it would destroy it; choose another file for ${name}`,
+        path,
+      );
+    }
+    seen.push({ name, path, key, isInput: false });
+  }
+}

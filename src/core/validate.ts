@@ -147,17 +147,34 @@ export function requireBand(band: unknown, sampleRate: number): [number, number]
 }
 
 /**
+ * The fields of `o` whose value is not `undefined` (only `keys`, when given), as a new object, so
+ * that spreading it over defaults keeps the defaults where the caller left a field undefined.
+ * @param o the partial object (undefined gives `{}`).
+ * @param keys the only keys to copy (default: all own keys).
+ * @returns a new object; `o` is not changed.
+ * Method: plain field copy.
+ * @throws never
+ * @internal
+ */
+export function stripUndefined<T extends object>(
+  o: Partial<T> | undefined,
+  keys?: readonly (keyof T)[],
+): Partial<T> {
+  const out: Partial<T> = {};
+  if (!o) return out;
+  for (const k of keys ?? (Object.keys(o) as (keyof T)[])) {
+    const v = o[k];
+    if (v !== undefined) out[k] = v;
+  }
+  return out;
+}
+
+/**
  * Merges `partial` over frozen `defaults`, dropping keys whose value is `undefined`. Validates
  * nothing: callers validate the merged result.
  * @throws never
+ * @internal
  */
 export function withDefaults<T extends object>(defaults: Readonly<T>, partial: Partial<T> | undefined): T {
-  const out = { ...defaults } as T;
-  if (partial) {
-    for (const k of Object.keys(partial) as (keyof T)[]) {
-      const v = partial[k];
-      if (v !== undefined) out[k] = v as T[keyof T];
-    }
-  }
-  return out;
+  return { ...defaults, ...stripUndefined(partial) } as T;
 }

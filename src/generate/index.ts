@@ -2,6 +2,7 @@ export * from './allpass-runtime.js';
 export * from './correction.js';
 export * from './fir-runtime.js';
 export * from './fractional-delay.js';
+export * from './multitone-source.js';
 export * from './network-runtime.js';
 export * from './prediction.js';
 export * from './quadrature-generator.js';

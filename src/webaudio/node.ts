@@ -27,7 +27,8 @@ import {
   type ToProcessor,
   TRIM_NAMES,
 } from './messages.js';
-import { createBlockSource, createRunningGenerator } from './runtime.js';
+import { createRunningGenerator } from './runtime.js';
+import { createBlockSource } from './test-source.js';
 import { loadWorkletModule, workletNodeConstructorFor } from './worklet-module.js';
 
 /** Options of {@link createQuadratureNode}. */

@@ -27,6 +27,10 @@ export interface Progress {
 export interface ProgressStream {
   isTTY?: boolean;
   columns?: number;
+  /**
+   * Writes text as it is.
+   * @throws whatever the stream throws (process.stderr does not).
+   */
   write(s: string): boolean;
 }
 

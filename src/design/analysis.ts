@@ -410,6 +410,15 @@ const ANALYZE_DEFAULTS: Readonly<Omit<AnalyzeOptions, 'fromHz' | 'toHz'>> = Obje
  * @returns per-frequency arrays and band figures; group delays in samples.
  * @throws {OrthotoneError} INVALID_DOCUMENT for a bad document; INVALID_ARGUMENT for bad options.
  * Reference: suppression per K. Schmidt, QEX Aug 1994 §2.
+ * @example
+ * ```ts
+ * import { analyzeNetwork, designNetwork } from 'orthotone';
+ *
+ * const net = designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'allpass', targetDb: 60 });
+ * const a = analyzeNetwork(net, { points: 256 });
+ * console.log(`worst ${a.worst.suppressionDb.toFixed(1)} dB at ${a.worst.atHz.toFixed(0)} Hz`);
+ * // a.frequencyHz[k], a.suppressionDb[k], a.phaseErrorDeg[k]: one row per analysis frequency
+ * ```
  */
 export function analyzeNetwork(net: Network, options: Partial<AnalyzeOptions> = {}): NetworkAnalysis {
   validateNetwork(net);

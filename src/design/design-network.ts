@@ -371,6 +371,15 @@ function designAuto(c: Checked, design: Record<string, unknown>): Network {
  *   short of a given target; NO_CONVERGENCE if the FIR exchange fails.
  * Reference: Darlington, BSTJ 29:94 (1950) and Orchard, Wireless Engineer 27:72 (1950) for the
  * all-pass pair; McClellan, Parks & Rabiner (1973) and Kaiser (1974) for the FIR.
+ * @example
+ * ```ts
+ * import { designNetwork } from 'orthotone';
+ *
+ * // The cheapest 90° network for speech, 300–3000 Hz at 48 kHz, with at least 60 dB suppression.
+ * const net = designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'auto', targetDb: 60 });
+ * console.log(net.kind, net.predicted.worstSuppressionDb.toFixed(1), 'dB,', net.cost.multipliesPerSample, 'multiplies/sample');
+ * if (net.predicted.worstSuppressionDb < 60) throw new Error('target not met');
+ * ```
  */
 export function designNetwork(spec: NetworkSpec): Network {
   const c = checkSpec(spec);

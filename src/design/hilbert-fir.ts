@@ -539,8 +539,13 @@ function finish(plan: Plan, cand: Candidate): HilbertFirDesign {
  *   UNREACHABLE_TARGET when the target is not met (naming the suppression reached and, when found,
  *   the taps needed); NO_CONVERGENCE when the Remez exchange yields non-finite taps.
  * @example
+ * ```ts
+ * import { designHilbertFir } from 'orthotone';
+ *
  * const d = designHilbertFir({ sampleRate: 48000, band: [300, 3000], targetDb: 60 });
- * // d.taps.length is the shortest 4K − 1 length reaching 60 dB over 300–3000 Hz
+ * // the shortest 4K − 1 length reaching 60 dB over 300–3000 Hz; I is a delay of d.delaySamples
+ * console.log(d.taps.length, 'taps,', d.worstSuppressionDb.toFixed(1), 'dB');
+ * ```
  */
 export function designHilbertFir(spec: HilbertFirSpec): HilbertFirDesign {
   return designHilbertFirJudged(spec, undefined);

@@ -94,11 +94,17 @@ function logTicks(lo: number, hi: number): number[] {
  * Method: linear or logarithmic mapping of data to the plot area; "nice" 1-2-5 ticks (common
  * practice, no source); SVG 1.1 (W3C Recommendation, 2011) path and text elements.
  * @example
+ * ```ts
+ * import { plotToSvg } from 'orthotone';
+ *
  * const svg = plotToSvg({
- *   title: 'Two lines', xLabel: 'frequency (Hz)', yLabel: 'level (dB)',
- *   series: [{ label: 'a', x: [1, 2, 3], y: [0, -3, -6] }],
+ *   title: 'Suppression after each reading',
+ *   xLabel: 'reading',
+ *   yLabel: 'suppression (dB)',
+ *   series: [{ label: 'suppression (dB)', x: [1, 2, 3, 4], y: [31, 38, 44, 51], markers: true }],
  * });
- * svg.startsWith('<svg'); // true
+ * console.log(svg.startsWith('<svg'), svg.length, 'characters'); // write it to a .svg file to view
+ * ```
  */
 export function plotToSvg(spec: PlotSpec): string {
   const width = spec.width ?? 720;

@@ -59,9 +59,13 @@ export interface MultitoneSource {
  *   tone, or a frequency or level generate/ refuses (not in (0, fs/2)).
  * Method: sum of sines with Schroeder phases (Schroeder 1970, see {@link multitonePhaseRad}).
  * @example
+ * ```ts
+ * import { createMultitoneSource } from 'orthotone';
+ *
  * const src = createMultitoneSource([500, 1000, 2000], 48000, -6);
  * const block = new Float32Array(480);
  * src.fill(block); // 10 ms of three tones, each at −6 − 9.54 dBFS
+ * ```
  */
 export function createMultitoneSource(
   frequenciesHz: readonly number[],

@@ -93,6 +93,15 @@ export interface Analyzer {
  *   with probability `failureRate`.
  * Reference: power addition of a level and a floor (incoherent sum); reading noise model of
  * DESIGN.md §6 (σ in dB).
+ * @example
+ * ```ts
+ * import { createAnalyzer, createVirtualExciter, homebrewBenchDevice } from 'orthotone';
+ *
+ * const exciter = createVirtualExciter(homebrewBenchDevice(), { sampleRate: 48000, seed: 1 });
+ * const analyzer = createAnalyzer(exciter, { seed: 2, noiseDb: 0.2 });
+ * const { sidebandDbc, carrierDbc } = analyzer.readBoth(1000, { gainDb: 0.2, phaseDeg: -1 });
+ * console.log(sidebandDbc.toFixed(1), carrierDbc.toFixed(1), 'dBc');
+ * ```
  */
 export function createAnalyzer(
   exciter: VirtualExciter,

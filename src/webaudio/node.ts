@@ -221,10 +221,18 @@ function checkCrossfade(v: unknown): number {
  *   context that needs `options.AudioWorkletNode`. Thrown before anything is loaded.
  * @example
  * ```ts
+ * import { createQuadratureNode, designNetwork } from 'orthotone';
+ *
+ * // Where your page serves the package's `orthotone/worklet` file (dist/worklet/processor.js).
+ * const workletUrl = '/orthotone/worklet/processor.js';
  * const ctx = new AudioContext({ sampleRate: 48000 });
  * const net = designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'allpass', targetDb: 60 });
- * const q = await createQuadratureNode(ctx, net, { moduleUrl: workletUrl, source: { kind: 'tone', frequencyHz: 1000 } });
- * q.node.connect(ctx.destination); // left I, right Q
+ * const q = await createQuadratureNode(ctx, net, {
+ *   moduleUrl: workletUrl,
+ *   source: { kind: 'tone', frequencyHz: 1000 },
+ * });
+ * // The node is typed structurally (native, standardized-audio-context or node-web-audio-api).
+ * q.node.connect(ctx.destination as never); // left I, right Q
  * q.setTrims({ gainDb: 0.1, phaseDeg: -0.4 });
  * ```
  */

@@ -74,8 +74,12 @@ export function entryExports(): Record<string, ApiName[]> {
       const decl = sym.declarations?.[0];
       if (!decl) continue;
       const tags = ts.getJSDocTags(decl);
-      const doc = ts.displayPartsToString(sym.getDocumentationComment(checker)).replace(/\s+/g, ' ').trim();
-      const summary = (doc.match(/^.*?[.:](\s|$)/)?.[0] ?? doc).trim();
+      const doc = ts
+        .displayPartsToString(sym.getDocumentationComment(checker))
+        .replace(/\{@link\s+([^}|\s]+)[^}]*\}/g, '$1')
+        .replace(/\s+/g, ' ')
+        .trim();
+      const summary = (doc.match(/^.*?\.(\s|$)/)?.[0] ?? doc).trim();
       names.push({
         name: exp.name,
         kind: kindOf(decl),

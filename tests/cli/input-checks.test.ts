@@ -42,7 +42,9 @@ describe('design options', () => {
       /^orthotone: --rate 48000.5 must be a whole number of Hz/,
     );
     expect(existsSync(out)).toBe(false);
-    expect(refused(['design', '--rate', '-48000'])).toMatch(/--rate -48000 must be a whole number of Hz from 1000/);
+    expect(refused(['design', '--rate', '-48000'])).toMatch(
+      /--rate -48000 must be a whole number of Hz from 1000/,
+    );
   });
 
   it('library keys appear as the CLI options the user typed', () => {
@@ -52,7 +54,9 @@ describe('design options', () => {
   });
 
   it('an option given twice is refused; an unknown one names the nearest', () => {
-    expect(refused(['design', '--taps', '63', '--taps', '65'])).toBe('orthotone: --taps is given twice: give it once');
+    expect(refused(['design', '--taps', '63', '--taps', '65'])).toBe(
+      'orthotone: --taps is given twice: give it once',
+    );
     expect(refused(['design', '--tagret', '50'])).toMatch(/unknown option --tagret: did you mean --target\?/);
   });
 });

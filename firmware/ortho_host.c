@@ -10,14 +10,14 @@
 #define ORTHO_PI 3.14159265358979323846
 
 #if ORTHO_ARITH != ORTHO_ARITH_FLOAT
-/* round(v * 2^frac), ties away from zero, saturated to +-(2^(W-1) - 1) (symmetric, as the
+/* round(v * 2^frac), ties away from zero, saturated to +-(2^(bits-1) - 1) (symmetric, as the
  * coefficient tables are rounded). */
-static ortho_word_t ortho_word_from(double v, int frac) {
+static long ortho_code(double v, int frac, int bits) {
   const double scale = ldexp(1.0, frac);
-  const double max = ldexp(1.0, ORTHO_W - 1) - 1.0;
+  const double max = ldexp(1.0, bits - 1) - 1.0;
   double code = floor(fabs(v) * scale + 0.5);
   if (code > max) code = max;
-  return (ortho_word_t)(v < 0 ? -code : code);
+  return (long)(v < 0 ? -code : code);
 }
 #endif
 
@@ -25,10 +25,10 @@ ortho_sample_t ortho_sample_from_full_scale(double x) {
 #if ORTHO_ARITH == ORTHO_ARITH_FLOAT
   return (float)x;
 #else
-  const double max = ldexp(1.0, ORTHO_W - 1) - 1.0;
+  const double max = ldexp(1.0, ORTHO_IO_BITS - 1) - 1.0;
   double code;
   if (!(x == x)) return 0;
-  code = floor(x * ldexp(1.0, ORTHO_W - 1) + 0.5);
+  code = floor(x * ldexp(1.0, ORTHO_IO_BITS - 1) + 0.5);
   if (code > max) code = max;
   if (code < -max - 1.0) code = -max - 1.0;
   return (ortho_sample_t)code;
@@ -39,7 +39,7 @@ double ortho_sample_to_full_scale(ortho_sample_t v) {
 #if ORTHO_ARITH == ORTHO_ARITH_FLOAT
   return (double)v;
 #else
-  return ldexp((double)v, -(ORTHO_W - 1));
+  return ldexp((double)v, -(ORTHO_IO_BITS - 1));
 #endif
 }
 
@@ -70,11 +70,11 @@ int ortho_trims_from_units(ortho_trims_t *t, double gain_db, double phase_deg, d
   t->dc_q = (float)dc_q;
   for (k = 0; k < 4; k++) t->skew_taps[k] = (float)h[k];
 #else
-  t->gain_cos = ortho_word_from(c, ORTHO_W - 2);
-  t->gain_sin = ortho_word_from(sn, ORTHO_W - 2);
-  t->dc_i = ortho_word_from(dc_i, ORTHO_W - 1);
-  t->dc_q = ortho_word_from(dc_q, ORTHO_W - 1);
-  for (k = 0; k < 4; k++) t->skew_taps[k] = ortho_word_from(h[k], ORTHO_W - 2);
+  t->gain_cos = (ortho_coef_t)ortho_code(c, ORTHO_COEF_BITS - 2, ORTHO_COEF_BITS);
+  t->gain_sin = (ortho_coef_t)ortho_code(sn, ORTHO_COEF_BITS - 2, ORTHO_COEF_BITS);
+  t->dc_i = (ortho_sample_t)ortho_code(dc_i, ORTHO_IO_BITS - 1, ORTHO_IO_BITS);
+  t->dc_q = (ortho_sample_t)ortho_code(dc_q, ORTHO_IO_BITS - 1, ORTHO_IO_BITS);
+  for (k = 0; k < 4; k++) t->skew_taps[k] = (ortho_coef_t)ortho_code(h[k], ORTHO_COEF_BITS - 2, ORTHO_COEF_BITS);
 #endif
   t->skew_whole = whole;
   t->lower_sideband = lower_sideband ? 1 : 0;

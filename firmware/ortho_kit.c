@@ -15,26 +15,21 @@
  * arithmetic on every compiler we know of); refuse to build where it is not so. */
 typedef char ortho_arithmetic_shift_check[((-8) >> 1) == -4 ? 1 : -1];
 
-#define ORTHO_F (ORTHO_W - 1)
-#define ORTHO_TF (ORTHO_W - 2)
-#if ORTHO_HEADROOM_BITS < 0 || ORTHO_HEADROOM_BITS > ORTHO_W - 3
+#define ORTHO_F (ORTHO_COEF_BITS - 1)  /* coefficient fraction bits */
+#define ORTHO_TF (ORTHO_COEF_BITS - 2) /* trim and skew tap fraction bits */
+#define ORTHO_ONE(s) ((ortho_acc_t)1 << (s))
+#if ORTHO_HEADROOM_BITS < 0 || ORTHO_HEADROOM_BITS > 12
 #error "ORTHO_HEADROOM_BITS out of range"
 #endif
 
-static ortho_acc_t ortho_sat(ortho_acc_t v) {
-  return v > ORTHO_WMAX ? (ortho_acc_t)ORTHO_WMAX : v < ORTHO_WMIN ? (ortho_acc_t)ORTHO_WMIN : v;
+static ortho_acc_t ortho_sat32(ortho_acc_t v) {
+  return v > 2147483647L ? (ortho_acc_t)2147483647L : v < -2147483647L - 1 ? (ortho_acc_t)(-2147483647L - 1) : v;
 }
-
-#if ORTHO_KIND == ORTHO_KIND_FIR
-/* A wrapped (modulo 2^(2W)) accumulator read back as a signed value, without the
- * implementation-defined unsigned-to-signed conversion. */
-static ortho_acc_t ortho_signed(ortho_uacc_t u) {
-  const ortho_uacc_t half = (ortho_uacc_t)1 << (2 * ORTHO_W - 1);
-  return u >= half ? -(ortho_acc_t)(~u) - 1 : (ortho_acc_t)u;
+static ortho_acc_t ortho_sat_io(ortho_acc_t v) {
+  return v > ORTHO_SMAX ? (ortho_acc_t)ORTHO_SMAX : v < ORTHO_SMIN ? (ortho_acc_t)ORTHO_SMIN : v;
 }
-#endif
 #else
-#define ORTHO_ANTI_DENORMAL 1e-20f /* added at each branch input, removed at its output */
+#define ORTHO_ANTI_DENORMAL 1e-20f /* added at each all-pass branch input, removed at its output */
 #endif
 
 void ortho_trims_neutral(ortho_trims_t *t) {
@@ -48,12 +43,12 @@ void ortho_trims_neutral(ortho_trims_t *t) {
   t->skew_taps[2] = 0.0f;
   t->skew_taps[3] = 0.0f;
 #else
-  t->gain_cos = (ortho_word_t)((ortho_acc_t)1 << ORTHO_TF);
+  t->gain_cos = (ortho_coef_t)ORTHO_ONE(ORTHO_TF);
   t->gain_sin = 0;
   t->dc_i = 0;
   t->dc_q = 0;
   t->skew_taps[0] = 0;
-  t->skew_taps[1] = (ortho_word_t)((ortho_acc_t)1 << ORTHO_TF);
+  t->skew_taps[1] = (ortho_coef_t)ORTHO_ONE(ORTHO_TF);
   t->skew_taps[2] = 0;
   t->skew_taps[3] = 0;
 #endif
@@ -89,7 +84,7 @@ void ortho_reset(ortho_t *s) {
 
 void ortho_set_trims(ortho_t *s, const ortho_trims_t *t) {
   s->trims = *t;
-  s->coef_a = t->lower_sideband ? (ortho_word_t)-t->gain_cos : t->gain_cos;
+  s->coef_a = t->lower_sideband ? (ortho_coef_t)-t->gain_cos : t->gain_cos;
 #if ORTHO_MAX_SKEW > 0
   if (s->trims.skew_whole < 1) s->trims.skew_whole = 1;
   if (s->trims.skew_whole > 2 * ORTHO_MAX_SKEW + 1) s->trims.skew_whole = 2 * ORTHO_MAX_SKEW + 1;
@@ -109,8 +104,10 @@ static ortho_word_t ortho_to_network(ortho_sample_t x) {
   return x + ORTHO_ANTI_DENORMAL;
 #elif ORTHO_ARITH == ORTHO_ARITH_FLOAT
   return x;
+#elif ORTHO_ARITH == ORTHO_ARITH_Q15
+  return (ortho_word_t)((ortho_acc_t)x * ORTHO_ONE(16 - ORTHO_HEADROOM_BITS));
 #elif ORTHO_HEADROOM_BITS > 0
-  return (ortho_word_t)(((ortho_acc_t)x + ((ortho_acc_t)1 << (ORTHO_HEADROOM_BITS - 1))) >> ORTHO_HEADROOM_BITS);
+  return (ortho_word_t)(((ortho_acc_t)x + ORTHO_ONE(ORTHO_HEADROOM_BITS - 1)) >> ORTHO_HEADROOM_BITS);
 #else
   return x;
 #endif
@@ -118,7 +115,7 @@ static ortho_word_t ortho_to_network(ortho_sample_t x) {
 
 #if ORTHO_KIND == ORTHO_KIND_ALLPASS
 /* One first-order section over a chunk, in place. */
-static void ortho_section1(ortho_word_t *buf, int n, ortho_word_t a, ortho_word_t *st) {
+static void ortho_section1(ortho_word_t *buf, int n, ortho_coef_t a, ortho_word_t *st) {
   int j;
 #if ORTHO_ARITH == ORTHO_ARITH_FLOAT
   float x1 = st[0], y1 = st[2];
@@ -133,9 +130,9 @@ static void ortho_section1(ortho_word_t *buf, int n, ortho_word_t a, ortho_word_
   ortho_acc_t x1 = st[0], y1 = st[2];
   for (j = 0; j < n; j++) {
     const ortho_acc_t x = buf[j];
-    const ortho_acc_t p = (ortho_acc_t)a * (x - y1);
+    const ortho_acc_t p = (ortho_acc_t)a * ortho_sat32(x - y1);
     const ortho_acc_t r = p >= 0 ? p >> ORTHO_F : -((-p) >> ORTHO_F);
-    const ortho_acc_t y = ortho_sat(x1 + r);
+    const ortho_acc_t y = ortho_sat32(x1 + r);
     x1 = x;
     y1 = y;
     buf[j] = (ortho_word_t)y;
@@ -146,7 +143,7 @@ static void ortho_section1(ortho_word_t *buf, int n, ortho_word_t a, ortho_word_
 }
 
 /* One second-order (z^-2) section over a chunk, in place. */
-static void ortho_section2(ortho_word_t *buf, int n, ortho_word_t a, ortho_word_t *st) {
+static void ortho_section2(ortho_word_t *buf, int n, ortho_coef_t a, ortho_word_t *st) {
   int j;
 #if ORTHO_ARITH == ORTHO_ARITH_FLOAT
   float x1 = st[0], x2 = st[1], y1 = st[2], y2 = st[3];
@@ -163,9 +160,9 @@ static void ortho_section2(ortho_word_t *buf, int n, ortho_word_t a, ortho_word_
   ortho_acc_t x1 = st[0], x2 = st[1], y1 = st[2], y2 = st[3];
   for (j = 0; j < n; j++) {
     const ortho_acc_t x = buf[j];
-    const ortho_acc_t p = (ortho_acc_t)a * (x - y2);
+    const ortho_acc_t p = (ortho_acc_t)a * ortho_sat32(x - y2);
     const ortho_acc_t r = p >= 0 ? p >> ORTHO_F : -((-p) >> ORTHO_F);
-    const ortho_acc_t y = ortho_sat(x2 + r);
+    const ortho_acc_t y = ortho_sat32(x2 + r);
     x2 = x1;
     x1 = x;
     y2 = y1;
@@ -179,7 +176,7 @@ static void ortho_section2(ortho_word_t *buf, int n, ortho_word_t a, ortho_word_
   st[3] = (ortho_word_t)y2;
 }
 
-static void ortho_branch(ortho_word_t *buf, int n, const ortho_word_t *coef, const unsigned char *order,
+static void ortho_branch(ortho_word_t *buf, int n, const ortho_coef_t *coef, const unsigned char *order,
                          int count, ortho_word_t *st) {
   int k;
   for (k = 0; k < count; k++) {
@@ -237,12 +234,12 @@ static void ortho_network(ortho_t *s, const ortho_sample_t *in, int n) {
       s->work_q[j] = acc;
       s->work_i[j] = mid[0];
 #else
-      ortho_uacc_t acc = (ortho_uacc_t)1 << (ORTHO_F - 1);
+      ortho_acc_t acc = ORTHO_ONE(ORTHO_F - 1);
       for (k = 0; k < ORTHO_FIR_PAIRS; k++) {
         const int o = ORTHO_FIR_OFFSET[k];
-        acc += (ortho_uacc_t)((ortho_acc_t)ORTHO_FIR_COEF[k] * ((ortho_acc_t)mid[-o] - mid[o]));
+        acc += (ortho_acc_t)ORTHO_FIR_COEF[k] * ortho_sat32((ortho_acc_t)mid[-o] - mid[o]);
       }
-      s->work_q[j] = (ortho_word_t)ortho_sat(ortho_signed(acc) >> ORTHO_F);
+      s->work_q[j] = (ortho_word_t)ortho_sat32(acc >> ORTHO_F);
       s->work_i[j] = mid[0];
 #endif
     }
@@ -253,13 +250,13 @@ static void ortho_network(ortho_t *s, const ortho_sample_t *in, int n) {
 /* ---- trim stage: gain/phase (sideband folded in), optional skew, DC ---- */
 static void ortho_trim(ortho_t *s, ortho_sample_t *out_i, ortho_sample_t *out_q, int n) {
   int j;
-  const ortho_word_t a = s->coef_a, b = s->trims.gain_sin;
+  const ortho_coef_t a = s->coef_a, b = s->trims.gain_sin;
   const ortho_sample_t dci = s->trims.dc_i, dcq = s->trims.dc_q;
 #if ORTHO_MAX_SKEW > 0
   const int L = 2 * ORTHO_MAX_SKEW + 4;
   const int k0 = s->trims.skew_whole - 1;
-  const ortho_word_t h0 = s->trims.skew_taps[0], h1 = s->trims.skew_taps[1];
-  const ortho_word_t h2 = s->trims.skew_taps[2], h3 = s->trims.skew_taps[3];
+  const ortho_coef_t h0 = s->trims.skew_taps[0], h1 = s->trims.skew_taps[1];
+  const ortho_coef_t h2 = s->trims.skew_taps[2], h3 = s->trims.skew_taps[3];
 #endif
   for (j = 0; j < n; j++) {
 #if ORTHO_ARITH == ORTHO_ARITH_FLOAT
@@ -268,10 +265,13 @@ static void ortho_trim(ortho_t *s, ortho_sample_t *out_i, ortho_sample_t *out_q,
     float vq = a * qv + b * iv;
 #else
     const ortho_acc_t iv = s->work_i[j], qv = s->work_q[j];
-    ortho_acc_t vi = ortho_sat(iv * ((ortho_acc_t)1 << ORTHO_HEADROOM_BITS));
-    ortho_acc_t vq = ortho_sat(((ortho_acc_t)a * qv + (ortho_acc_t)b * iv +
-                                ((ortho_acc_t)1 << (ORTHO_TF - ORTHO_HEADROOM_BITS - 1))) >>
-                               (ORTHO_TF - ORTHO_HEADROOM_BITS));
+#if ORTHO_ARITH == ORTHO_ARITH_Q15
+    ortho_acc_t vi = ortho_sat_io((iv + ORTHO_ONE(15 - ORTHO_HEADROOM_BITS)) >> (16 - ORTHO_HEADROOM_BITS));
+#else
+    ortho_acc_t vi = ortho_sat_io(iv * ORTHO_ONE(ORTHO_HEADROOM_BITS));
+#endif
+    ortho_acc_t vq = ortho_sat_io(((ortho_acc_t)a * qv + (ortho_acc_t)b * iv + ORTHO_ONE(29 - ORTHO_HEADROOM_BITS)) >>
+                                  (30 - ORTHO_HEADROOM_BITS));
 #endif
 #if ORTHO_MAX_SKEW > 0
     {
@@ -280,16 +280,16 @@ static void ortho_trim(ortho_t *s, ortho_sample_t *out_i, ortho_sample_t *out_q,
       s->skew_i[s->skew_pos + L] = (ortho_sample_t)vi;
       s->skew_q[s->skew_pos] = (ortho_sample_t)vq;
       s->skew_q[s->skew_pos + L] = (ortho_sample_t)vq;
-      si = s->skew_i + s->skew_pos + 1; /* si[L-1-m] = I'[n-m] */
+      si = s->skew_i + s->skew_pos + 1;                 /* si[L-1-m] = I'[n-m] */
       sq = s->skew_q + s->skew_pos + 1 + (L - 1 - k0); /* sq[-j] = Q'[n-k0-j] */
       if (++s->skew_pos == L) s->skew_pos = 0;
       vi = si[L - 1 - (ORTHO_MAX_SKEW + 1)];
 #if ORTHO_ARITH == ORTHO_ARITH_FLOAT
       vq = h0 * sq[0] + h1 * sq[-1] + h2 * sq[-2] + h3 * sq[-3];
 #else
-      vq = ortho_sat(((ortho_acc_t)h0 * sq[0] + (ortho_acc_t)h1 * sq[-1] + (ortho_acc_t)h2 * sq[-2] +
-                      (ortho_acc_t)h3 * sq[-3] + ((ortho_acc_t)1 << (ORTHO_TF - 1))) >>
-                     ORTHO_TF);
+      vq = ortho_sat_io(((ortho_acc_t)h0 * sq[0] + (ortho_acc_t)h1 * sq[-1] + (ortho_acc_t)h2 * sq[-2] +
+                         (ortho_acc_t)h3 * sq[-3] + ORTHO_ONE(ORTHO_TF - 1)) >>
+                        ORTHO_TF);
 #endif
     }
 #endif
@@ -297,8 +297,8 @@ static void ortho_trim(ortho_t *s, ortho_sample_t *out_i, ortho_sample_t *out_q,
     out_i[j] = vi + dci;
     out_q[j] = vq + dcq;
 #else
-    out_i[j] = (ortho_sample_t)ortho_sat(vi + dci);
-    out_q[j] = (ortho_sample_t)ortho_sat(vq + dcq);
+    out_i[j] = (ortho_sample_t)ortho_sat_io(vi + dci);
+    out_q[j] = (ortho_sample_t)ortho_sat_io(vq + dcq);
 #endif
   }
 }

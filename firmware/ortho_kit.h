@@ -6,22 +6,27 @@
  * ortho_t that the caller owns. Call ortho_init once (or ortho_reset to silence the state), then
  * ortho_set_trims whenever the trims change, and ortho_process once per block.
  *
- * Arithmetic (the same description as src/generate/fixed-point.ts, which models it bit for bit):
- *   W = 16 (q15) or 32 (q31) bit words, F = W - 1 fractional bits; products in 2W-bit accumulators.
- *   - input and output samples: Q(W-1) words (full scale +-1);
- *   - network signals: W-bit words holding the sample scaled by 2^-H (H = ORTHO_HEADROOM_BITS,
- *     chosen by the generator so that no internal node overflows for any input within full scale);
- *     input to network: round-half-up (x + 2^(H-1)) >> H;
- *   - all-pass section (m = 1 or 2): y[n] = sat(x[n-m] + trunc0(a * (x[n] - y[n-m]) / 2^F)),
- *     a in Q(W-1); trunc0 rounds the product toward zero (magnitude truncation), which makes every
- *     section free of zero-input limit cycles; sat saturates to the W-bit range;
- *   - FIR: Q = sat((1 << (F-1) + sum_k g_k * (x[n-c-k] - x[n-c+k])) >> F), the sum wrapping modulo
- *     2^(2W) (two's complement), g_k in Q(W-1); I = x[n-c];
- *   - trims: A = s*G*cos(phi), B = G*sin(phi) in Q(W-2) (range +-2, for gains up to +6 dB),
- *     Q' = sat((A*Q + B*I + 2^(W-3-H)) >> (W-2-H)), I' = sat(I << H) (output units);
- *     optional skew: Q'' = sat(round(sum_j h_j * Q'[n-k+1-j] >> (W-2))), 4-tap Lagrange h_j in
- *     Q(W-2), I'' = I' delayed by ORTHO_MAX_SKEW + 1 samples; DC added last, saturating:
- *     out = sat(v + dc), dc in output units (Q(W-1) counts).
+ * Arithmetic (the same description as src/design/kit-arithmetic.ts; src/generate/fixed-point.ts
+ * models it bit for bit). Q15 and Q31 differ in the words at the edges, not inside:
+ *   - input/output samples: B-bit words, Q(B-1), full scale +-1 (B = 16 for q15, 32 for q31);
+ *   - coefficients: C-bit words, F = C - 1 fractional bits (C = 16 for q15, 32 for q31); trims
+ *     and skew taps in Q(C-2), range +-2, for gains up to +6 dB;
+ *   - network signals and states: 32-bit words in Q(31-H); H = ORTHO_HEADROOM_BITS is chosen by
+ *     the generator from the largest L1 norm of the impulse response to any node, so no node can
+ *     overflow for an input within full scale; products and sums in 64-bit accumulators;
+ *   - all-pass section (m = 1 or 2): d = sat32(x[n] - y[n-m]), p = a * d (64 bit),
+ *     y[n] = sat32(x[n-m] + trunc0(p / 2^F)); trunc0 rounds toward zero (magnitude truncation),
+ *     so no section sustains a zero-input limit cycle (Jackson, BSTJ 48:3021, 1969);
+ *   - FIR: Q = sat32((sum_k g_k * sat32(x[n-c-k] - x[n-c+k]) + 2^(F-1)) >> F), I = x[n-c];
+ *   - to the network: q15 x * 2^(16-H) (exact); q31 (x + 2^(H-1)) >> H (round half up);
+ *   - trims: Q' = sat_B((A*Q + B*I + 2^(29-H)) >> (30-H)) with A = s*G*cos(phi), B = G*sin(phi);
+ *     I' = q15: sat16((I + 2^(15-H)) >> (16-H)); q31: sat32(I * 2^H);
+ *     optional skew: Q'' = sat_B((sum_j h_j * Q'[n-k+1-j] + 2^(C-3)) >> (C-2)), 4-tap Lagrange,
+ *     I'' = I' delayed by ORTHO_MAX_SKEW + 1 samples; DC added last: out = sat_B(v + dc),
+ *     dc in output counts;
+ *   - every rounding not named above is round half up: (v + 2^(s-1)) >> s, arithmetic shift.
+ * Float kits use the same structure in single precision (no rounding steps, no saturation), with
+ * 1e-20 added at each all-pass branch input and removed at its output against subnormal numbers.
  * Right shifts of negative values are arithmetic (checked at compile time below).
  */
 #ifndef ORTHO_KIT_H
@@ -40,22 +45,25 @@
 
 #if ORTHO_ARITH == ORTHO_ARITH_Q15
 typedef int16_t ortho_sample_t; /* input/output sample, Q15 */
-typedef int16_t ortho_word_t;   /* network signal and coefficient word */
-typedef int32_t ortho_acc_t;    /* product / accumulator */
-typedef uint32_t ortho_uacc_t;  /* wrapping accumulator (FIR) */
-#define ORTHO_W 16
-#define ORTHO_WMAX 32767
-#define ORTHO_WMIN (-32767 - 1)
+typedef int16_t ortho_coef_t;   /* coefficient, Q15 (trims and skew taps Q14) */
+typedef int32_t ortho_word_t;   /* network signal and state, Q(31-H) */
+typedef int64_t ortho_acc_t;    /* products and sums */
+#define ORTHO_IO_BITS 16
+#define ORTHO_COEF_BITS 16
+#define ORTHO_SMAX 32767L
+#define ORTHO_SMIN (-32767L - 1)
 #elif ORTHO_ARITH == ORTHO_ARITH_Q31
 typedef int32_t ortho_sample_t; /* input/output sample, Q31 */
-typedef int32_t ortho_word_t;
+typedef int32_t ortho_coef_t;   /* coefficient, Q31 (trims and skew taps Q30) */
+typedef int32_t ortho_word_t;   /* network signal and state, Q(31-H) */
 typedef int64_t ortho_acc_t;
-typedef uint64_t ortho_uacc_t;
-#define ORTHO_W 32
-#define ORTHO_WMAX 2147483647L
-#define ORTHO_WMIN (-2147483647L - 1)
+#define ORTHO_IO_BITS 32
+#define ORTHO_COEF_BITS 32
+#define ORTHO_SMAX 2147483647L
+#define ORTHO_SMIN (-2147483647L - 1)
 #elif ORTHO_ARITH == ORTHO_ARITH_FLOAT
 typedef float ortho_sample_t; /* input/output sample, full scale +-1 */
+typedef float ortho_coef_t;
 typedef float ortho_word_t;
 typedef float ortho_acc_t;
 #else
@@ -74,25 +82,25 @@ typedef float ortho_acc_t;
 
 /* Coefficient tables (ortho_coeffs.c, generated; names from ortho_config.h). */
 #if ORTHO_KIND == ORTHO_KIND_ALLPASS
-extern const ortho_word_t ORTHO_COEF_I[ORTHO_ATLEAST1(ORTHO_SECTIONS_I)];   /* Q(W-1) (float: values) */
+extern const ortho_coef_t ORTHO_COEF_I[ORTHO_ATLEAST1(ORTHO_SECTIONS_I)];   /* Q(C-1) (float: values) */
 extern const unsigned char ORTHO_ORDER_I[ORTHO_ATLEAST1(ORTHO_SECTIONS_I)]; /* 1 or 2 (z^-1 or z^-2) */
-extern const ortho_word_t ORTHO_COEF_Q[ORTHO_ATLEAST1(ORTHO_SECTIONS_Q)];
+extern const ortho_coef_t ORTHO_COEF_Q[ORTHO_ATLEAST1(ORTHO_SECTIONS_Q)];
 extern const unsigned char ORTHO_ORDER_Q[ORTHO_ATLEAST1(ORTHO_SECTIONS_Q)];
 #else
-extern const ortho_word_t ORTHO_FIR_COEF[ORTHO_ATLEAST1(ORTHO_FIR_PAIRS)];     /* g_k = h[c+k], Q(W-1) */
+extern const ortho_coef_t ORTHO_FIR_COEF[ORTHO_ATLEAST1(ORTHO_FIR_PAIRS)];     /* g_k = h[c+k], Q(C-1) */
 extern const unsigned short ORTHO_FIR_OFFSET[ORTHO_ATLEAST1(ORTHO_FIR_PAIRS)]; /* k, offset from centre */
 #endif
 
 /* The kit's own trim values (what a fixed-point firmware applies); make them on the host with
  * ortho_trims_from_units (ortho_host.h) or take them from the profile header. */
 typedef struct {
-  ortho_word_t gain_cos;   /* G*cos(phi): Q(W-2) word (q15: 16384 = 1.0), float: the value */
-  ortho_word_t gain_sin;   /* G*sin(phi): same format */
-  ortho_sample_t dc_i;     /* DC added to I, output units (Q(W-1) counts; float: full scale) */
+  ortho_coef_t gain_cos;   /* G*cos(phi): Q(C-2) (q15: 16384 = 1.0); float: the value */
+  ortho_coef_t gain_sin;   /* G*sin(phi): same format */
+  ortho_sample_t dc_i;     /* DC added to I, output counts (Q(B-1)); float: full scale */
   ortho_sample_t dc_q;     /* DC added to Q, same */
   int lower_sideband;      /* 0: upper sideband; 1: lower (Q negated before the trims) */
   int skew_whole;          /* skew stage: whole part k of ORTHO_MAX_SKEW + 1 + skew, 1..2*ORTHO_MAX_SKEW+1 */
-  ortho_word_t skew_taps[4]; /* Lagrange taps for the fraction, Q(W-2) (float: values) */
+  ortho_coef_t skew_taps[4]; /* Lagrange taps for the fraction, Q(C-2) (float: values) */
 } ortho_trims_t;
 
 /* All state of one generator: network state, trims, work arrays. Caller-owned, no pointers inside. */
@@ -113,7 +121,7 @@ typedef struct {
   int skew_pos;
 #endif
   ortho_trims_t trims;    /* as given */
-  ortho_word_t coef_a;    /* +-gain_cos with the sideband sign folded in */
+  ortho_coef_t coef_a;    /* +-gain_cos with the sideband sign folded in */
   ortho_word_t work_i[ORTHO_CHUNK];
   ortho_word_t work_q[ORTHO_CHUNK];
 } ortho_t;

@@ -1,10 +1,14 @@
 /** Panel 1: the design explorer. Spec in; figures, plots and downloads out. */
-import { analyzeNetwork } from '../../src/design/analysis.js';
-import { designNetwork, type NetworkSpec } from '../../src/design/design-network.js';
-import type { Network } from '../../src/design/network.js';
-import { networkToCHeader } from '../../src/export/c-header.js';
-import { analysisToCsv, networkToCsv } from '../../src/export/csv.js';
-import { networkToJson } from '../../src/export/network-json.js';
+import {
+  analysisToCsv,
+  analyzeNetwork,
+  designNetwork,
+  type Network,
+  type NetworkSpec,
+  networkToCHeader,
+  networkToCsv,
+  networkToJson,
+} from 'orthotone';
 import { download, field, figure, fmt, h, numberInput, select } from './dom.js';
 import { linePlot } from './plot.js';
 

@@ -4,12 +4,16 @@
  * generator's output for the monitor and the in-page virtual exciter. The processor module is the
  * library's own worklet (src/webaudio/processor.ts), bundled by Vite as a separate module.
  */
-import type { Correction } from '../../src/core/trims.js';
-import type { Network } from '../../src/design/network.js';
-import { type CaptureNode, createCaptureNode } from '../../src/webaudio/capture-node.js';
-import type { SourceSpec } from '../../src/webaudio/messages.js';
-import { createQuadratureNode, type QuadratureNode } from '../../src/webaudio/node.js';
-import workletUrl from '../../src/webaudio/processor.ts?worker&url';
+import {
+  type CaptureNode,
+  type Correction,
+  createCaptureNode,
+  createQuadratureNode,
+  type Network,
+  type QuadratureNode,
+  type SourceSpec,
+} from 'orthotone';
+import workletUrl from 'orthotone/worklet?url';
 
 export { workletUrl };
 

@@ -3,12 +3,15 @@
  * I + jQ (spectrum, I/Q scope, and the readings that fit the source: one tone, two tones, or
  * several tones across the band).
  */
-import type { Trims } from '../../src/core/trims.js';
-import { measureSideband } from '../../src/measure/sideband.js';
-import { computeSpectrum } from '../../src/measure/spectrum.js';
-import { measureTones } from '../../src/measure/tones.js';
-import { measureTwoTone, type TwoToneReading } from '../../src/measure/two-tone.js';
-import type { SourceSpec } from '../../src/webaudio/messages.js';
+import {
+  computeSpectrum,
+  measureSideband,
+  measureTones,
+  measureTwoTone,
+  type SourceSpec,
+  type Trims,
+  type TwoToneReading,
+} from 'orthotone';
 import { logTones } from './bench.js';
 import { field, figure, fmt, h, numberInput, select } from './dom.js';
 import type { Engine } from './engine.js';

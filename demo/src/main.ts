@@ -2,8 +2,7 @@
  * The orthotone demo page: design a network, generate I/Q from it, calibrate trims. Invented data
  * only: the virtual benches are tolerance sets of our own (simulate/ presets), not any real unit.
  */
-import { TRANSMIT_CAUTIONS } from '../../src/core/cautions.js';
-import type { Trims } from '../../src/core/trims.js';
+import { TRANSMIT_CAUTIONS, type Trims } from 'orthotone';
 import { calibrationPanel } from './calibration-panel.js';
 import { designPanel } from './design-panel.js';
 import { h } from './dom.js';

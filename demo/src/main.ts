@@ -10,11 +10,55 @@ import { Engine } from './engine.js';
 import { generatorPanel } from './generator-panel.js';
 import './style.css';
 
-const cautions = document.getElementById('cautions')!;
-cautions.append(
-  h('strong', {}, '⚠ Before anything reaches a transmitter'),
-  h('ul', {}, ...TRANSMIT_CAUTIONS.map((c) => h('li', {}, c))),
-);
+/** localStorage key: the reader collapsed the cautions to one line. */
+const CAUTIONS_KEY = 'orthotone.cautions.collapsed';
+
+/**
+ * The cautions sit in the page's flow under the header (never over a status or error line). They
+ * start open; after reading them the user may fold them to one line, and the page remembers that.
+ */
+function cautionsBanner(box: HTMLElement): void {
+  const list = h('ul', { id: 'cautions-list' }, ...TRANSMIT_CAUTIONS.map((c) => h('li', {}, c)));
+  const toggle = h('button', { class: 'link', id: 'cautions-toggle', 'aria-controls': 'cautions-list' });
+  const short = h(
+    'span',
+    { class: 'cautions-short' },
+    'licence · legal limits on emissions · dummy load · RF exposure · local rules come first',
+  );
+  const stored = (() => {
+    try {
+      return localStorage.getItem(CAUTIONS_KEY) === '1';
+    } catch {
+      return false;
+    }
+  })();
+  const set = (collapsed: boolean) => {
+    list.hidden = collapsed;
+    short.hidden = !collapsed;
+    box.classList.toggle('collapsed', collapsed);
+    toggle.setAttribute('aria-expanded', String(!collapsed));
+    toggle.textContent = collapsed ? 'Show the cautions' : 'I have read them: fold to one line';
+    try {
+      localStorage.setItem(CAUTIONS_KEY, collapsed ? '1' : '0');
+    } catch {
+      // Private windows may refuse storage: the banner still folds for this visit.
+    }
+  };
+  toggle.addEventListener('click', () => set(!list.hidden));
+  box.append(
+    h(
+      'div',
+      { class: 'cautions-head' },
+      h('strong', { id: 'cautions-title' }, '⚠ Before anything reaches a transmitter'),
+      short,
+      toggle,
+    ),
+    list,
+  );
+  set(stored);
+}
+
+cautionsBanner(document.getElementById('cautions')!);
 
 const app = document.getElementById('app')!;
 const design = designPanel((net) => {
@@ -33,7 +77,10 @@ function show(name: string): void {
   const key = name in panels ? name : 'design';
   for (const [k, el] of Object.entries(panels)) el.hidden = k !== key;
   for (const a of document.querySelectorAll<HTMLAnchorElement>('.tabs a')) {
-    a.classList.toggle('active', a.dataset['panel'] === key);
+    const on = a.dataset['panel'] === key;
+    a.classList.toggle('active', on);
+    if (on) a.setAttribute('aria-current', 'page');
+    else a.removeAttribute('aria-current');
   }
   if (location.hash !== `#${key}`) history.replaceState(null, '', `#${key}`);
 }

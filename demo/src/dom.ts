@@ -86,7 +86,8 @@ export interface Figure {
   el: HTMLElement;
   /**
    * Shows `text`; a good or bad state is also written as a sign and a word (`note`, or "meets" /
-   * "short"), never shown by colour alone.
+   * "short"), never shown by colour alone. Without a tone, `note` is a plain line under the value
+   * (e.g. the tone level a carrier figure is read against).
    */
   set(text: string, tone?: 'good' | 'bad' | '', note?: string): void;
   /** Back to "—" (no figure: e.g. after a failed run, so no stale figure stays up). */
@@ -110,7 +111,7 @@ export function figure(caption: string, unitNote?: string): Figure {
       v.textContent = text;
       el.className = `figure ${tone}`.trim();
       mark.textContent =
-        tone === 'good' ? `✓ ${note ?? 'meets'}` : tone === 'bad' ? `✗ ${note ?? 'short'}` : '';
+        tone === 'good' ? `✓ ${note ?? 'meets'}` : tone === 'bad' ? `✗ ${note ?? 'short'}` : (note ?? '');
     },
     clear() {
       v.textContent = '—';

@@ -28,6 +28,9 @@ export interface Running {
 
 type Listener = (r: Running | null) => void;
 
+/** The test tone the page starts with, Hz: the command line's default (`--tone`, 1000 Hz). */
+export const DEFAULT_TONE_HZ = 1000;
+
 /** A correction filter pair and where it came from. */
 export interface CorrectionState {
   correction: Correction;
@@ -40,7 +43,7 @@ export interface CorrectionState {
 /** Holds the running audio graph and the settings it was made with. */
 export class Engine {
   running: Running | null = null;
-  source: SourceSpec = { kind: 'tone', frequencyHz: 1800 };
+  source: SourceSpec = { kind: 'tone', frequencyHz: DEFAULT_TONE_HZ };
   levelDb = -10;
   sideband: 'upper' | 'lower' = 'upper';
   outputOn = true;

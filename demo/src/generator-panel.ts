@@ -13,8 +13,8 @@ import {
   type TwoToneReading,
 } from 'orthotone';
 import { logTones } from './bench.js';
-import { field, figure, fmt, h, numberInput, select } from './dom.js';
-import type { Engine } from './engine.js';
+import { field, figure, fmt, h, numberInput, select, statusLine } from './dom.js';
+import { DEFAULT_TONE_HZ, type Engine } from './engine.js';
 import { linePlot } from './plot.js';
 import { iqScope } from './scope.js';
 
@@ -29,9 +29,9 @@ interface TrimControl {
 const TRIM_CONTROLS: TrimControl[] = [
   { name: 'gainDb', label: 'Q gain, dB', range: 1, step: 0.001, digits: 3 },
   { name: 'phaseDeg', label: 'Phase, °', range: 5, step: 0.005, digits: 3 },
-  { name: 'skewSamples', label: 'Q delay, samples', range: 2, step: 0.01, digits: 2 },
-  { name: 'dcI', label: 'DC on I, FS', range: 0.02, step: 0.00001, digits: 5 },
-  { name: 'dcQ', label: 'DC on Q, FS', range: 0.02, step: 0.00001, digits: 5 },
+  { name: 'skewSamples', label: 'Skew (Q later), samples', range: 2, step: 0.01, digits: 2 },
+  { name: 'dcI', label: 'DC on I, of full scale', range: 0.02, step: 0.00001, digits: 5 },
+  { name: 'dcQ', label: 'DC on Q, of full scale', range: 0.02, step: 0.00001, digits: 5 },
 ];
 
 /** Frame of the monitor's spectrum plot: 11.7 Hz bins at 48 kHz, two frames averaged per capture. */
@@ -66,31 +66,42 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
     'tone',
     { id: 'gen-source' },
   );
-  const f1 = numberInput(1800, { min: 20, step: 10, id: 'gen-f1' });
+  // The command line's default test tone (1000 Hz), so the page and `orthotone start` agree.
+  const f1 = numberInput(DEFAULT_TONE_HZ, { min: 20, step: 10, id: 'gen-f1' });
   const f2 = numberInput(700, { min: 20, step: 10, id: 'gen-f2' });
   const f1Row = field('Tone, Hz', f1);
   const f2Row = field('Second tone, Hz', f2);
-  const level = h('input', { type: 'range', min: -60, max: 0, step: 0.5, value: String(engine.levelDb) });
-  const levelOut = h('output', {}, `${engine.levelDb} dBFS`);
+  const level = h('input', {
+    type: 'range',
+    id: 'gen-level',
+    min: -60,
+    max: 0,
+    step: 0.5,
+    value: String(engine.levelDb),
+    'aria-describedby': 'gen-level-hint',
+  });
+  const levelOut = h('output', { for: 'gen-level', id: 'gen-level-out' }, `${engine.levelDb} dBFS`);
   const sideband = select(
     [
       ['upper', 'Upper sideband'],
       ['lower', 'Lower sideband'],
     ],
     'upper',
+    { id: 'gen-sideband' },
   );
-  const status = h('div', { class: 'status' });
+  const status = statusLine('gen-status');
   const sliders = new Map<keyof Trims, { input: HTMLInputElement; out: HTMLOutputElement }>();
   const trimRows = TRIM_CONTROLS.map((c) => {
-    const input = h('input', { type: 'range', min: -c.range, max: c.range, step: c.step, value: '0' });
-    const out = h('output', {}, (0).toFixed(c.digits));
+    const id = `gen-trim-${c.name}`;
+    const input = h('input', { type: 'range', id, min: -c.range, max: c.range, step: c.step, value: '0' });
+    const out = h('output', { for: id }, (0).toFixed(c.digits));
     input.addEventListener('input', () => {
       const v = Number(input.value);
       out.textContent = v.toFixed(c.digits);
       engine.running?.node.setTrims({ [c.name]: v });
     });
     sliders.set(c.name, { input, out });
-    return h('div', { class: 'trim' }, h('label', {}, c.label), input, out);
+    return h('div', { class: 'trim' }, h('label', { for: id }, c.label), input, out);
   });
 
   // Correction filter (from the multi-tone calibration).
@@ -104,7 +115,7 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
   const corrControls = h(
     'div',
     { hidden: true },
-    h('label', {}, corrOn, ' Run it (untick to compare without)'),
+    h('label', { class: 'check' }, corrOn, ' Run it (untick to compare without)'),
     corrRemove,
     h(
       'p',
@@ -124,8 +135,8 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
   // Monitor figures: one set per kind of source, only the fitting one shown.
   const figs = {
     wanted: figure('Wanted tone'),
-    sideband: figure('Sideband suppression'),
-    carrier: figure('Carrier suppression'),
+    sideband: figure('Sideband suppression', 'below the tone'),
+    carrier: figure('Carrier suppression', 'below the tone'),
     peak: figure('Output peak'),
   };
   const two = {
@@ -177,8 +188,8 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
     h(
       'p',
       { class: 'lead' },
-      'The network runs in an AudioWorklet. The left channel carries I and the right channel Q: wire the ',
-      'sound card output to the exciter’s I and Q inputs. Trims act on Q and on DC, smoothly, while it plays.',
+      'The left channel carries I and the right channel Q: wire the sound card output to the exciter’s I and Q ',
+      'inputs. Trims act on Q and on DC, smoothly, while it plays.',
     ),
     h(
       'div',
@@ -191,7 +202,8 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
           {},
           h('legend', {}, 'Audio'),
           startBtn,
-          h('label', {}, outputBox, ' Send to the sound card (left I, right Q)'),
+          status.el,
+          h('label', { class: 'check' }, outputBox, ' Send to the sound card (left I, right Q)'),
         ),
         h(
           'fieldset',
@@ -199,7 +211,17 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
           h('legend', {}, 'Source'),
           field('Signal', kind),
           h('div', { class: 'row' }, f1Row, f2Row),
-          field('Level', h('div', { class: 'level' }, level, levelOut), 'peak dBFS (two tones: PEP)'),
+          h(
+            'div',
+            { class: 'field' },
+            h(
+              'label',
+              { for: 'gen-level' },
+              'Level ',
+              h('small', { class: 'hint-inline', id: 'gen-level-hint' }, 'peak dBFS (two tones: PEP)'),
+            ),
+            h('div', { class: 'level' }, level, levelOut),
+          ),
           field('Sideband', sideband),
         ),
         h(
@@ -209,7 +231,6 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
           scope.el,
           field('Show', magnify, 'magnify how far the trace strays from a circle'),
         ),
-        status,
       ),
       h(
         'div',
@@ -222,6 +243,12 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
           h('button', { class: 'secondary', onclick: () => resetTrims() }, 'Zero all trims'),
         ),
         corrBox,
+        h(
+          'p',
+          { class: 'hint', id: 'gen-monitor-note' },
+          'Monitor: read from the generator’s own digital I/Q, before the sound card. These are true figures of ',
+          'the signal the page sends; what your exciter puts out is read on panel 3 or with a receiver.',
+        ),
         oneBox,
         twoBox,
         multiBox,
@@ -230,8 +257,9 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
     ),
   );
   const spec = linePlot(monitor, {
-    title: 'Spectrum of I + jQ (right of 0 Hz: upper sideband; left: lower)',
-    xLabel: 'Hz from carrier',
+    title: 'Spectrum of the generator’s I/Q (right of the carrier: upper sideband; left: lower)',
+    xLabel: 'Hz from the carrier',
+    xUnit: 'Hz',
     yLabel: 'dBFS',
     series: [{ label: 'level', color: '#0f7c7a' }],
     height: 220,
@@ -278,14 +306,8 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
   showSource(engine.source);
   engine.onSource(showSource);
 
-  const report = (e: unknown) => {
-    status.className = 'status error';
-    status.textContent = e instanceof Error ? e.message : String(e);
-  };
-  const ok = (text: string) => {
-    status.className = 'status';
-    status.textContent = text;
-  };
+  const report = (e: unknown) => status.fail(e instanceof Error ? e.message : String(e));
+  const ok = (text: string) => status.say(text);
 
   startBtn.addEventListener('click', async () => {
     try {
@@ -293,10 +315,14 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
         await engine.stop();
       } else {
         engine.source = source();
+        status.busy('Starting audio…');
+        startBtn.disabled = true;
         await engine.start();
       }
     } catch (e) {
       report(e);
+    } finally {
+      startBtn.disabled = false;
     }
   });
   engine.onChange((r) => {
@@ -398,13 +424,18 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
       spec.setData(xs, [ys]);
       let peak = 0;
       for (let k = 0; k < i.length; k++) peak = Math.max(peak, Math.abs(i[k]!), Math.abs(q[k]!));
-      figs.peak.set(`${fmt(20 * Math.log10(Math.max(peak, 1e-9)))} dBFS`, peak > 1 ? 'bad' : '');
+      figs.peak.set(
+        `${fmt(20 * Math.log10(Math.max(peak, 1e-9)))} dBFS`,
+        peak > 1 ? 'bad' : '',
+        peak > 1 ? 'clipping: lower the level' : undefined,
+      );
       const sign = engine.sideband === 'upper' ? 1 : -1;
       if (src.kind === 'tone') {
         const m = measureSideband(i, q, fs, { toneHz: src.frequencyHz, sideband: engine.sideband });
-        figs.wanted.set(`${fmt(m.wanted.levelDbfs)} dBFS`);
-        figs.sideband.set(`${fmt(m.sidebandSuppressionDb)} dB`);
-        figs.carrier.set(`${fmt(m.carrierSuppressionDb)} dB`);
+        const toneAt = `tone at ${fmt(m.wanted.levelDbfs)} dBFS`;
+        figs.wanted.set(`${fmt(m.wanted.levelDbfs)} dBFS`, '', `${fmt(src.frequencyHz, 0)} Hz`);
+        figs.sideband.set(`${fmt(m.sidebandSuppressionDb)} dB`, '', toneAt);
+        figs.carrier.set(`${fmt(m.carrierSuppressionDb)} dB`, '', toneAt);
       } else if (src.kind === 'two-tone') {
         const [a, b] = src.frequenciesHz;
         showTwoTone(measureTwoTone({ i, q }, fs, [sign * a, sign * b], { maxOrder: 5 }));
@@ -421,8 +452,8 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
         multiBox.dataset['reading'] = JSON.stringify({ tonesHz: f, suppressionDb: sup });
       } else {
         figs.wanted.set('tone sources only');
-        figs.sideband.set('—');
-        figs.carrier.set('—');
+        figs.sideband.clear();
+        figs.carrier.clear();
       }
     } catch {
       // A monitor frame that cannot be read is skipped.

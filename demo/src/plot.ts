@@ -68,11 +68,11 @@ export function linePlot(parent: HTMLElement, opts: PlotOptions): LinePlot {
   );
   const el = h(
     'figure',
-    { class: 'plot', role: 'group', 'aria-labelledby': titleId },
+    { class: 'plot', 'aria-labelledby': titleId },
     h(
       'div',
       { class: 'plot-head' },
-      h('h4', { class: 'plot-title', id: titleId }, opts.title),
+      h('h3', { class: 'plot-title', id: titleId }, opts.title),
       h('span', { class: 'hint' }, 'Point to read values; drag across to zoom'),
       reset,
     ),

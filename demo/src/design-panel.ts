@@ -123,8 +123,8 @@ export function designPanel(onUse: (net: Network) => void): DesignPanel {
     h(
       'p',
       { class: 'lead' },
-      'Give the audio band and how far down the unwanted sideband must be; see the phase error and the ',
-      'suppression the network allows (before any analog errors), what it costs to run, and download it.',
+      'Give the band and the suppression wanted; see the phase error, the suppression the network allows ',
+      '(before analog errors) and its cost, then use or download it.',
     ),
     h(
       'div',
@@ -138,13 +138,9 @@ export function designPanel(onUse: (net: Network) => void): DesignPanel {
           h('legend', {}, 'Specification'),
           field('Sample rate', rate),
           h('div', { class: 'row' }, field('Band low, Hz', lo), field('Band high, Hz', hi)),
-          field('Suppression wanted, dB', target, 'worst case over the band'),
-          field('Network kind', method, 'either: all-pass or FIR, whichever meets it with fewer multiplies'),
-          field(
-            'Coefficient format',
-            format,
-            'the format your firmware runs; the target is met after rounding',
-          ),
+          field('Suppression wanted, dB', target, 'worst in the band'),
+          field('Network kind', method),
+          field('Coefficient format', format, 'as your firmware runs them'),
           runBtn,
           status.el,
         ),

@@ -12,6 +12,8 @@ import {
   type Network,
   type QuadratureNode,
   type SourceSpec,
+  type Trims,
+  ZERO_TRIMS,
 } from 'orthotone';
 import workletUrl from 'orthotone/worklet?url';
 
@@ -47,6 +49,8 @@ export class Engine {
   levelDb = -10;
   sideband: 'upper' | 'lower' = 'upper';
   outputOn = true;
+  /** The trims the generator runs with (kept while audio is stopped, applied when it starts). */
+  trims: Trims = { ...ZERO_TRIMS };
   /** The correction filter held by the page (applied to the node when `on`). */
   correction: CorrectionState | null = null;
   private mic: MediaStreamAudioSourceNode | null = null;
@@ -90,6 +94,7 @@ export class Engine {
       moduleUrl: workletUrl,
       source: this.source.kind === 'input' ? { kind: 'silence' } : this.source,
       levelDb: this.levelDb,
+      trims: this.trims,
       sideband: this.sideband,
       correction: this.correction?.on ? this.correction.correction : null,
     });
@@ -155,6 +160,12 @@ export class Engine {
       }
     }
     await r.node.setSource(s);
+  }
+
+  /** Sets trims (ramped on a running node) and keeps them for the next start. */
+  setTrims(t: Partial<Trims>): void {
+    this.trims = { ...this.trims, ...t };
+    this.running?.node.setTrims(t);
   }
 
   setLevel(db: number): void {

@@ -11,6 +11,7 @@ import {
   type SourceSpec,
   type Trims,
   type TwoToneReading,
+  ZERO_TRIMS,
 } from 'orthotone';
 import { logTones } from './bench.js';
 import { field, figure, fmt, h, numberInput, select, statusLine } from './dom.js';
@@ -43,6 +44,21 @@ export interface GeneratorPanel {
   el: HTMLElement;
   /** Shows trims set elsewhere (by the calibration) on the sliders. */
   showTrims(t: Trims): void;
+  /** The panel's settings, for a saved session. */
+  state(): GeneratorState;
+  /** Sets the panel's settings and the engine's (a loaded session or profile). */
+  restore(s: Partial<GeneratorState>): Promise<void>;
+}
+
+/** The generator's settings, as saved in a session (trims and correction travel in its profile). */
+export interface GeneratorState {
+  source: string;
+  toneHz: number;
+  secondToneHz: number;
+  levelDb: number;
+  sideband: 'upper' | 'lower';
+  output: boolean;
+  magnify: string;
 }
 
 /** A level in dB, or "≤ level" when the reading is at the floor (an upper bound). */
@@ -98,7 +114,7 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
     input.addEventListener('input', () => {
       const v = Number(input.value);
       out.textContent = v.toFixed(c.digits);
-      engine.running?.node.setTrims({ [c.name]: v });
+      engine.setTrims({ [c.name]: v });
     });
     sliders.set(c.name, { input, out });
     return h('div', { class: 'trim' }, h('label', { for: id }, c.label), input, out);
@@ -364,8 +380,8 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
   );
 
   function resetTrims(): void {
-    engine.running?.node.setTrims({ gainDb: 0, phaseDeg: 0, skewSamples: 0, dcI: 0, dcQ: 0 });
-    panel.showTrims({ gainDb: 0, phaseDeg: 0, skewSamples: 0, dcI: 0, dcQ: 0 });
+    engine.setTrims(ZERO_TRIMS);
+    panel.showTrims(ZERO_TRIMS);
   }
 
   function showTwoTone(r: TwoToneReading): void {
@@ -464,7 +480,40 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
 
   const panel: GeneratorPanel = {
     el,
+    state: () => ({
+      source: kind.value,
+      toneHz: Number(f1.value),
+      secondToneHz: Number(f2.value),
+      levelDb: Number(level.value),
+      sideband: sideband.value as 'upper' | 'lower',
+      output: outputBox.checked,
+      magnify: magnify.value,
+    }),
+    async restore(st) {
+      if (st.source !== undefined && [...kind.options].some((o) => o.value === st.source))
+        kind.value = st.source;
+      if (st.toneHz !== undefined) f1.value = String(st.toneHz);
+      if (st.secondToneHz !== undefined) f2.value = String(st.secondToneHz);
+      if (st.magnify !== undefined) magnify.value = st.magnify;
+      if (st.levelDb !== undefined) {
+        level.value = String(st.levelDb);
+        levelOut.textContent = `${level.value} dBFS`;
+        engine.setLevel(Number(level.value));
+      }
+      if (st.output !== undefined) {
+        outputBox.checked = st.output;
+        engine.setOutput(st.output);
+      }
+      if (st.sideband !== undefined) {
+        sideband.value = st.sideband;
+        await engine.setSideband(st.sideband);
+      }
+      // A microphone source asks for permission: a loaded session never starts one by itself.
+      if (kind.value === 'input') kind.value = 'tone';
+      await engine.setSource(source());
+    },
     showTrims(t) {
+      engine.trims = { ...t };
       for (const c of TRIM_CONTROLS) {
         const s = sliders.get(c.name)!;
         const v = Math.max(-c.range, Math.min(c.range, t[c.name]));

@@ -5,9 +5,10 @@
 import { TRANSMIT_CAUTIONS, type Trims } from 'orthotone';
 import { calibrationPanel } from './calibration-panel.js';
 import { designPanel } from './design-panel.js';
-import { h } from './dom.js';
+import { download, h, pickTextFile, statusLine } from './dom.js';
 import { Engine } from './engine.js';
 import { generatorPanel } from './generator-panel.js';
+import { controlsState, openDocument, restoreControls, type SessionParts, sessionToJson } from './session.js';
 import './style.css';
 
 /** localStorage key: the reader collapsed the cautions to one line. */
@@ -84,5 +85,41 @@ function show(name: string): void {
   }
   if (location.hash !== `#${key}`) history.replaceState(null, '', `#${key}`);
 }
+// Open a network, profile or session; save the whole page as a session. Status beside the buttons.
+const parts: SessionParts = {
+  engine,
+  design,
+  gen,
+  cal: { state: () => controlsState(cal.el), restore: (s) => restoreControls(cal.el, s) },
+};
+const fileStatus = statusLine('file-status');
+const openBtn = h(
+  'button',
+  { class: 'secondary', id: 'file-open', 'aria-label': 'Open a network, profile or session (JSON)' },
+  'Open file…',
+);
+const saveBtn = h('button', { class: 'secondary', id: 'file-save' }, 'Save session');
+openBtn.title = 'Open a network, calibration profile or session (JSON)';
+saveBtn.title = 'Save every setting, the network, trims and correction filter as one JSON file';
+openBtn.addEventListener('click', async () => {
+  const f = await pickTextFile('.json,application/json');
+  if (!f) return;
+  fileStatus.busy(`Opening ${f.name}…`);
+  try {
+    fileStatus.say(await openDocument(f.text, f.name, parts));
+  } catch (e) {
+    fileStatus.fail(e instanceof Error ? e.message : String(e));
+  }
+});
+saveBtn.addEventListener('click', () => {
+  try {
+    download('orthotone-session.json', sessionToJson(parts), 'application/json');
+    fileStatus.say('Session saved as orthotone-session.json (settings, network, trims, correction).');
+  } catch (e) {
+    fileStatus.fail(e instanceof Error ? e.message : String(e));
+  }
+});
+document.getElementById('file-bar')!.append(openBtn, saveBtn, fileStatus.el);
+
 window.addEventListener('hashchange', () => show(location.hash.slice(1)));
 show(location.hash.slice(1));

@@ -148,7 +148,8 @@ export function prototypeValues(response: LadderResponse, order: number, rippleD
       n,
     );
   }
-  const beta = Math.log(1 / Math.tanh(rippleDb / 17.37));
+  // MYJ write 17.37 for 40/ln 10 = 17.3718 (dB to nepers, twice); the exact constant is used here.
+  const beta = Math.log(1 / Math.tanh(rippleDb / (40 / Math.LN10)));
   const gamma = Math.sinh(beta / (2 * n));
   const b = (k: number): number => gamma ** 2 + Math.sin((k * Math.PI) / n) ** 2;
   const g = [(2 * a(1)) / gamma];

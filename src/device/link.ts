@@ -220,7 +220,10 @@ export class DeviceLink {
   private onLine(text: string): void {
     if (text === '' || text === '\r') return;
     const line = parseDeviceLine(text);
-    if (line.kind === 'garbage') return this.onGarbage(text);
+    if (line.kind === 'garbage') {
+      this.onGarbage(text);
+      return;
+    }
     if (line.kind === 'notice') {
       if (line.verb !== 'hello') return;
       // A fresh greeting: the device restarted. Ignore it while a `hello` is outstanding (its

@@ -74,7 +74,6 @@ function splitWords(rest: string[]): { words: string[]; fields: Record<string, s
  */
 export function parseDeviceLine(line: string): DeviceLine {
   const text = line.endsWith('\r') ? line.slice(0, -1) : line;
-  // biome-ignore lint/suspicious/noControlCharactersInRegex: the protocol is 7-bit printable ASCII
   if (text.length > LINE_MAX || /[^\x20-\x7e]/.test(text)) return { kind: 'garbage', line };
   const parts = text.split(' ').filter((w) => w !== '');
   const [head, kind, ...rest] = parts;
@@ -392,7 +391,7 @@ export function encodeNetwork(net: LinkNetwork, info: DeviceInfo): { lines: stri
     (at) => `net put at=${at} v=`,
     codes.map((c) => codeText(c, info.arithmetic)),
   );
-  if (orders && orders.some((o) => o !== 1)) {
+  if (orders?.some((o) => o !== 1)) {
     chunk(
       (at) => `net ord at=${at} o=`,
       orders.map((o) => String(o)),

@@ -13,7 +13,9 @@
 #include <stddef.h>
 #include <stdint.h>
 
-#define OTL_VERSION 1
+#ifndef OTL_VERSION
+#define OTL_VERSION 1 /* a test build may claim another version with -DOTL_VERSION=N */
+#endif
 #define OTL_LINE_MAX 96 /* characters before the LF */
 #define OTL_OUT_MAX 200 /* longest answer */
 

@@ -8,6 +8,7 @@
 import { OrthotoneError } from '../core/errors.js';
 import {
   checkDeviceTrims,
+  DEVICE_LINE_MAX,
   type DeviceInfo,
   type DeviceLine,
   type DeviceSource,
@@ -204,7 +205,7 @@ export class DeviceLink {
         this.rxOverflow = false;
         if (over) this.onGarbage(`${line}…`);
         else this.onLine(line);
-      } else if (this.rx.length <= LINE_MAX + 1) {
+      } else if (this.rx.length <= DEVICE_LINE_MAX + 1) {
         this.rx += String.fromCharCode(c);
       } else {
         this.rxOverflow = true;

@@ -9,8 +9,11 @@ import type { CoefficientFormat } from '../design/quantize.js';
 /** The protocol version this library speaks (the greeting's `link=`). */
 export const LINK_VERSION = 1;
 
-/** Longest line either side may send, characters before the LF. */
+/** Longest command line the host may send, characters before the LF (the device's buffer). */
 export const LINE_MAX = 96;
+
+/** Longest line a device may send, characters before the LF. */
+export const DEVICE_LINE_MAX = 200;
 
 /** What a device says about itself in its greeting. */
 export interface DeviceInfo {
@@ -74,7 +77,7 @@ function splitWords(rest: string[]): { words: string[]; fields: Record<string, s
  */
 export function parseDeviceLine(line: string): DeviceLine {
   const text = line.endsWith('\r') ? line.slice(0, -1) : line;
-  if (text.length > LINE_MAX || /[^\x20-\x7e]/.test(text)) return { kind: 'garbage', line };
+  if (text.length > DEVICE_LINE_MAX || /[^\x20-\x7e]/.test(text)) return { kind: 'garbage', line };
   const parts = text.split(' ').filter((w) => w !== '');
   const [head, kind, ...rest] = parts;
   if (head === undefined || kind === undefined) return { kind: 'garbage', line };

@@ -18,7 +18,7 @@ import {
   requirePositive,
   requireRange,
   requireSampleRate,
-  withDefaults,
+  stripUndefined,
 } from '../core/validate.js';
 import {
   createWindow,
@@ -265,7 +265,7 @@ export function computeSpectrum(
   options: Partial<SpectrumOptions> = {},
   minSpacingHz = Number.POSITIVE_INFINITY,
 ): Spectrum {
-  const opts = withDefaults(DEFAULT_SPECTRUM_OPTIONS, options);
+  const opts = { ...DEFAULT_SPECTRUM_OPTIONS, ...stripUndefined(options) };
   const length = captureLength(capture);
   const complex = isIqCapture(capture);
   const plan = planFrames(length, sampleRate, complex, opts, minSpacingHz);

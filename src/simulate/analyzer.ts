@@ -7,7 +7,7 @@
 import { OrthotoneError } from '../core/errors.js';
 import { createRng } from '../core/rng.js';
 import type { Trims } from '../core/trims.js';
-import { requireFinite, requireRange, withDefaults } from '../core/validate.js';
+import { requireFinite, requireRange, stripUndefined } from '../core/validate.js';
 import type { VirtualExciter } from './exciter.js';
 
 /** Options of {@link createAnalyzer}. */
@@ -107,7 +107,7 @@ export function createAnalyzer(
   exciter: VirtualExciter,
   options: Partial<AnalyzerOptions> & { seed: number },
 ): Analyzer {
-  const o = withDefaults(DEFAULT_ANALYZER_OPTIONS as AnalyzerOptions, options);
+  const o = { ...DEFAULT_ANALYZER_OPTIONS, ...stripUndefined(options) } as AnalyzerOptions;
   requireFinite('seed', o.seed);
   requireRange('floorDbc', o.floorDbc, -300, 0, 'dBc');
   requireRange('noiseDb', o.noiseDb, 0, 20, 'dB');

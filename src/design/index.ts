@@ -21,6 +21,12 @@ export {
   networkCost,
   predictFigures,
 } from './analysis.js';
+export {
+  designCorrection,
+  equivalentTrims,
+  evaluateImbalanceModel,
+  type ImbalanceModel,
+} from './correction.js';
 export { type DesignCandidate, designNetwork, type NetworkSpec } from './design-network.js';
 export {
   designHilbertFir,

@@ -5,4 +5,5 @@ export { type CHeaderOptions, networkToCHeader } from './c-header.js';
 export { analysisToCsv, networkToCsv } from './csv.js';
 export { networkToJson, parseNetworkJson } from './network-json.js';
 export { type ProfileHeaderOptions, profileToCHeader } from './profile-header.js';
+export { parseProfileJson, profileToJson } from './profile-json.js';
 export { analysisToSvg, type PlotSeries, type PlotSpec, plotToSvg } from './svg-plot.js';

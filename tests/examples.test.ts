@@ -36,7 +36,7 @@ const MAIN_ENTRY_POINTS: Record<string, string[]> = {
     'plotToSvg',
     'createQuadratureNode',
   ],
-  'orthotone/node': [],
+  'orthotone/node': ['writeIqWavFile', 'readIqWavFile'],
 };
 
 const dir = join(REPO, 'tests', 'artifacts', 'examples');

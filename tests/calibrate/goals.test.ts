@@ -23,7 +23,12 @@ describe('issue 9 goals on drawn devices (default settings)', () => {
   it('sideband, exact-scale trims: median ≥ 80 dB within 10, p90 ≥ 70 dB within 16, median ≥ 75 dB with 5% outliers', async () => {
     const r10 = await runBench('sideband', devices, { budget: 10, seed: 21, mismatched: false });
     const r16 = await runBench('sideband', devices, { budget: 16, seed: 21, mismatched: false });
-    const o16 = await runBench('sideband', devices, { budget: 16, seed: 22, mismatched: false, outlierRate: 0.05 });
+    const o16 = await runBench('sideband', devices, {
+      budget: 16,
+      seed: 22,
+      mismatched: false,
+      outlierRate: 0.05,
+    });
     expect(r10.median).toBeGreaterThanOrEqual(80);
     expect(r16.p90).toBeGreaterThanOrEqual(70);
     expect(o16.median).toBeGreaterThanOrEqual(75);
@@ -31,7 +36,12 @@ describe('issue 9 goals on drawn devices (default settings)', () => {
   });
   it('carrier, exact-scale trims: p90 ≥ 70 dB within 16, median ≥ 75 dB with 5% outliers', async () => {
     const r16 = await runBench('carrier', devices, { budget: 16, seed: 23, mismatched: false });
-    const o16 = await runBench('carrier', devices, { budget: 16, seed: 24, mismatched: false, outlierRate: 0.05 });
+    const o16 = await runBench('carrier', devices, {
+      budget: 16,
+      seed: 24,
+      mismatched: false,
+      outlierRate: 0.05,
+    });
     expect(r16.p90).toBeGreaterThanOrEqual(70);
     expect(o16.median).toBeGreaterThanOrEqual(75);
     expect(o16.worseThanStart).toBe(0);

@@ -115,7 +115,8 @@ export function describeNetwork(net: Network): string {
       : `${net.branches.i.sections.length} + ${net.branches.q.sections.length} sections ` +
         `(orders ${[...new Set([...net.branches.i.sections, ...net.branches.q.sections].map((s) => s.order))].join('/')}), ` +
         `delays ${net.branches.i.delay}/${net.branches.q.delay}`;
-  const lat = net.cost.latencySamples;
+  // Every figure from the coefficients (a.predicted, a.cost), never from the document's stored fields.
+  const lat = a.cost.latencySamples;
   const pairs: [string, string][] = [
     ['network', net.kind === 'fir' ? 'Hilbert FIR (type III)' : 'all-pass pair'],
     ['size', size],
@@ -123,15 +124,15 @@ export function describeNetwork(net: Network): string {
     ['band', `${net.band[0]}–${net.band[1]} Hz`],
     [
       'worst suppression',
-      `${net.predicted.worstSuppressionDb.toFixed(2)} dB at ${a.worst.atHz.toFixed(1)} Hz (opposite sideband, dBc)`,
+      `${a.predicted.worstSuppressionDb.toFixed(2)} dB at ${a.predicted.worstSuppressionAtHz.toFixed(1)} Hz (opposite sideband, dBc)`,
     ],
-    ['max phase error', `${net.predicted.maxPhaseErrorDeg.toPrecision(4)}°`],
-    ['max gain error', `${net.predicted.maxGainErrorDb.toPrecision(4)} dB`],
+    ['max phase error', `${a.predicted.maxPhaseErrorDeg.toPrecision(4)}°`],
+    ['max gain error', `${a.predicted.maxGainErrorDb.toPrecision(4)} dB`],
     [
       'group delay I/Q',
       `difference ${fixed(a.groupDelayDifference.min, 2)} to ${fixed(a.groupDelayDifference.max, 2)} samples over the band`,
     ],
-    ['cost', `${net.cost.multipliesPerSample} multiplies/sample`],
+    ['cost', `${a.cost.multipliesPerSample} multiplies/sample`],
     ['latency', `${lat.toFixed(2)} samples (${((lat / net.sampleRate) * 1000).toFixed(3)} ms)`],
     [
       'after rounding',

@@ -131,4 +131,3 @@ export function loadNetworkFile(path: string): CheckedNetwork {
 export function disagreementWarning(path: string, d: readonly string[]): string {
   return `WARNING: ${path}: stored figures disagree with its coefficients (shown figures are computed): ${d.join('; ')}`;
 }
-

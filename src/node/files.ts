@@ -18,8 +18,12 @@ import {
 import { basename, dirname, join, resolve } from 'node:path';
 import { OrthotoneError } from '../core/errors.js';
 
-/** Errors Node raises for a write that cannot be done, turned into one readable line. */
-function describeFsError(e: unknown, path: string): string {
+/**
+ * An error Node raised for a write that cannot be done, turned into one readable line naming the
+ * file and the cause.
+ * @throws never
+ */
+export function describeWriteError(e: unknown, path: string): string {
   const err = e as NodeJS.ErrnoException;
   switch (err.code) {
     case 'ENOSPC':
@@ -80,7 +84,7 @@ export function writeFileAtomic(path: string, data: string | Uint8Array): void {
     } catch {
       // the temporary file was never created
     }
-    throw new OrthotoneError('WRITE_FAILED', describeFsError(e, path), path);
+    throw new OrthotoneError('WRITE_FAILED', describeWriteError(e, path), path);
   }
 }
 

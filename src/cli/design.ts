@@ -2,7 +2,6 @@
  * `orthotone design`: design a 90° network for a sample rate and band and print or write it as a
  * readable table, the JSON network document, a C header or CSV.
  */
-import { writeFileSync } from 'node:fs';
 import { analyzeNetwork } from '../design/analysis.js';
 import { designNetwork, type NetworkSpec } from '../design/design-network.js';
 import type { Network } from '../design/network.js';
@@ -10,6 +9,7 @@ import { quantizationReport } from '../design/quantize.js';
 import { networkToCHeader } from '../export/c-header.js';
 import { networkToCsv } from '../export/csv.js';
 import { networkToJson } from '../export/network-json.js';
+import { writeFileAtomic } from '../node/files.js';
 import { choiceOpt, inCliWords, numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
 import { fixed, formatPairs } from './table.js';
 
@@ -203,7 +203,7 @@ export async function run(argv: string[]): Promise<number> {
   const net = inCliWords(() => designNetwork(specFromOptions(v)));
   const text = renderNetwork(net, (v.format as string | undefined) ?? 'table', v.name as string | undefined);
   if (typeof v.out === 'string') {
-    writeFileSync(v.out, text);
+    writeFileAtomic(v.out, text);
     process.stderr.write(
       `orthotone: wrote ${v.out} (${net.kind}, worst suppression ${net.predicted.worstSuppressionDb.toFixed(2)} dB)\n`,
     );

@@ -1,14 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { designAllpassPair } from '../../src/design/allpass-pair.js';
 import { analyzeNetwork, networkCost, predictFigures } from '../../src/design/analysis.js';
-import {
-  type AllpassNetwork,
-  evaluateBranches,
-  type FirNetwork,
-  type Network,
-  suppressionFromResponse,
-} from '../../src/design/network.js';
+import type { AllpassNetwork, FirNetwork, Network } from '../../src/design/network.js';
 import { expectOrthotoneError } from '../support/errors.js';
+import { ownResponseAt, ownSweep } from '../support/network-response.js';
 
 const blank = {
   format: 'orthotone-network' as const,
@@ -39,14 +34,14 @@ function windowedHilbert(n: number): number[] {
   });
 }
 
-/** Unwrapped phase of one branch along a frequency grid, from evaluateBranches (network.ts). */
+/** Unwrapped phase of one branch along a frequency grid, from the tests' own evaluator (tests/support). */
 function unwrappedPhase(net: Network, freqs: number[], which: 'i' | 'q'): number[] {
   const out: number[] = [];
   let prev = 0;
   let offset = 0;
   for (const f of freqs) {
-    const r = evaluateBranches(net, f)[which];
-    let p = Math.atan2(r.im, r.re) + offset;
+    const [re, im] = ownResponseAt(net, f)[which];
+    let p = Math.atan2(im, re) + offset;
     while (p - prev > Math.PI) {
       p -= 2 * Math.PI;
       offset -= 2 * Math.PI;
@@ -156,20 +151,14 @@ describe('analyzeNetwork: FIR Hilbert transformer', () => {
 
 describe('predictFigures', () => {
   it('finds the true worst case between grid points and at the band edges', () => {
-    // Source: the test's own dense evaluation with network.ts's evaluateBranches (500k points).
+    // Source: the tests' own dense evaluation (tests/support/network-response.ts, no code shared with
+    // src/design), 500k points.
     for (const net of [
       allpassNet(48000, [300, 3000], 60),
       allpassNet(8000, [200, 3800], 45, 'second-order'),
     ]) {
       const p = predictFigures(net);
-      let worst = Number.POSITIVE_INFINITY;
-      const [lo, hi] = net.band;
-      for (let k = 0; k <= 500000; k++) {
-        worst = Math.min(
-          worst,
-          suppressionFromResponse(evaluateBranches(net, lo + ((hi - lo) * k) / 500000)),
-        );
-      }
+      const worst = ownSweep(net, 500000, 'linear').worstSuppressionDb;
       expect(p.worstSuppressionDb).toBeLessThanOrEqual(worst + 1e-9);
       expect(p.worstSuppressionDb).toBeGreaterThan(worst - 0.002);
       // All-pass: gain is exactly 1, so the gain error is rounding noise.

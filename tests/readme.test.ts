@@ -1,7 +1,7 @@
 // The README's TypeScript examples are the documentation users copy: they must type-check under the
 // project's strict settings against the BUILT package's types, run against the BUILT package (dist/,
 // imported as 'orthotone' exactly as written, resolved by Node's package self-reference through
-// package.json `exports`), and print what the README says they print. (STYLE.md habits 12 and 17.)
+// package.json `exports`), and print what the README says they print.
 // dist/ is rebuilt first when older than src/ (tests/support/dist-setup.ts).
 import { spawnSync } from 'node:child_process';
 import { mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';

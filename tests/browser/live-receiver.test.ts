@@ -134,9 +134,9 @@ describe('demo page, live receiver path (fake microphone)', { retry: 1 }, () => 
     await page.selectOption('#cal-rxside', 'upper');
     await page.fill('#cal-settle', '100');
 
-    // File 1: an ideal exciter; the imbalance is the generator's trims. 0.1 dB and 1°: REFERENCES.md
-    // §1 [P] Schmidt, QEX Aug 1994 §2, IRR = (1 + 2g·cosφ + g²)/(1 − 2g·cosφ + g²) = 39.614 dB
-    // (the table's combined value). Carrier: REFERENCES.md §1 [C], |dI + j·dQ| over the wanted
+    // File 1: an ideal exciter; the imbalance is the generator's trims. 0.1 dB and 1°: K. Schmidt,
+    // QEX Aug 1994 §2, IRR = (1 + 2g·cosφ + g²)/(1 − 2g·cosφ + g²) = 39.614 dB
+    // (computed from that formula). Carrier: computed from the signal model, |dI + j·dQ| over the wanted
     // tone's amplitude A·|1 + g·e^{jφ}|/2 (the same model's wanted term).
     const g = 10 ** (0.1 / 20);
     const phi = Math.PI / 180;
@@ -144,7 +144,7 @@ describe('demo page, live receiver path (fake microphone)', { retry: 1 }, () => 
     const dcQ = 0.0005 * A;
     writeFileSync(MIC, receiverAudio(IDEAL_MODEL, { gainDb: 0.1, phaseDeg: 1, dcI, dcQ }));
     const irrDb = 10 * Math.log10((1 + 2 * g * Math.cos(phi) + g * g) / (1 - 2 * g * Math.cos(phi) + g * g));
-    expect(irrDb).toBeCloseTo(39.614, 3); // REFERENCES.md §1 table, 0.1 dB and 1°
+    expect(irrDb).toBeCloseTo(39.614, 3); // Schmidt's formula, 0.1 dB and 1°
     const wantedAmp = (A * Math.hypot(1 + g * Math.cos(phi), g * Math.sin(phi))) / 2;
     const carrierDb = -20 * Math.log10(Math.hypot(dcI, dcQ) / wantedAmp);
     const r1 = await readSettled();

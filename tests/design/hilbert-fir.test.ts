@@ -61,9 +61,9 @@ function independent(taps: number[], fs: number, band: [number, number], points 
 }
 
 describe('designHilbertFir: sign and structure', () => {
-  it('Q lags I by 90° (DESIGN.md §2): exact phase, suppression positive, textbook sign', () => {
-    // DESIGN.md §2–3: Q is the FIR, I a pure delay of (N−1)/2; ideal h(n) = 2/(πn) for odd n
-    // (Reilly, Frazer & Boashash 1994, REFERENCES.md §2), so the tap just after the centre is positive.
+  it('Q lags I by 90° (README.md conventions: Q lags I by 90°): exact phase, suppression positive, textbook sign', () => {
+    // The project's convention (src/design/hilbert-fir.ts): Q is the FIR, I a pure delay of (N−1)/2; ideal h(n) = 2/(πn) for odd n
+    // (Reilly, Frazer & Boashash, IEEE Trans. SP 42:3241, 1994), so the tap just after the centre is positive.
     const d = designHilbertFir({ sampleRate: 48000, band: [300, 3000], taps: 127 });
     const c = (d.taps.length - 1) / 2;
     expect(d.delaySamples).toBe(c);
@@ -81,7 +81,7 @@ describe('designHilbertFir: sign and structure', () => {
   });
 
   it('band symmetric about fs/4: even-offset taps are exactly zero and counted', () => {
-    // REFERENCES.md §2 [P]: type III, taps at even offsets from the centre vanish when lo + hi = fs/2.
+    // Reilly, Frazer & Boashash, IEEE Trans. SP 42:3241, 1994: type III, taps at even offsets from the centre vanish when lo + hi = fs/2.
     for (const n of [63, 65]) {
       const d = designHilbertFir({ sampleRate: 48000, band: [300, 23700], taps: n });
       const c = (n - 1) / 2;
@@ -118,7 +118,7 @@ describe('designHilbertFir: sign and structure', () => {
   it('Kaiser method: the windowed ideal response 2/(πn)·w(n) with the reported β', () => {
     // J. F. Kaiser, "Nonrecursive digital filter design using the I0-sinh window function", Proc. IEEE
     // ISCAS 1974 (as in Oppenheim & Schafer, Discrete-Time Signal Processing, and scipy's
-    // signal.windows.kaiser; REFERENCES.md §2): h = w·h_ideal, h_ideal(n) = 2/(πn) for odd n, with the
+    // signal.windows.kaiser): h = w·h_ideal, h_ideal(n) = 2/(πn) for odd n, with the
     // window computed here from its definition, not with src/design/kaiser.ts.
     const d = designHilbertFir({ sampleRate: 48000, band: [300, 3000], taps: 255, method: 'kaiser' });
     const w = ownKaiser(255, d.beta!);
@@ -201,9 +201,9 @@ describe('designHilbertFir: target search', () => {
       expect(shorter.worstSuppressionDb).toBeLessThan(target);
     }
   });
-  it('REFERENCES.md §2: ripple δ with exact 90° gives 20·log10((2−δ)/δ) at the worst frequency', () => {
-    // REFERENCES.md §2 quotes (2+δ)/δ, which is the suppression at the ripple peaks above 1; the
-    // worst case is the dips below 1, (2−δ)/δ (REFERENCES.md §1 with φ = 0, g = 1 − δ).
+  it('ripple δ with exact 90° gives 20·log10((2−δ)/δ) at the worst frequency', () => {
+    // (2+δ)/δ, often quoted, which is the suppression at the ripple peaks above 1; the
+    // worst case is the dips below 1, (2−δ)/δ (Schmidt's formula, QEX Aug 1994 §2, with φ = 0, g = 1 − δ).
     expect(hilbertSuppressionFromRipple(0.011212)).toBeCloseTo(44.978, 3);
     expect(20 * Math.log10((2 + 0.011212) / 0.011212)).toBeCloseTo(45.08, 2);
     expect(hilbertRippleFromSuppression(hilbertSuppressionFromRipple(0.003))).toBeCloseTo(0.003, 15);

@@ -96,7 +96,7 @@ describe('I and Q are 90° apart within the predicted error (independent single-
   });
 });
 
-describe('trims against the image-rejection formula (REFERENCES.md §1, K. Schmidt QEX 1994 §2)', () => {
+describe('trims against the image-rejection formula (K. Schmidt, QEX Aug 1994 §2)', () => {
   // 511-tap Kaiser Hilbert FIR: its own suppression at 6 and 12 kHz is over 130 dB, negligible.
   const net = kaiserHilbertNetwork(511, 12, [2000, 22000], 48000);
   const fs = 48000;
@@ -122,7 +122,7 @@ describe('trims against the image-rejection formula (REFERENCES.md §1, K. Schmi
     });
   }
 
-  it('REFERENCES.md §1 table: 1° alone gives 41.183 dB, 0.5 dB alone 30.820 dB, both 0.1 dB and 1° 39.614 dB', () => {
+  it('Schmidt's formula: 1° alone gives 41.183 dB, 0.5 dB alone 30.820 dB, both 0.1 dB and 1° 39.614 dB', () => {
     for (const [t, pub] of [
       [{ phaseDeg: 1 }, 41.183],
       [{ gainDb: 0.5 }, 30.82],
@@ -149,7 +149,7 @@ describe('trims against the image-rejection formula (REFERENCES.md §1, K. Schmi
     ).toBeLessThan(0.01);
   });
 
-  it('DC trims give the carrier of the formula: dI = 0.001A, dQ = 0.0005A → −59.031 dBc (REFERENCES.md §1)', () => {
+  it('DC trims give the carrier of the formula: dI = 0.001A, dQ = 0.0005A → −59.031 dBc (K. Schmidt, QEX Aug 1994 §2)', () => {
     const a = 0.5;
     const gen = createQuadratureGenerator(net, { trims: { dcI: 0.001 * a, dcQ: 0.0005 * a } });
     const { i, q } = run(gen, tone(settle + n, 12000, fs, a));
@@ -162,7 +162,7 @@ describe('trims against the image-rejection formula (REFERENCES.md §1, K. Schmi
     expect(Math.hypot(zt.re, zt.im) / n).toBeCloseTo(a, 4);
   });
 
-  it('fractional skew gives the phase error 2πfτ of REFERENCES.md §6 (both signs)', () => {
+  it('fractional skew gives the phase error 2πfτ of a delay τ (common practice, no source; both signs)', () => {
     for (const s of [0.05, -0.05, 0.37, -2.6]) {
       for (const f of [6000, 3000]) {
         const gen = createQuadratureGenerator(net, { trims: { skewSamples: s } });

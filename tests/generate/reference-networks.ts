@@ -6,7 +6,7 @@ import type { AllpassNetwork, FirNetwork, Network } from '../../src/design/netwo
 import { ownSweep } from '../support/network-response.js';
 
 /**
- * O. Niemitalo's 90° pair (music-dsp mailing list, 2001, public post; REFERENCES.md §3): two cascades
+ * O. Niemitalo's 90° pair (music-dsp mailing list, 2001, public post): two cascades
  * of four sections `(a² − z⁻²)/(1 − a²·z⁻²)`, the first cascade also delayed one sample. In the
  * document's form `(c + z⁻²)/(1 + c·z⁻²)` each section has c = −a² (the section's sign flip cancels
  * over four sections). Stated: fs 44100 Hz, 20–22030 Hz, 0.7° max phase error.
@@ -24,7 +24,7 @@ export function predictedOver(net: Network, points = 2000) {
 
 /**
  * The Niemitalo pair as an 'allpass' document. The delayed cascade (a = 0.692…) is the Q branch:
- * checked in the tests by the sign of the phase difference (I leads Q by 90°, DESIGN.md §2).
+ * checked in the tests by the sign of the phase difference (I leads Q by 90°, the README.md conventions).
  * @param firstOrder split every z⁻² section into two first-order sections `(−a + z⁻¹)/(1 − a·z⁻¹)`
  *   and `(a + z⁻¹)/(1 + a·z⁻¹)`, whose product is `(−a² + z⁻²)/(1 − a²·z⁻²)` (same response).
  */

@@ -73,7 +73,7 @@ export interface OwnResponse {
 /**
  * The two branches' complex responses at `frequencyHz`, by the tests' own arithmetic: an all-pass
  * branch section by section ({@link branchAt}); a FIR document's Q branch as the DTFT Σ h[k]·e^{−jωk}
- * of its taps and its I branch as the pure delay of (taps − 1)/2 samples (DESIGN.md §3).
+ * of its taps and its I branch as the pure delay of (taps − 1)/2 samples (src/design/network.ts).
  */
 export function ownResponseAt(net: Network, frequencyHz: number): OwnResponse {
   const w = (2 * Math.PI * frequencyHz) / net.sampleRate;
@@ -91,7 +91,7 @@ export function ownResponseAt(net: Network, frequencyHz: number): OwnResponse {
 /**
  * Figures of one response, by their definitions: suppression `20·log10(|Hi + jHq| / |Hi − jHq|)` dB
  * (wanted over image; K. Schmidt, QEX Aug 1994 §2); phase error `arg Hi − arg Hq − 90°` wrapped to
- * (−180°, 180°] (Q lags I by 90°, DESIGN.md §2); gain error `20·log10(|Hq|/|Hi|)` dB.
+ * (−180°, 180°] (Q lags I by 90°, the README.md conventions); gain error `20·log10(|Hq|/|Hi|)` dB.
  */
 export function ownFigures(r: OwnResponse): {
   suppressionDb: number;

@@ -122,7 +122,7 @@ describe('trims against the image-rejection formula (K. Schmidt, QEX Aug 1994 §
     });
   }
 
-  it('Schmidt's formula: 1° alone gives 41.183 dB, 0.5 dB alone 30.820 dB, both 0.1 dB and 1° 39.614 dB', () => {
+  it("Schmidt's formula: 1° alone gives 41.183 dB, 0.5 dB alone 30.820 dB, both 0.1 dB and 1° 39.614 dB", () => {
     for (const [t, pub] of [
       [{ phaseDeg: 1 }, 41.183],
       [{ gainDb: 0.5 }, 30.82],

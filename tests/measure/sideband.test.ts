@@ -30,7 +30,7 @@ function iq(
   return { i, q };
 }
 
-describe('measureSideband on I/Q against K. Schmidt's formula (QEX Aug 1994 §2), values computed from it', () => {
+describe('measureSideband on I/Q against the formula of K. Schmidt (QEX Aug 1994 §2), values computed from it', () => {
   const cases: [string, number, number, number][] = [
     ['1° phase error', 0, 1, 41.183],
     ['2° phase error', 0, 2, 35.162],

@@ -225,7 +225,10 @@ export interface CalibrateExtras {
   applier?: TrimApplier;
   /** One line saying what applies the trims, printed before the first reading. */
   applierNote?: string;
-  /** Called with the final trims (the best so far when cut short) before the command returns. */
+  /**
+   * Called with the final trims (the best so far when cut short) before the command returns.
+   * @throws should not: an error ends the command after the profile is written.
+   */
   onFinish?: (trims: Trims) => void;
 }
 

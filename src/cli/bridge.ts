@@ -58,8 +58,8 @@ export async function run(argv: string[]): Promise<number> {
     if (e instanceof OrthotoneError) throw new UsageError(e.message);
     throw e;
   });
-  process.stdout.write(`bridge: ${bridge.url} -> ${v.device} (Ctrl-C to stop)\n`);
-  await new Promise<void>((resolve) => {
+  // Handlers first, then the address: a caller may signal as soon as it reads the line.
+  const stopped = new Promise<void>((resolve) => {
     const stop = () => {
       process.off('SIGINT', stop);
       process.off('SIGTERM', stop);
@@ -68,6 +68,8 @@ export async function run(argv: string[]): Promise<number> {
     process.on('SIGINT', stop);
     process.on('SIGTERM', stop);
   });
+  process.stdout.write(`bridge: ${bridge.url} -> ${v.device} (Ctrl-C to stop)\n`);
+  await stopped;
   await bridge.close();
   return 0;
 }

@@ -12,6 +12,14 @@ interface Command {
 
 const COMMANDS: Record<string, Command> = {
   // Each command registers here: name → module.
+  device: {
+    summary: 'talk to a microcontroller over the link protocol: identify, trims, set, load, store',
+    load: () => import('./device.js'),
+  },
+  bridge: {
+    summary: 'serve a serial device to a browser page over a local WebSocket',
+    load: () => import('./bridge.js'),
+  },
   start: {
     summary: 'a first run: design, render a two-tone, calibrate a virtual exciter, write ./out',
     load: () => import('./start.js'),

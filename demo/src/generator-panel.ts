@@ -76,7 +76,7 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
       ['multitone', 'Tones across the band'],
       ['sweep', 'Sweep'],
       ['noise', 'Noise (band-limited)'],
-      ['input', 'Sound card input (microphone or line)'],
+      ['input', 'Sound card input'],
       ['silence', 'Silence (carrier only)'],
     ],
     'tone',

@@ -142,6 +142,7 @@ export function linePlot(parent: HTMLElement, opts: PlotOptions): LinePlot {
             zoom = [Math.min(a, b), Math.max(a, b)];
             p.setSelect({ left: 0, top: 0, width: 0, height: 0 }, false);
             p.setScale('x', { min: zoom[0], max: zoom[1] });
+            el.dataset['zoom'] = JSON.stringify(zoom);
             reset.hidden = false;
           },
         ],
@@ -182,6 +183,7 @@ export function linePlot(parent: HTMLElement, opts: PlotOptions): LinePlot {
   u.ctx.canvas.setAttribute('aria-describedby', altId);
   const resetZoom = () => {
     zoom = null;
+    delete el.dataset['zoom'];
     reset.hidden = true;
     u.setData(data as unknown as uPlot.AlignedData, true);
   };
@@ -203,7 +205,7 @@ export function linePlot(parent: HTMLElement, opts: PlotOptions): LinePlot {
     const [x, ...ys] = data;
     if (x.length === 0) return 'No data yet.';
     const parts: string[] = [opts.describe ? opts.describe(x, ys) : `${opts.title}.`];
-    parts.push(`${opts.xLabel} from ${fx(x[0]!)} to ${fx(x[x.length - 1]!)}.`);
+    parts.push(`Shown from ${fx(x[0]!)} to ${fx(x[x.length - 1]!)}.`);
     opts.series.forEach((s, k) => {
       const y = ys[k] ?? [];
       let lo = -1;

@@ -5,10 +5,13 @@
  * with a readout, zoom and text alternatives, the CLI's names and default tone, and a session that
  * saves and opens again. One browser launch for the file.
  */
-import { readdirSync, readFileSync } from 'node:fs';
+import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { ViteDevServer } from 'vite';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { createProfile, profileToJson } from '../../src/calibrate/profile.js';
+import { designNetwork } from '../../src/design/design-network.js';
 import { TOLERANCE_PRESETS } from '../../src/simulate/model.js';
 import { type Browser, launchChromium, startVite } from './support/chromium.js';
 import { REPO_ROOT } from './support/worklet-build.js';
@@ -325,6 +328,44 @@ describe('demo page at 1366×768', () => {
     });
     await page.waitForSelector('#file-status.error');
     expect(await page.textContent('#file-status')).toContain('open an orthotone network, profile or session');
+    expect(errors).toEqual([]);
+  });
+
+  it('opens a calibration profile: its network shown and used, its trims and correction filter applied', async () => {
+    const { page, errors } = browser;
+    // A profile as the command line or the page writes it: a 24 kHz FIR network, trims and a
+    // 15-tap correction pair (an identity filter: a centre tap of 1 on Q, nothing from I).
+    const net = designNetwork({ sampleRate: 24000, band: [300, 3000], method: 'fir', targetDb: 40 });
+    const taps = 15;
+    const qFromQ = Array.from({ length: taps }, (_, k) => (k === (taps - 1) / 2 ? 1 : 0));
+    const profile = createProfile({
+      sampleRate: 24000,
+      toneHz: 1000,
+      sideband: 'lower',
+      trims: { gainDb: 0.25, phaseDeg: -0.75, skewSamples: 0.1, dcI: 0.001, dcQ: -0.002 },
+      correction: { qFromQ, qFromI: qFromQ.map(() => 0) },
+      network: net,
+    });
+    const dir = mkdtempSync(join(tmpdir(), 'orthotone-profile-'));
+    const file = join(dir, 'bench-profile.json');
+    writeFileSync(file, profileToJson(profile));
+    try {
+      await open(page, 'generate');
+      const [chooser] = await Promise.all([page.waitForEvent('filechooser'), page.click('#file-open')]);
+      await chooser.setFiles(file);
+      await expect.poll(() => page.textContent('#file-status')).toContain('profile applied');
+      const said = (await page.textContent('#file-status')) ?? '';
+      expect(said).toContain('network at 24000 Hz');
+      expect(said).toContain('15-tap correction filter');
+      expect(Number(await page.inputValue('#gen-trim-gainDb'))).toBe(0.25);
+      expect(Number(await page.inputValue('#gen-trim-phaseDeg'))).toBe(-0.75);
+      expect(await page.inputValue('#gen-sideband')).toBe('lower');
+      expect(await page.textContent('#gen-corr-text')).toContain('15 taps');
+      expect(await page.inputValue('#design-rate')).toBe('24000');
+      await expect.poll(() => page.textContent('#design-load-status')).toContain('Hilbert FIR');
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
     expect(errors).toEqual([]);
   });
 });

@@ -237,6 +237,20 @@ describe('demo page at 1366×768', () => {
     expect(zoom![1]).toBeLessThan(1000);
     await plot.getByRole('button', { name: /Reset zoom/ }).click();
     expect(await plot.getAttribute('data-zoom')).toBeNull();
+    // From the keyboard: the overlay is a slider whose value text is the readout; + zooms, 0 resets.
+    const cursor = plot.getByRole('slider');
+    await cursor.focus();
+    await page.keyboard.press('Home');
+    const first = (await cursor.getAttribute('aria-valuetext')) ?? '';
+    expect(first).toMatch(new RegExp(`^${Math.round(full[0]!)} Hz: phase error -?\\d+\\.\\d+ °$`));
+    await page.keyboard.press('ArrowRight');
+    expect(await cursor.getAttribute('aria-valuenow')).toBe('1');
+    expect(await cursor.getAttribute('aria-valuetext')).not.toBe(first);
+    await page.keyboard.press('+');
+    const kz = JSON.parse((await plot.getAttribute('data-zoom')) ?? 'null') as [number, number] | null;
+    expect(kz![1] - kz![0]).toBeLessThan(full[1]! - full[0]!);
+    await page.keyboard.press('0');
+    expect(await plot.getAttribute('data-zoom')).toBeNull();
     // Text alternatives: each plot canvas is an image named by its title and described by its data.
     const alts = await page.$$eval('#panel-design canvas[role=img]', (cs) =>
       cs.map((c) => ({

@@ -97,7 +97,7 @@ const parts: SessionParts = {
 const fileStatus = statusLine('file-status');
 const openBtn = h(
   'button',
-  { class: 'secondary', id: 'file-open', 'aria-label': 'Open a network, profile or session (JSON)' },
+  { class: 'secondary', id: 'file-open', 'aria-label': 'Open file… (a network, profile or session, JSON)' },
   'Open file…',
 );
 const saveBtn = h('button', { class: 'secondary', id: 'file-save' }, 'Save session');

@@ -21,7 +21,6 @@ import { readIqWavFile } from '../node/wav.js';
 import { drawDevice, HOMEBREW_BENCH_SEED, TOLERANCE_PRESETS } from '../simulate/model.js';
 import { choiceOpt, lookupOpt, numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
 import { parseTolerance } from './calibrate.js';
-import { si } from './output-filter.js';
 import { fixed, formatTable } from './table.js';
 
 const HELP = `usage: orthotone emissions (--capture FILE.wav | --preset NAME --network NET.json --profile P.json)

@@ -91,7 +91,10 @@ const OPTIONS = {
   help: { type: 'boolean', short: 'h' },
 } as const;
 
-/** Reads a text file named by an option; a missing file is a usage error naming the option. */
+/**
+ * Reads a text file named by an option.
+ * @throws {UsageError} naming the option and the file when it cannot be read.
+ */
 export async function readText(option: string, file: string): Promise<string> {
   try {
     return await readFile(file, 'utf8');
@@ -102,7 +105,10 @@ export async function readText(option: string, file: string): Promise<string> {
   }
 }
 
-/** Parses a document with `parse`, turning its OrthotoneError into a usage error naming the option. */
+/**
+ * Parses a document with `parse`, turning its OrthotoneError into a usage error naming the option.
+ * @throws {UsageError} for a document `parse` refuses; anything else `parse` throws, unchanged.
+ */
 export function parseDoc<T>(option: string, file: string, text: string, parse: (t: string) => T): T {
   try {
     return parse(text);
@@ -112,7 +118,10 @@ export function parseDoc<T>(option: string, file: string, text: string, parse: (
   }
 }
 
-/** Reads the profile and the network (from --network, else from the profile). */
+/**
+ * Reads the profile and the network (from --network, else from the profile).
+ * @throws {UsageError} for an unreadable or invalid file, no network, or a sample-rate mismatch.
+ */
 export async function readProfileAndNetwork(
   profileFile: string,
   networkFile: string | undefined,
@@ -134,7 +143,10 @@ export async function readProfileAndNetwork(
   return { profile, network };
 }
 
-/** Reads and validates an output-filter document. */
+/**
+ * Reads and validates an output-filter document.
+ * @throws {UsageError} for an unreadable file or one that is not an output-filter document.
+ */
 export async function readFilter(file: string): Promise<OutputFilter> {
   const text = await readText('filter', file);
   return parseDoc('filter', file, text, (t) => {

@@ -41,6 +41,10 @@ const COMMANDS: Record<string, Command> = {
       'check every emission (carrier, sideband, IMD, mixer harmonics) against limits; exit 1 if any fails',
     load: () => import('./emissions.js'),
   },
+  verify: {
+    summary: "a few readings at a saved profile's trims: has the exciter drifted, re-calibrate?",
+    load: () => import('./verify.js'),
+  },
   'output-filter': {
     summary: 'design the RF output low-pass ladder (Butterworth/Chebyshev, E12/E24 capacitors)',
     load: () => import('./output-filter.js'),

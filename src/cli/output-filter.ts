@@ -48,7 +48,10 @@ const OPTIONS = {
   help: { type: 'boolean', short: 'h' },
 } as const;
 
-/** Engineering notation with SI prefix: 2.2e-10 F → "220 pF". */
+/**
+ * Engineering notation with SI prefix: 2.2e-10 F → "220 pF".
+ * @throws never
+ */
 export function si(x: number, unit: string): string {
   const prefixes: [number, string][] = [
     [1e-15, 'f'],

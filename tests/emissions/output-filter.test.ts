@@ -58,6 +58,7 @@ describe('low-pass prototype values', () => {
     // Table values from memory; each also equals the closed form g_k = 2 sin((2k−1)π/(2n)), MYJ eq. 4.05-1.
     const table: Record<number, number[]> = {
       1: [2.0],
+      // biome-ignore lint/suspicious/noApproximativeNumericConstant: a table value to 4 decimals, not √2
       2: [1.4142, 1.4142],
       3: [1.0, 2.0, 1.0],
       4: [0.7654, 1.8478, 1.8478, 0.7654],

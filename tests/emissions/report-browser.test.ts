@@ -57,7 +57,7 @@ describe('bench report in Chromium', () => {
         const box = await b.page.locator(`svg[data-plot="${id}"]`).boundingBox();
         expect(box!.width, id).toBeGreaterThan(300);
       }
-      const text = await b.page.locator('body').innerText();
+      const text = (await b.page.locator('body').textContent()) ?? '';
       expect(text).toMatch(/Every product is within its limit/);
       expect(text).toMatch(/dummy load/);
       expect(text).toMatch(/local regulations/);

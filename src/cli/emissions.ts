@@ -11,7 +11,7 @@ import { cautionsText, TRANSMIT_CAUTIONS } from '../core/cautions.js';
 import { OrthotoneError } from '../core/errors.js';
 import type { Network } from '../design/network.js';
 import { checkEmissions, type EmissionCheck, type EmissionProduct } from '../emissions/check.js';
-import { RULE_SETS } from '../emissions/limits.js';
+import { RULE_SETS, ruleSetName } from '../emissions/limits.js';
 import { type OutputFilter, validateOutputFilter } from '../emissions/output-filter.js';
 import { captureProducts, simulateProducts, twoToneProducts } from '../emissions/products.js';
 import { parseNetworkJson } from '../export/network-json.js';
@@ -224,7 +224,13 @@ export async function run(argv: string[]): Promise<number> {
     [['--report', report]],
   );
   const rules = typeof v.rules === 'string' ? v.rules.split(',').filter((x) => x !== '') : undefined;
-  for (const r of rules ?? []) lookupOpt('rules', r, RULE_SETS, r);
+  for (const r of rules ?? []) {
+    if (ruleSetName(r) === undefined) {
+      throw new UsageError(
+        `--rules ${JSON.stringify(r)} is not known: use ${Object.keys(RULE_SETS).join(', ')}`,
+      );
+    }
+  }
   const userLimitDbc = numberOpt('limit-dbc', v['limit-dbc']);
   const userReference = choiceOpt('limit-reference', v['limit-reference'], ['pep', 'mean'] as const, 'pep');
   const powerW = numberOpt('power-w', v['power-w']);

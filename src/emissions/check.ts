@@ -21,6 +21,7 @@ import {
   type LimitReference,
   type ResolvedLimit,
   RULE_SETS,
+  ruleSetName,
 } from './limits.js';
 import { type LadderElement, ladderAttenuationDb } from './output-filter.js';
 
@@ -117,15 +118,19 @@ export function checkEmissions(options: EmissionCheckOptions): EmissionCheck {
   if (names.length === 0) {
     throw new OrthotoneError('INVALID_ARGUMENT', 'no rule set chosen: give --rules or --limit-dbc');
   }
-  const limits = names.map((n) => {
-    const rs = Object.hasOwn(RULE_SETS, n) ? RULE_SETS[n] : undefined;
-    if (!rs) {
+  const keys = names.map((n) => {
+    const key = ruleSetName(n);
+    if (key === undefined) {
       throw new OrthotoneError(
         'INVALID_ARGUMENT',
         `rule set ${JSON.stringify(n)} is not known: use ${Object.keys(RULE_SETS).join(', ')}`,
         n,
       );
     }
+    return key;
+  });
+  const limits = [...new Set(keys)].map((key) => {
+    const rs = RULE_SETS[key]!;
     return rs.resolve({
       carrierHz: fc,
       ...(options.powerW !== undefined ? { powerW: requirePositive('powerW', options.powerW, 'W') } : {}),

@@ -150,6 +150,53 @@ describe('orthotone emissions', () => {
     ]);
   });
 
+  it('a two-tone capture: IMD3 30 dB below each tone is 36.02 dB below PEP and 33.01 dB below the mean power', () => {
+    // Two equal tones: each is 6.02 dB below PEP, and the mean power is PEP/2 (Krauss, Bostian & Raab,
+    // Solid State Radio Engineering, p. 509; REFERENCES.md §5). Invented capture: tones 0.25 at 700 and
+    // 1900 Hz, 3rd-order products at −500 and 3100 Hz, 30 dB below one tone.
+    const fs = 48000;
+    const len = 65536;
+    const i = new Float64Array(len);
+    const q = new Float64Array(len);
+    const p = 0.25 * 10 ** (-30 / 20);
+    for (let n = 0; n < len; n++) {
+      for (const [f, a] of [
+        [700, 0.25],
+        [1900, 0.25],
+        [-500, p],
+        [3100, p],
+      ] as const) {
+        const w = (2 * Math.PI * f * n) / fs;
+        i[n]! += a * Math.cos(w);
+        q[n]! += a * Math.sin(w);
+      }
+    }
+    const wav = join(dir, 'two.wav');
+    writeTestWav(wav, [i, q], fs);
+    const args = [
+      'emissions',
+      '--capture',
+      wav,
+      '--two-tone',
+      '700,1900',
+      '--carrier-hz',
+      '14.2e6',
+      '--format',
+      'json',
+    ];
+    const pep = JSON.parse(cli([...args, '--limit-dbc', '-30']).stdout);
+    const imd3 = pep.items.filter((x: { name: string }) => x.name.startsWith('IMD3'));
+    expect(imd3.map((x: { frequencyHz: number }) => x.frequencyHz).sort()).toEqual([
+      14.2e6 - 500,
+      14.2e6 + 3100,
+    ]);
+    for (const x of imd3) expect(x.levelDbc).toBeCloseTo(-36.02, 1);
+    const mean = JSON.parse(cli([...args, '--limit-dbc', '-30', '--limit-reference', 'mean']).stdout);
+    for (const x of mean.items.filter((y: { name: string }) => y.name.startsWith('IMD3'))) {
+      expect(x.levelDbc).toBeCloseTo(-33.01, 1);
+    }
+  });
+
   it('bad input exits 2: no carrier, both sources, unknown rule set', () => {
     for (const args of [
       ['emissions', '--preset', 'precision', '--network', net, '--profile', prof],

@@ -8,10 +8,13 @@
 
 import { parseProfileJson } from '../calibrate/profile.js';
 import type { ReadingSource, SessionCommand } from '../calibrate/session.js';
-import { cautionsText } from '../core/cautions.js';
+import { cautionsText, TRANSMIT_CAUTIONS } from '../core/cautions.js';
 import type { Trims } from '../core/trims.js';
+import type { Network } from '../design/network.js';
 import { judgeDrift, type VerifyReading } from '../emissions/verify.js';
-import { assertDistinctFiles } from '../node/files.js';
+import { parseNetworkJson } from '../export/network-json.js';
+import { benchReportHtml } from '../export/report.js';
+import { assertDistinctFiles, writeFileAtomic } from '../node/files.js';
 import { createAnalyzer } from '../simulate/analyzer.js';
 import { createVirtualExciter } from '../simulate/exciter.js';
 import { drawDevice, HOMEBREW_BENCH_SEED, TOLERANCE_PRESETS } from '../simulate/model.js';
@@ -44,6 +47,7 @@ options:
   --seed N               analyzer noise seed (simulate; default 2)
   --noise DB             analyzer reading noise, dB (simulate; default 0.5)
   --tone-amplitude A     peak tone level, full scale 1 (simulate; default 0.5, as calibrate)
+  --report FILE.html     also write the bench report (calibration, network, this verify run)
   --format F             table (default) | json
   -h, --help             this help
 `;
@@ -62,6 +66,7 @@ const OPTIONS = {
   seed: { type: 'string' },
   noise: { type: 'string' },
   'tone-amplitude': { type: 'string' },
+  report: { type: 'string' },
   format: { type: 'string' },
   help: { type: 'boolean', short: 'h' },
 } as const;
@@ -84,7 +89,8 @@ export async function run(argv: string[]): Promise<number> {
   const modes = [v.simulate, v.prompt, v['measure-command'] !== undefined].filter(Boolean).length;
   if (modes !== 1)
     throw new UsageError('verify needs exactly one of --simulate, --prompt or --measure-command CMD');
-  assertDistinctFiles([['--profile', v.profile]], []);
+  const report = v.report as string | undefined;
+  assertDistinctFiles([['--profile', v.profile]], [['--report', report]]);
   const format = choiceOpt('format', v.format, ['table', 'json'] as const, 'table');
   const n = numberOpt('readings', v.readings ?? '3')!;
   if (!Number.isInteger(n) || n < 1 || n > 50)
@@ -180,12 +186,35 @@ export async function run(argv: string[]): Promise<number> {
     toleranceDb,
     ...(floorDbc !== undefined ? { floorDbc } : {}),
   });
+  if (report) {
+    let network: Network | null = null;
+    try {
+      network = profile.network === null ? null : parseNetworkJson(JSON.stringify(profile.network));
+    } catch {
+      network = null; // a stored network that no longer validates is left out of the report
+    }
+    writeFileAtomic(
+      report,
+      benchReportHtml({
+        created: new Date().toISOString(),
+        title: 'orthotone verify report',
+        carrierHz: null,
+        network,
+        profile,
+        check: null,
+        filter: null,
+        context: [`verify of ${v.profile}: ${what}`],
+        cautions: TRANSMIT_CAUTIONS,
+        verify: result.lines,
+      }),
+    );
+  }
   if (format === 'json') {
     process.stdout.write(
       `${JSON.stringify({ ...result, readings, drifted: result.recalibrate }, null, 2)}\n`,
     );
   } else {
-    process.stdout.write(`\n${result.lines.join('\n')}\n`);
+    process.stdout.write(`\n${result.lines.join('\n')}\n${report ? `wrote ${report}\n` : ''}`);
   }
   return result.recalibrate ? 1 : 0;
 }

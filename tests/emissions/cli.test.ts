@@ -215,8 +215,12 @@ describe('orthotone verify', () => {
   it('the calibrated virtual exciter holds (exit 0); another device at the same trims has drifted (exit 1)', () => {
     const cal = join(dir, 'cal.json');
     expect(cli(['calibrate', '--simulate', '--network', net, '--profile', cal]).status).toBe(0);
-    const same = cli(['verify', '--profile', cal, '--simulate', '--format', 'json']);
+    const vr = join(dir, 'verify.html');
+    const same = cli(['verify', '--profile', cal, '--simulate', '--format', 'json', '--report', vr]);
     expect(same.status).toBe(0);
+    const html = readFileSync(vr, 'utf8');
+    expect(html).toContain('Verify run');
+    expect(html).toContain('data-plot="convergence"');
     expect(JSON.parse(same.stdout).recalibrate).toBe(false);
     const other = cli(['verify', '--profile', cal, '--simulate', '--device-seed', '712', '--format', 'json']);
     expect(other.status).toBe(1);

@@ -102,7 +102,7 @@ export function reportControls(src: ReportSources): HTMLElement {
   return h(
     'div',
     { class: 'report-bar', id: 'report-bar' },
-    field('RF carrier, MHz', carrier, 'for the emission check in the report'),
+    field('Report carrier, MHz', carrier),
     btn,
     status.el,
   );

@@ -77,7 +77,8 @@ describe('low-pass prototype values', () => {
   });
 
   it('Chebyshev, other ripples and orders (MYJ Table 4.05-2(a), values from memory)', () => {
-    // From memory of the classic table (same values in Zverev, Handbook of Filter Synthesis, 1967);
+    // From memory of the classic table (Zverev, Handbook of Filter Synthesis, Wiley 1967, tabulates the
+    // same prototypes; neither book was at hand, so these rows are marked from memory);
     // the response test below checks every design against the closed-form Chebyshev response. A row
     // remembered as 0.01 dB, n = 3: 0.6291, 0.9702 is left out: the formula gives 0.62918, 0.97028, so
     // the memory (or its rounding) is doubtful.

@@ -130,6 +130,11 @@ describe('orthotone emissions', () => {
     expect(get('carrier').levelDbc).toBeCloseTo(-50, 0);
     expect(get('opposite sideband').levelDbc).toBeCloseTo(-45, 0);
     expect(get('opposite sideband').frequencyHz).toBe(14.2e6 - 1000);
+    // The wrong sideband or tone is refused (exit 2) rather than read as a product at the floor.
+    const wrong = cli(['emissions', '--capture', wav, '--carrier-hz', '14.2e6', '--sideband', 'lower']);
+    expect(wrong.status).toBe(2);
+    expect(wrong.stderr).toMatch(/--sideband upper/);
+    expect(cli(['emissions', '--capture', wav, '--carrier-hz', '14.2e6', '--tone', '1500']).status).toBe(2);
     const u = cli([
       'emissions',
       '--capture',

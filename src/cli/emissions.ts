@@ -347,6 +347,7 @@ export async function run(argv: string[]): Promise<number> {
           bands: check.bands,
           limits: check.limits,
           notes: check.notes,
+          filter,
           context,
           cautions: TRANSMIT_CAUTIONS,
         },

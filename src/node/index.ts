@@ -9,15 +9,23 @@ export { type Bridge, type BridgeOptions, startBridge } from './bridge.js';
 export { createIqTransformStream, type IqChunk, type IqStreamOptions } from './iq-stream.js';
 export { openSerialChannel, type SerialOptions, serialConnector } from './serial-transport.js';
 export {
+  createWavWriter,
   decodeWav,
   encodeWav,
+  MAX_DECODED_SAMPLES,
+  openWavReader,
   readIqWavFile,
   readWavFile,
   toMono,
   WAV_ENCODINGS,
   type WavData,
   type WavEncoding,
+  type WavInfo,
+  type WavReader,
+  type WavReadOptions,
   type WavWriteReport,
+  type WavWriter,
+  type WavWriterOptions,
   writeIqWavFile,
   writeWavFile,
 } from './wav.js';

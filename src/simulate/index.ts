@@ -24,3 +24,11 @@ export {
   validateTolerance,
 } from './model.js';
 export { predictedSuppression, type ToneResponse, toneResponse } from './response.js';
+export {
+  applyTrimMismatch,
+  drawTrimMismatch,
+  EXACT_TRIMS,
+  MISMATCH_BENCH_RANGES,
+  type TrimMismatch,
+  type TrimMismatchRanges,
+} from './trim-mismatch.js';

@@ -9,7 +9,8 @@ import { quantizationReport } from '../design/quantize.js';
 import { networkToCHeader } from '../export/c-header.js';
 import { networkToCsv } from '../export/csv.js';
 import { networkToJson } from '../export/network-json.js';
-import { writeFileAtomic } from '../node/files.js';
+import { analysisToSvg } from '../export/svg-plot.js';
+import { assertDistinctFiles, writeFileAtomic } from '../node/files.js';
 import { choiceOpt, inCliWords, numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
 import { fixed, formatPairs } from './table.js';
 
@@ -31,6 +32,7 @@ options:
   --format F             table (default) | json | c | csv
   --name ID              identifier prefix in the C header (default ot)
   --out FILE             write to FILE instead of standard output
+  --plot FILE.svg        also draw the designed network's suppression against frequency
   -h, --help             this help
 `;
 
@@ -194,13 +196,27 @@ export async function run(argv: string[]): Promise<number> {
     format: { type: 'string' },
     name: { type: 'string' },
     out: { type: 'string' },
+    plot: { type: 'string' },
     help: { type: 'boolean', short: 'h' },
   });
   if (v.help) {
     process.stdout.write(HELP);
     return 0;
   }
+  const plotFile = typeof v.plot === 'string' ? v.plot : undefined;
+  assertDistinctFiles(
+    [],
+    [
+      ['--out', typeof v.out === 'string' ? v.out : undefined],
+      ['--plot', plotFile],
+    ],
+  );
   const net = inCliWords(() => designNetwork(specFromOptions(v)));
+  if (plotFile !== undefined) {
+    // The response from the final coefficients, a decade below the band to Nyquist.
+    const a = analyzeNetwork(net, { points: 1000, scale: 'log' });
+    writeFileAtomic(plotFile, analysisToSvg(a, `Designed network (${net.kind})`));
+  }
   const text = renderNetwork(net, (v.format as string | undefined) ?? 'table', v.name as string | undefined);
   if (typeof v.out === 'string') {
     writeFileAtomic(v.out, text);

@@ -7,7 +7,7 @@
  * transmitting cautions.
  */
 import { mkdir } from 'node:fs/promises';
-import { join, resolve } from 'node:path';
+import { resolve } from 'node:path';
 import { calibrateSidebandAndCarrier } from '../calibrate/combined.js';
 import { createProfile, type ProfileReading } from '../calibrate/profile.js';
 import { cautionsText } from '../core/cautions.js';
@@ -69,7 +69,7 @@ export async function run(argv: string[]): Promise<number> {
   const say = (s: string): void => {
     process.stdout.write(s);
   };
-  say(`${cautionsText()}\n\n`);
+  // The cautions are printed once, at the end beside the files that may be played into a transmitter.
 
   // 1. The network.
   const net = designNetwork({ sampleRate: FS, band: BAND, method: 'auto', targetDb: 60 });

@@ -1,9 +1,0 @@
-// The public names of this folder: a deliberate list (docs/api.md lists them; tests/api-surface.test.ts
-// checks the two agree). Everything else here is internal: import it from its own file.
-export { networkToCHeader } from './c-header.js';
-export { analysisToCsv, networkToCsv } from './csv.js';
-export { networkToJson, parseNetworkJson } from './network-json.js';
-export { profileToCHeader } from './profile-header.js';
-export { parseProfileJson, profileToJson } from './profile-json.js';
-export { benchReportHtml } from './report.js';
-export { analysisToSvg, convergenceToSvg, plotToSvg, } from './svg-plot.js';

@@ -28,7 +28,7 @@
  */
 import { OrthotoneError } from '../core/errors.js';
 import { dbToPow } from '../core/units.js';
-import { requireFinite, requireInteger, requirePositive } from '../core/validate.js';
+import { requireFinite, requireInteger, requirePositive, stripUndefined } from '../core/validate.js';
 import {
   circleCandidates,
   fitNullSurface,
@@ -280,12 +280,6 @@ export function resolveSeekerOptions(partial: Partial<NullSeekerOptions>): NullS
     requirePositive(`maxStep[${j}]`, o.maxStep[j]);
   }
   return o;
-}
-
-function stripUndefined<T extends object>(p: Partial<T>): Partial<T> {
-  const out: Partial<T> = {};
-  for (const k of Object.keys(p) as (keyof T)[]) if (p[k] !== undefined) out[k] = p[k];
-  return out;
 }
 
 interface PlannedProbe {

@@ -5,6 +5,7 @@ import { describe, expect, it } from 'vitest';
 import { calibrateCarrier } from '../../src/calibrate/carrier.js';
 import { calibrateSidebandAndCarrier, createCombinedSeeker } from '../../src/calibrate/combined.js';
 import {
+  liveGuard,
   type ReadingSource,
   runSession,
   type SessionCommand,
@@ -162,5 +163,51 @@ describe('runSession', () => {
     expect(() => c2.restore({ format: 'x' })).toThrow(/not a combined/);
     const car = await calibrateCarrier({ measure: (t) => an.carrier(t), maxReadings: 5 });
     expect(car.readings).toBe(5);
+  });
+  it('live guard: no receiver signal stops at the first reading with a message, trims kept at the start (issue 9)', async () => {
+    // The page's failure: with no receiver signal it read +5.6 dBc and drove the trims far off.
+    for (const [levels, msg] of [
+      [{ sidebandDb: 5.6, carrierDb: 3, wantedDbfs: -95 }, /wanted tone reads -95.0 dBFS, below -60 dBFS/],
+      [
+        { sidebandDb: 5.6, carrierDb: 3, wantedDbfs: -20 },
+        /unwanted sideband reads 5.6 dB above the wanted tone/,
+      ],
+      [
+        { sidebandDb: Number.NaN, carrierDb: -30, wantedDbfs: -20 },
+        /gave no level .*check that the receiver audio/,
+      ],
+    ] as const) {
+      let calls = 0;
+      const r = await calibrateSidebandAndCarrier({
+        measure: () => {
+          calls++;
+          return levels;
+        },
+        start: { gainDb: 0.2, phaseDeg: 1 },
+        check: liveGuard(-60),
+      });
+      expect(calls).toBe(1);
+      expect(r.refusal).toMatch(msg);
+      expect(r.trims.gainDb).toBe(0.2);
+      expect(r.trims.phaseDeg).toBe(1);
+    }
+  });
+  it('hardware bounds hold every setting of a live run inside the range the user gave', async () => {
+    const dev = drawAnalyticDevice(createRng(12));
+    const an = analyzer(dev, { seed: 13 });
+    const seen: Trims[] = [];
+    await calibrateSidebandAndCarrier({
+      measure: (t) => {
+        seen.push(t);
+        return { sidebandDb: an.sideband(t), carrierDb: an.carrier(t) };
+      },
+      bounds: { gainDb: [-0.5, 0.5], phaseDeg: [-2, 2], dcI: [-0.02, 0.02], dcQ: [-0.02, 0.02] },
+    });
+    for (const t of seen) {
+      expect(Math.abs(t.gainDb)).toBeLessThanOrEqual(0.5 + 1e-9);
+      expect(Math.abs(t.phaseDeg)).toBeLessThanOrEqual(2 + 1e-9);
+      expect(Math.abs(t.dcI)).toBeLessThanOrEqual(0.02 + 1e-12);
+      expect(Math.abs(t.dcQ)).toBeLessThanOrEqual(0.02 + 1e-12);
+    }
   });
 });

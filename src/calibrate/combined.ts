@@ -40,6 +40,7 @@ export interface CombinedCalibrationOptions
   /**
    * A guard run on every reading (e.g. {@link liveGuard}): a message stops the run, keeping the best
    * trims so far; the result then carries it as `refusal`.
+   * @throws never (return the message instead).
    */
   check?: (levels: BothLevels, trims: Trims) => string | undefined;
   /** Time allowed for one reading, seconds (it fails after that). Default: none. */

@@ -15,6 +15,7 @@ import { calibrateSideband, sidebandAxes } from '../../src/calibrate/sideband.js
 import { createTrimSeeker, seekerFor } from '../../src/calibrate/trim-calibration.js';
 import { createRng } from '../../src/core/rng.js';
 import type { Trims } from '../../src/core/trims.js';
+import { createCaptureSource, createGeneratorApplier } from '../../src/webaudio/trim-reader.js';
 import { analyzer, drawAnalyticDevice } from './analytic-exciter.js';
 
 const never = () => new Promise<never>(() => {});
@@ -209,5 +210,36 @@ describe('runSession', () => {
       expect(Math.abs(t.dcI)).toBeLessThanOrEqual(0.02 + 1e-12);
       expect(Math.abs(t.dcQ)).toBeLessThanOrEqual(0.02 + 1e-12);
     }
+  });
+});
+
+describe('Web Audio capture as a reading source', () => {
+  it('drives a session: the applier sets the trims, the capture is read after the settle frames, and the guard sees NaN', async () => {
+    const set: Trims[] = [];
+    const node = { setTrims: (t: Partial<Trims>) => set.push({ ...(t as Trims) }) };
+    const skips: number[] = [];
+    let n = 0;
+    const capture = {
+      capture: (frames: number, o?: { skipFrames?: number }) => {
+        skips.push(o?.skipFrames ?? -1);
+        return Promise.resolve({ channels: [new Float32Array(frames)], sampleRate: 48000, startFrame: 0 });
+      },
+    };
+    const source = createCaptureSource<number>({
+      capture: capture as never,
+      sampleRate: 48000,
+      read: () => (++n < 4 ? -40 + n : Number.NaN),
+      settleSeconds: 0.05,
+      captureSeconds: 0.01,
+      check: (db) => (Number.isFinite(db) ? undefined : 'no level: check the receiver'),
+    });
+    const { seeker, start } = seekerFor({ measure: () => 0 }, sidebandAxes());
+    const ts = createTrimSeeker(seeker, sidebandAxes(), start);
+    const r = await runSession(ts, source, { applier: createGeneratorApplier(node) });
+    expect(skips.every((s) => s === 2400)).toBe(true);
+    expect(r.history.map((h) => h.trims)).toEqual(set);
+    expect(r.cutShort).toBe('refused');
+    expect(r.refusal).toMatch(/check the receiver/);
+    expect(r.history).toHaveLength(4);
   });
 });

@@ -84,7 +84,10 @@ export interface MultitoneOptions {
   applier?: TrimApplier;
   /** Time allowed for one reading of the search, seconds. Default: none. */
   timeoutSeconds?: number;
-  /** Called when a reading failed (before it is retried). */
+  /**
+   * Called when a reading failed (before it is retried).
+   * @throws anything: passed on as the calibration's rejection.
+   */
   onFailure?: (error: unknown, index: number) => void;
 }
 

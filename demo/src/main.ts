@@ -9,6 +9,7 @@ import { devicePanel } from './device-panel.js';
 import { download, h, pickTextFile, statusLine } from './dom.js';
 import { Engine } from './engine.js';
 import { generatorPanel } from './generator-panel.js';
+import { reportControls } from './report-download.js';
 import { controlsState, openDocument, restoreControls, type SessionParts, sessionToJson } from './session.js';
 import './style.css';
 
@@ -97,7 +98,7 @@ const parts: SessionParts = {
 const fileStatus = statusLine('file-status');
 const openBtn = h(
   'button',
-  { class: 'secondary', id: 'file-open', 'aria-label': 'Open a network, profile or session (JSON)' },
+  { class: 'secondary', id: 'file-open', 'aria-label': 'Open file… (a network, profile or session, JSON)' },
   'Open file…',
 );
 const saveBtn = h('button', { class: 'secondary', id: 'file-save' }, 'Save session');
@@ -122,6 +123,9 @@ saveBtn.addEventListener('click', () => {
   }
 });
 document.getElementById('file-bar')!.append(openBtn, saveBtn, fileStatus.el);
+document
+  .getElementById('file-bar')!
+  .append(reportControls({ session: () => sessionToJson(parts), calibration: () => controlsState(cal.el) }));
 
 window.addEventListener('hashchange', () => show(location.hash.slice(1)));
 show(location.hash.slice(1));

@@ -44,6 +44,19 @@ const COMMANDS: Record<string, Command> = {
     summary: 'evaluate a network file: phase/gain error, suppression, group delay, cost',
     load: () => import('./analyze.js'),
   },
+  emissions: {
+    summary:
+      'check every emission (carrier, sideband, IMD, mixer harmonics) against limits; exit 1 if any fails',
+    load: () => import('./emissions.js'),
+  },
+  verify: {
+    summary: "a few readings at a saved profile's trims: has the exciter drifted, re-calibrate?",
+    load: () => import('./verify.js'),
+  },
+  'output-filter': {
+    summary: 'design the RF output low-pass ladder (Butterworth/Chebyshev, E12/E24 capacitors)',
+    load: () => import('./output-filter.js'),
+  },
   render: {
     summary: 'run a test signal or recording through a network and trims into an I/Q WAV',
     load: () => import('./render.js'),

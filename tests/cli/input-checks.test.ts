@@ -2,11 +2,12 @@
  * Input the CLI used to accept silently, and messages that named the wrong thing (issue 12 items 6
  * and 7): each must end in exit status 2 and one line that names the option the user typed.
  */
+import { spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { cli } from '../support/cli.js';
+import { cli, writeTestWav } from '../support/cli.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'orthotone-input-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -58,5 +59,39 @@ describe('design options', () => {
       'orthotone: --taps is given twice: give it once',
     );
     expect(refused(['design', '--tagret', '50'])).toMatch(/unknown option --tagret: did you mean --target\?/);
+  });
+});
+
+describe('bad samples and broken pipes', () => {
+  it('measure of a capture holding NaN or Inf: exit 2 naming the sample', () => {
+    for (const [bad, shown] of [
+      [Number.NaN, 'NaN'],
+      [Number.POSITIVE_INFINITY, 'Infinity'],
+    ] as const) {
+      const x = Float32Array.from(
+        { length: 48000 },
+        (_, k) => 0.5 * Math.sin((2 * Math.PI * 1000 * k) / 48000),
+      );
+      x[31234] = bad;
+      const p = join(dir, `bad-${shown}.wav`);
+      writeTestWav(p, [x, x], 48000);
+      const line = refused(['measure', p, '--tones', '1000', '--iq']);
+      expect(line).toMatch(new RegExp(`holds a non-finite sample \\(${shown}\\) at frame 31234, channel 0`));
+    }
+  });
+
+  it('a command piped into head ends quietly (no EPIPE stack trace)', () => {
+    const net = join(dir, 'pipe.json');
+    const d = cli(['design', '--method', 'allpass', '--target', '50', '--format', 'json', '--out', net]);
+    expect(d.status, d.stderr).toBe(0);
+    const r = spawnSync(
+      'sh',
+      ['-c', `node dist/cli.js analyze ${net} --format csv --points 200000 | head -n 2`],
+      {
+        encoding: 'utf8',
+      },
+    );
+    expect(r.stdout.split('\n').length).toBe(3);
+    expect(r.stderr).toBe('');
   });
 });

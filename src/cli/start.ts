@@ -7,7 +7,7 @@
  * transmitting cautions.
  */
 import { mkdir } from 'node:fs/promises';
-import { join, resolve } from 'node:path';
+import { resolve } from 'node:path';
 import { calibrateSidebandAndCarrier } from '../calibrate/combined.js';
 import { createProfile, type ProfileReading, profileToJson } from '../calibrate/profile.js';
 import { cautionsText } from '../core/cautions.js';

@@ -116,7 +116,7 @@ describe('orthotone design', () => {
     }
     expect(cli(['design', '--band', '300:30000']).stderr).toMatch(/30000 Hz must be below Nyquist 24000 Hz/);
     expect(cli(['design', '--out', '/nonexistent-folder/net.json']).stderr).toMatch(
-      /cannot open \/nonexistent-folder\/net.json: ENOENT/,
+      /cannot write \/nonexistent-folder\/net.json: its folder \/nonexistent-folder does not exist/,
     );
   });
 

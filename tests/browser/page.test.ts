@@ -10,9 +10,8 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { ViteDevServer } from 'vite';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { createProfile, profileToJson } from '../../src/calibrate/profile.js';
-import { designNetwork } from '../../src/design/design-network.js';
-import { TOLERANCE_PRESETS } from '../../src/simulate/model.js';
+// The package's public entry (files move between folders; the public names stay).
+import { createProfile, designNetwork, profileToJson, TOLERANCE_PRESETS } from '../../src/index.js';
 import { type Browser, launchChromium, startVite } from './support/chromium.js';
 import { REPO_ROOT } from './support/worklet-build.js';
 

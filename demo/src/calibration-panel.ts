@@ -669,6 +669,14 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
   }
 
   function save(what: 'json' | 'c'): void {
+    try {
+      saveProfile(what);
+    } catch (e) {
+      say(e instanceof Error ? e.message : String(e), true);
+    }
+  }
+
+  function saveProfile(what: 'json' | 'c'): void {
     if (!last) return;
     const p = createProfile({
       sampleRate: engine.network.sampleRate,

@@ -10,7 +10,7 @@ import { dirname, resolve } from 'node:path';
 import { carrierAxes } from '../calibrate/carrier.js';
 import { createCombinedSeeker } from '../calibrate/combined.js';
 import type { Diagnosis } from '../calibrate/diagnosis.js';
-import { createProfile, type ProfileReading, profileToJson } from '../calibrate/profile.js';
+import { createProfile, type ProfileReading } from '../calibrate/profile.js';
 import {
   mapSource,
   runSession,
@@ -37,6 +37,7 @@ import { requireSampleRate } from '../core/validate.js';
 import type { Network } from '../design/network.js';
 import { parseNetworkJson } from '../export/network-json.js';
 import { profileToCHeader } from '../export/profile-header.js';
+import { profileToJson } from '../export/profile-json.js';
 import { assertDistinctFiles, writeFileAtomic } from '../node/files.js';
 import { createAnalyzer } from '../simulate/analyzer.js';
 import { createVirtualExciter, type VirtualExciter } from '../simulate/exciter.js';

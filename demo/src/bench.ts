@@ -10,22 +10,27 @@
  *  - live: receiver audio coming back through the sound card (getUserMedia), read with
  *    measureSideband at the audio offset where the carrier lands.
  */
-import { type CombinedCalibrationResult, calibrateSidebandAndCarrier } from '../../src/calibrate/combined.js';
-import { calibrateMultitone, type MultitoneResult } from '../../src/calibrate/multitone.js';
-import { liveGuard } from '../../src/calibrate/session.js';
-import type { CalibrationStep } from '../../src/calibrate/trim-calibration.js';
-import { TRIM_LIMITS, type Trims } from '../../src/core/trims.js';
-import { measureSideband, type SidebandReading } from '../../src/measure/sideband.js';
-import { measureTones } from '../../src/measure/tones.js';
-import { createVirtualExciter } from '../../src/simulate/exciter.js';
 import {
+  type CalibrationStep,
+  type CaptureNode,
+  type CaptureResult,
+  type CombinedCalibrationResult,
+  calibrateMultitone,
+  calibrateSidebandAndCarrier,
+  createCaptureNode,
+  createTrimReader,
+  createVirtualExciter,
   drawDevice,
   type ExciterModel,
+  liveGuard,
+  type MultitoneResult,
+  measureSideband,
+  measureTones,
+  type SidebandReading,
   TOLERANCE_PRESETS,
-  type TolerancePreset,
-} from '../../src/simulate/model.js';
-import { type CaptureNode, type CaptureResult, createCaptureNode } from '../../src/webaudio/capture-node.js';
-import { createTrimReader } from '../../src/webaudio/trim-reader.js';
+  TRIM_LIMITS,
+  type Trims,
+} from 'orthotone';
 import { type Running, workletUrl } from './engine.js';
 
 /** Both levels of one reading, dBc. */
@@ -40,38 +45,25 @@ export interface Levels {
 const READ_SAMPLES = 6144;
 
 /**
- * An invented bench of our own whose imbalance changes across the band: the hand-built bench's
- * parts plus up to ±2 µs of codec skew between the channels and ±10% spread on 20 Hz coupling and
- * 20 kHz anti-imaging corners. Skew τ gives a phase error of 2πfτ (REFERENCES.md §6), so one pair
- * of trims cannot null the whole band: the multi-tone correction filter can.
+ * The invented benches the virtual exciter can stand for: the command line's preset name (its
+ * `--preset`, simulate/ TOLERANCE_PRESETS), the option text (that name and plain words), a
+ * description. `skew-bench` changes its imbalance across the band (skew τ gives a phase error of
+ * 2πfτ, REFERENCES.md §6): one pair of trims cannot null the whole band; the correction filter can.
  */
-const SKEW_BENCH: Readonly<TolerancePreset> = Object.freeze({
-  ...TOLERANCE_PRESETS['homebrew-bench']!,
-  skewSeconds: 2e-6,
-  couplingHighPassHz: 20,
-  antiImagingLowPassHz: 20000,
-  cornerPct: 10,
-});
-
-/** The invented benches the virtual exciter can stand for: value, short name, description. */
 export const VIRTUAL_BENCHES: [string, string, string][] = [
-  ['homebrew-bench', 'Hand-built bench', '0.5% resistors, 6 mV offsets, 16-bit codec, DC-coupled.'],
-  ['one-percent', 'Kit build', '1% resistors, 2 mV offsets, 16-bit codec.'],
-  ['precision', 'Precision build', '0.1% resistors, 0.5 mV offsets, 24-bit codec.'],
+  ['homebrew-bench', 'homebrew-bench: hand-built', '0.5% resistors, 6 mV offsets, 16-bit codec, DC-coupled.'],
+  ['one-percent', 'one-percent: kit build', '1% resistors, 2 mV offsets, 16-bit codec.'],
+  ['precision', 'precision: careful build', '0.1% resistors, 0.5 mV offsets, 24-bit codec.'],
   [
     'skew-bench',
-    'Hand-built, skewed codec',
+    'skew-bench: skewed codec',
     'The hand-built bench plus up to 2 µs between the codec channels and ±10% on its filter corners: its imbalance changes across the band.',
   ],
 ];
 
 /** A device drawn from a preset and a seed. */
 export function virtualDevice(preset: string, seed: number): ExciterModel {
-  const t =
-    preset === 'skew-bench'
-      ? SKEW_BENCH
-      : (TOLERANCE_PRESETS[preset] ?? TOLERANCE_PRESETS['homebrew-bench']!);
-  return drawDevice(t, seed);
+  return drawDevice(TOLERANCE_PRESETS[preset] ?? TOLERANCE_PRESETS['homebrew-bench']!, seed);
 }
 
 /**

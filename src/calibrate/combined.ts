@@ -261,6 +261,24 @@ export function createCombinedSeeker(
  * @returns the combined trims and each calibration's result; `readings` counts `measure` calls,
  *   never more than `maxReadings`.
  * @throws {OrthotoneError} INVALID_ARGUMENT for bad options.
+ * @example
+ * ```ts
+ * import { calibrateSidebandAndCarrier, createAnalyzer, createVirtualExciter, homebrewBenchDevice } from 'orthotone';
+ *
+ * // An invented bench: a virtual hand-built exciter read by a simulated analyzer (on a real bench,
+ * // `measure` sets the trims on the exciter and reads a receiver or a spectrum analyzer).
+ * const exciter = createVirtualExciter(homebrewBenchDevice(), { sampleRate: 48000, seed: 1 });
+ * const analyzer = createAnalyzer(exciter, { seed: 2, noiseDb: 0.2 });
+ * const r = await calibrateSidebandAndCarrier({
+ *   measure: (t) => {
+ *     const { sidebandDbc, carrierDbc } = analyzer.readBoth(1000, t, 0.5);
+ *     return { sidebandDb: sidebandDbc, carrierDb: carrierDbc };
+ *   },
+ *   toneAmplitude: 0.5,
+ *   maxReadings: 80,
+ * });
+ * console.log(r.trims, `${r.readings} readings`);
+ * ```
  */
 export async function calibrateSidebandAndCarrier(
   options: CombinedCalibrationOptions,

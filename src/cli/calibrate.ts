@@ -11,7 +11,7 @@ import { carrierAxes } from '../calibrate/carrier.js';
 import { createCombinedSeeker } from '../calibrate/combined.js';
 import type { Diagnosis } from '../calibrate/diagnosis.js';
 import { calibrateMultitone, equivalentTrims } from '../calibrate/multitone.js';
-import { createProfile, type ProfileReading, profileToJson } from '../calibrate/profile.js';
+import { createProfile, type ProfileReading } from '../calibrate/profile.js';
 import {
   mapSource,
   type ReadingSource,
@@ -39,6 +39,7 @@ import { requireSampleRate } from '../core/validate.js';
 import type { Network } from '../design/network.js';
 import { parseNetworkJson } from '../export/network-json.js';
 import { profileToCHeader } from '../export/profile-header.js';
+import { profileToJson } from '../export/profile-json.js';
 import { assertDistinctFiles, writeFileAtomic } from '../node/files.js';
 import { createAnalyzer } from '../simulate/analyzer.js';
 import { createVirtualExciter, type VirtualExciter } from '../simulate/exciter.js';
@@ -71,6 +72,13 @@ where the readings come from:
                          (sideband | carrier), OT_TONE_HZ; CMD prints one level in dB (a decimal
                          number, 'dB' after it allowed) and exits 0. It runs in its own process
                          group, killed whole on --timeout and on Ctrl-C
+
+  --device PATH          set each reading's trims on a device over the link protocol (a serial
+                         port, or firmware/virtual-device's pty), confirm them by read-back and
+                         wait --settle MS (default 200, at least the device's ramp) before the
+                         reading; the best trims are left on the device at the end. The levels
+                         still come from one of the three above. --device-timeout MS: one answer
+                         (default 1000)
 
 options:
   --what W               sideband | carrier | both (default both: sideband first, then carrier)
@@ -230,6 +238,11 @@ export interface CalibrateExtras {
   applier?: TrimApplier;
   /** One line saying what applies the trims, printed before the first reading. */
   applierNote?: string;
+  /**
+   * Called with the final trims (the best so far when cut short) before the command returns.
+   * @throws should not: an error ends the command after the profile is written.
+   */
+  onFinish?: (trims: Trims) => void;
 }
 
 /** What `--session` writes and `--resume` reads. */
@@ -320,6 +333,10 @@ interface RunOut {
  *   (through `runGuarded`) turns UsageError and OrthotoneError into one line on stderr and exit 2.
  */
 export async function run(argv: string[], extras: CalibrateExtras = {}): Promise<number> {
+  // --device PATH (issue 11): src/cli/device.ts opens the link and calls back here with its applier.
+  if (!extras.applier && argv.some((a) => a === '--device' || a.startsWith('--device='))) {
+    return (await import('./device.js')).calibrateOnDevice(argv, run);
+  }
   const { values: v } = parseCommand(argv, OPTIONS);
   if (v.help) {
     process.stdout.write(HELP);
@@ -784,6 +801,7 @@ export async function run(argv: string[], extras: CalibrateExtras = {}): Promise
       )}\n`,
     );
   }
+  extras.onFinish?.(current);
   out(`\n${cautionsText()}\n`);
   if (interrupted) return 130;
   return cutShort ? 3 : 0;

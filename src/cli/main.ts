@@ -12,6 +12,14 @@ interface Command {
 
 const COMMANDS: Record<string, Command> = {
   // Each command registers here: name → module.
+  device: {
+    summary: 'talk to a microcontroller over the link protocol: identify, trims, set, load, store',
+    load: () => import('./device.js'),
+  },
+  bridge: {
+    summary: 'serve a serial device to a browser page over a local WebSocket',
+    load: () => import('./bridge.js'),
+  },
   start: {
     summary: 'a first run: design, render a two-tone, calibrate a virtual exciter, write ./out',
     load: () => import('./start.js'),
@@ -35,6 +43,19 @@ const COMMANDS: Record<string, Command> = {
   analyze: {
     summary: 'evaluate a network file: phase/gain error, suppression, group delay, cost',
     load: () => import('./analyze.js'),
+  },
+  emissions: {
+    summary:
+      'check every emission (carrier, sideband, IMD, mixer harmonics) against limits; exit 1 if any fails',
+    load: () => import('./emissions.js'),
+  },
+  verify: {
+    summary: "a few readings at a saved profile's trims: has the exciter drifted, re-calibrate?",
+    load: () => import('./verify.js'),
+  },
+  'output-filter': {
+    summary: 'design the RF output low-pass ladder (Butterworth/Chebyshev, E12/E24 capacitors)',
+    load: () => import('./output-filter.js'),
   },
   render: {
     summary: 'run a test signal or recording through a network and trims into an I/Q WAV',
@@ -74,6 +95,15 @@ async function main(argv: string[]): Promise<number> {
   }
   const mod = await cmd.load();
   return runGuarded(() => mod.run(rest));
+}
+
+// A reader that stops early (`orthotone analyze … | head`) closes the pipe: that ends the run
+// quietly, as the reader wanted, instead of an EPIPE stack trace.
+for (const stream of [process.stdout, process.stderr]) {
+  stream.on('error', (e: NodeJS.ErrnoException) => {
+    if (e.code === 'EPIPE') process.exit(0);
+    throw e;
+  });
 }
 
 main(process.argv.slice(2)).then(

@@ -6,23 +6,25 @@
  * and writes the network, the profile, C headers and the I/Q WAV into ./out; ends with the
  * transmitting cautions.
  */
-import { mkdir, writeFile } from 'node:fs/promises';
-import { join, resolve } from 'node:path';
+import { mkdir } from 'node:fs/promises';
+import { resolve } from 'node:path';
 import { calibrateSidebandAndCarrier } from '../calibrate/combined.js';
-import { createProfile, type ProfileReading, profileToJson } from '../calibrate/profile.js';
+import { createProfile, type ProfileReading } from '../calibrate/profile.js';
 import { cautionsText } from '../core/cautions.js';
 import { ZERO_TRIMS } from '../core/trims.js';
 import { designNetwork } from '../design/design-network.js';
 import { networkToCHeader } from '../export/c-header.js';
 import { networkToJson } from '../export/network-json.js';
 import { profileToCHeader } from '../export/profile-header.js';
+import { profileToJson } from '../export/profile-json.js';
 import { createQuadratureGenerator } from '../generate/quadrature-generator.js';
 import { createSignalSource } from '../generate/sources.js';
-import { writeIqWavFile } from '../node/wav.js';
+import { writeFileSet } from '../node/files.js';
+import { encodeWav } from '../node/wav.js';
 import { createAnalyzer } from '../simulate/analyzer.js';
 import { createVirtualExciter } from '../simulate/exciter.js';
 import { HOMEBREW_BENCH_SEED, homebrewBenchDevice } from '../simulate/model.js';
-import { numberOpt, parseCommand } from './args.js';
+import { parseCommand, seedOpt } from './args.js';
 import { formatTable } from './table.js';
 
 const HELP = `usage: orthotone start [--out DIR] [--seed N]
@@ -63,7 +65,7 @@ export async function run(argv: string[]): Promise<number> {
     return 0;
   }
   const outDir = resolve((v.out as string | undefined) ?? 'out');
-  const seed = numberOpt('seed', v.seed ?? '1')!;
+  const seed = seedOpt('seed', v.seed, 1);
   const say = (s: string): void => {
     process.stdout.write(s);
   };
@@ -173,8 +175,10 @@ export async function run(argv: string[]): Promise<number> {
     ['profile.json', profileToJson(profile)],
     ['calibration.h', profileToCHeader(profile)],
   ];
-  for (const [name, text] of files) await writeFile(join(outDir, name), text);
-  await writeIqWavFile(join(outDir, 'two-tone-iq.wav'), i, q, FS, 'float32');
+  writeFileSet(outDir, [
+    ...files.map(([name, text]) => [name, Buffer.from(text, 'utf8')] as [string, Uint8Array]),
+    ['two-tone-iq.wav', encodeWav([i, q], FS, 'float32').bytes],
+  ]);
   say(`\n4. wrote ${outDir}: ${[...files.map(([f]) => f), 'two-tone-iq.wav'].join(', ')}\n`);
   say(
     "   next: 'orthotone calibrate --prompt' to calibrate a real exciter from your analyzer readings,\n   'orthotone calibrate --simulate' to rehearse on other virtual devices.\n\n",

@@ -256,7 +256,12 @@ function validatePairSpec(spec: AllpassPairSpec): {
   if (typeof spec !== 'object' || spec === null) {
     throw new OrthotoneError('INVALID_ARGUMENT', 'spec must be an object { sampleRate, band, ... }', spec);
   }
-  const o = withDefaults(PAIR_DEFAULTS as Required<AllpassPairSpec>, spec);
+  const o = withDefaults(PAIR_DEFAULTS as Required<AllpassPairSpec>, spec, [
+    'sampleRate',
+    'band',
+    'sections',
+    'targetDb',
+  ]);
   const fs = requireSampleRate(o.sampleRate);
   const band = requireBand(o.band, fs);
   const form = requireOneOf('form', o.form, ['first-order', 'second-order'] as const);
@@ -281,6 +286,13 @@ function validatePairSpec(spec: AllpassPairSpec): {
  *   sections fall short.
  * Reference: Darlington, BSTJ 29:94, 1950; Orchard, Wireless Engineer 27:72, 1950 (closed form);
  * bilinear transform with prewarping; O. Niemitalo (music-dsp, 2001) for the z⁻² structure.
+ * @example
+ * ```ts
+ * import { designAllpassPair } from 'orthotone';
+ *
+ * const pair = designAllpassPair({ sampleRate: 48000, band: [300, 3000], targetDb: 60 });
+ * console.log(pair.sections, 'sections:', pair.branches.i.sections.map((s) => s.a.toFixed(4)).join(' '));
+ * ```
  */
 export function designAllpassPair(spec: AllpassPairSpec): AllpassPairDesign {
   const { fs, band, form, maxSections, sections, targetDb: givenTarget } = validatePairSpec(spec);

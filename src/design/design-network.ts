@@ -7,6 +7,7 @@
  */
 import { isOrthotoneError, OrthotoneError } from '../core/errors.js';
 import {
+  rejectUnknownKeys,
   requireBand,
   requireInteger,
   requireOneOf,
@@ -15,11 +16,21 @@ import {
   requireSampleRate,
 } from '../core/validate.js';
 import { type AllpassPairDesign, designAllpassPair, MAX_DESIGN_TARGET_DB } from './allpass-pair.js';
-import { networkCost, predictFigures } from './analysis.js';
-import { designHilbertFir, type HilbertFirDesign } from './hilbert-fir.js';
+import { networkCost, predictFigures, worstSuppressionDb } from './analysis.js';
+import {
+  designHilbertFir,
+  designHilbertFirJudged,
+  type HilbertFirDesign,
+  MAX_TAPS_LIMIT,
+} from './hilbert-fir.js';
 import type { AllpassNetwork, FirNetwork, Network } from './network.js';
 import { validateNetwork } from './network.js';
-import { COEFFICIENT_FORMATS, type CoefficientFormat, quantizeNetwork } from './quantize.js';
+import {
+  COEFFICIENT_FORMATS,
+  type CoefficientFormat,
+  quantizeCoefficient,
+  quantizeNetwork,
+} from './quantize.js';
 
 /** Spec for {@link designNetwork}. */
 export interface NetworkSpec {
@@ -70,6 +81,22 @@ export interface DesignCandidate {
 
 const DEFAULT_TARGET_DB = 60;
 
+/** Every key a {@link NetworkSpec} may hold (an unknown one is refused, naming the nearest). */
+const SPEC_KEYS: readonly string[] = [
+  'sampleRate',
+  'band',
+  'method',
+  'targetDb',
+  'taps',
+  'sections',
+  'firMethod',
+  'allpassForm',
+  'maxLatencySamples',
+  'maxSections',
+  'maxTaps',
+  'coefficientFormat',
+];
+
 interface Checked {
   fs: number;
   band: [number, number];
@@ -93,6 +120,7 @@ function checkSpec(spec: NetworkSpec): Checked {
       spec,
     );
   }
+  rejectUnknownKeys('the network spec', spec, SPEC_KEYS);
   const fs = requireSampleRate(spec.sampleRate);
   const band = requireBand(spec.band, fs);
   const method = requireOneOf('method', spec.method, ['fir', 'allpass', 'auto'] as const);
@@ -103,7 +131,7 @@ function checkSpec(spec: NetworkSpec): Checked {
     band,
     method,
     targetDb: opt(spec.targetDb, (v) => requireRange('targetDb', v, 1, MAX_DESIGN_TARGET_DB, 'dB')),
-    taps: opt(spec.taps, (v) => requireInteger('taps', v, 3, 65535)),
+    taps: opt(spec.taps, (v) => requireInteger('taps', v, 3, MAX_TAPS_LIMIT)),
     sections: opt(spec.sections, (v) => requireInteger('sections', v, 1, maxSections)),
     firMethod: requireOneOf('firMethod', spec.firMethod ?? 'remez', ['remez', 'kaiser'] as const),
     allpassForm: opt(spec.allpassForm, (v) =>
@@ -111,7 +139,7 @@ function checkSpec(spec: NetworkSpec): Checked {
     ),
     maxLatencySamples: opt(spec.maxLatencySamples, (v) => requirePositive('maxLatencySamples', v, 'samples')),
     maxSections,
-    maxTaps: opt(spec.maxTaps, (v) => requireInteger('maxTaps', v, 3, 65535)),
+    maxTaps: opt(spec.maxTaps, (v) => requireInteger('maxTaps', v, 3, MAX_TAPS_LIMIT)),
     format: undefined,
   };
   const format = requireOneOf('coefficientFormat', spec.coefficientFormat ?? 'float64', [
@@ -119,6 +147,22 @@ function checkSpec(spec: NetworkSpec): Checked {
     ...COEFFICIENT_FORMATS,
   ]);
   if (format !== 'float64') c.format = format;
+  // A size belongs to one network type: taps to the FIR, sections to the all-pass pair. Ignoring
+  // one quietly (method 'auto' returning an all-pass for taps 63) would hide the user's intent.
+  if (c.taps !== undefined && method !== 'fir') {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      `taps ${c.taps} sets the length of a Hilbert FIR but method is '${method}': use method 'fir', or drop taps`,
+      c.taps,
+    );
+  }
+  if (c.sections !== undefined && method !== 'allpass') {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      `sections ${c.sections} sets the size of an all-pass pair but method is '${method}': use method 'allpass', or drop sections`,
+      c.sections,
+    );
+  }
   if (c.taps !== undefined && c.taps % 2 === 0) {
     throw new OrthotoneError(
       'INVALID_ARGUMENT',
@@ -185,12 +229,23 @@ function firDocument(c: Checked, d: HilbertFirDesign, design: Record<string, unk
   });
 }
 
-function shortfall(c: Checked, net: Network, targetDb: number | undefined, sizeName: string): void {
+function shortfall(
+  c: Checked,
+  net: Network,
+  targetDb: number | undefined,
+  sizeName: string,
+  sizeGiven: boolean,
+): void {
   if (targetDb !== undefined && net.predicted.worstSuppressionDb < targetDb) {
+    const what = sizeName.split(' ')[0]!;
+    const fix = sizeGiven
+      ? `omit ${what} to get the smallest design that meets the target, or lower targetDb`
+      : c.format !== undefined
+        ? `the search stopped there after rounding to ${c.format}: use a wider coefficient format, raise ${what === 'taps' ? 'maxTaps' : 'maxSections'}, or lower targetDb`
+        : `raise ${what === 'taps' ? 'maxTaps' : 'maxSections'}, widen the band, or lower targetDb`;
     throw new OrthotoneError(
       'UNREACHABLE_TARGET',
-      `${sizeName} give ${net.predicted.worstSuppressionDb.toFixed(2)} dB worst suppression over [${c.band[0]}, ${c.band[1]}] Hz, below targetDb ${targetDb} dB: ` +
-        `omit ${sizeName.split(' ')[0]} to get the smallest design that meets the target, or lower targetDb`,
+      `${sizeName} give ${net.predicted.worstSuppressionDb.toFixed(2)} dB worst suppression over [${c.band[0]}, ${c.band[1]}] Hz, below targetDb ${targetDb} dB: ${fix}`,
       targetDb,
     );
   }
@@ -209,24 +264,20 @@ function designFir(c: Checked, targetDb: number | undefined, design: Record<stri
   const extra = c.maxTaps === undefined ? {} : { maxTaps: c.maxTaps };
   if (c.taps !== undefined) {
     const net = firDocument(c, designHilbertFir({ ...base, ...extra, taps: c.taps }), design);
-    shortfall(c, net, targetDb, `taps ${c.taps}`);
+    shortfall(c, net, targetDb, `taps ${c.taps}`, true);
     return net;
   }
   const target = targetDb ?? DEFAULT_TARGET_DB;
-  const first = designHilbertFir({ ...base, ...extra, targetDb: target });
-  let net = firDocument(c, first, design);
-  // The document's figures are our own evaluation; should they fall a hair short of the FIR
-  // designer's own, lengthen the filter (by 4 for a half-band design, keeping its end taps
-  // non-zero) until they meet the target.
-  // Rounding the coefficients (coefficientFormat) may cost more length than that.
-  const step = first.symmetricAboutQuarterRate ? 4 : 2;
-  const tries = c.format === undefined ? 8 : 64;
-  for (let t = 0; t < tries && net.predicted.worstSuppressionDb < target; t++) {
-    const taps = net.taps.length + step;
-    if (c.maxTaps !== undefined && taps > c.maxTaps) break;
-    net = firDocument(c, designHilbertFir({ ...base, ...extra, taps }), design);
-  }
-  shortfall(c, net, target, `taps ${net.taps.length}`);
+  // One length search: the FIR designer's, judged by the figure this document will carry (the
+  // independent evaluation of the taps, after rounding them to the coefficient format if one is
+  // given), so no second search has to lengthen the filter afterwards.
+  const judge = (taps: Float64Array): number => {
+    const t =
+      c.format === undefined ? Array.from(taps) : Array.from(taps, (x) => quantizeCoefficient(x, c.format!));
+    return worstSuppressionDb({ kind: 'fir', sampleRate: c.fs, band: c.band, taps: t });
+  };
+  const net = firDocument(c, designHilbertFirJudged({ ...base, ...extra, targetDb: target }, judge), design);
+  shortfall(c, net, target, `taps ${net.taps.length}`, false);
   return net;
 }
 
@@ -261,7 +312,13 @@ function designAllpass(
     n = next.sections;
     net = allpassDocument(c, next, design);
   }
-  shortfall(c, net, targetDb, `sections ${net.branches.i.sections.length + net.branches.q.sections.length}`);
+  shortfall(
+    c,
+    net,
+    targetDb,
+    `sections ${net.branches.i.sections.length + net.branches.q.sections.length}`,
+    c.sections !== undefined,
+  );
   return net;
 }
 
@@ -370,6 +427,15 @@ function designAuto(c: Checked, design: Record<string, unknown>): Network {
  *   short of a given target; NO_CONVERGENCE if the FIR exchange fails.
  * Reference: Darlington, BSTJ 29:94 (1950) and Orchard, Wireless Engineer 27:72 (1950) for the
  * all-pass pair; McClellan, Parks & Rabiner (1973) and Kaiser (1974) for the FIR.
+ * @example
+ * ```ts
+ * import { designNetwork } from 'orthotone';
+ *
+ * // The cheapest 90° network for speech, 300–3000 Hz at 48 kHz, with at least 60 dB suppression.
+ * const net = designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'auto', targetDb: 60 });
+ * console.log(net.kind, net.predicted.worstSuppressionDb.toFixed(1), 'dB,', net.cost.multipliesPerSample, 'multiplies/sample');
+ * if (net.predicted.worstSuppressionDb < 60) throw new Error('target not met');
+ * ```
  */
 export function designNetwork(spec: NetworkSpec): Network {
   const c = checkSpec(spec);

@@ -165,6 +165,13 @@ export function validateSignalSpec(spec: SignalSpec, sampleRate: number): Signal
       }
       checkFrequency('frequenciesHz[0]', spec.frequenciesHz[0], fs);
       checkFrequency('frequenciesHz[1]', spec.frequenciesHz[1], fs);
+      if (spec.frequenciesHz[0] === spec.frequenciesHz[1]) {
+        throw new OrthotoneError(
+          'INVALID_ARGUMENT',
+          `frequenciesHz [${spec.frequenciesHz[0]}, ${spec.frequenciesHz[1]}] is one tone twice: give two different frequencies`,
+          spec.frequenciesHz,
+        );
+      }
       const l = spec.levelDbfs;
       if (Array.isArray(l)) {
         level('levelDbfs[0]', l[0]);
@@ -467,8 +474,12 @@ function fillCore(
  * @throws {OrthotoneError} INVALID_ARGUMENT for an invalid spec or sample rate.
  * @example
  * ```ts
+ * import { createSignalSource } from 'orthotone';
+ *
  * const src = createSignalSource({ kind: 'two-tone', frequenciesHz: [700, 1900], levelDbfs: -7 }, 48000);
- * src.levels.pepDbfs; // −0.98 dBFS
+ * console.log(src.levels.pepDbfs.toFixed(2)); // −0.98 dBFS
+ * const block = new Float32Array(480);
+ * src.fill(block); // the next 10 ms
  * ```
  */
 export function createSignalSource(spec: SignalSpec, sampleRate: number): SignalSource {

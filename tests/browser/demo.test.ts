@@ -36,10 +36,14 @@ function median(xs: number[]): number {
   return s.length % 2 ? s[m]! : (s[m - 1]! + s[m]!) / 2;
 }
 
-// One retry: a real page, audio thread and fake devices under a loaded CI machine fail rarely
-// (seen: 1 run in 4 on a clean clone) in ways not reproduced here; every assertion still has to
-// hold on the retry, and the failure text (the page's status line) is kept in the report.
-describe('demo page', { retry: 1 }, () => {
+// No retry. The rare failure that a retry hid (1 run in 4 in CI; 1 in 12 here, reproduced by running
+// the in-page multi-tone calibration 12 times in a row) was a real one: the correction filter designed
+// from the per-tone nulls (designCorrection, src/calibrate/multitone.ts) is a least-squares fit over
+// 300–3000 Hz only, nearly unconstrained elsewhere, so when noisy readings put curvature into the
+// fitted model its 31 taps blow up ("correction absolute tap sum 21.2 exceeds 16") and the node refuses
+// it. The readings differ from run to run because each capture starts at a different point of the
+// tones. The fix (a ridge raised until the tap sum is bounded) belongs to the calibration code.
+describe('demo page', () => {
   it('loads without console errors, shows the cautions, and designs a network', async () => {
     const { page, errors } = browser;
     await page.goto(`${base}/#design`);
@@ -101,7 +105,7 @@ describe('demo page', { retry: 1 }, () => {
       return n;
     });
     expect(tracePixels).toBeGreaterThan(500);
-    // A 1° phase trim: Q' = Q·cos φ + I·sin φ (DESIGN.md §4) takes 1° off the angle between I and Q.
+    // A 1° phase trim: Q' = Q·cos φ + I·sin φ (src/generate/trim-stage.ts) takes 1° off the angle between I and Q.
     await setRange(page, '#panel-generate .trim >> nth=1 >> input', 1);
     await expect
       .poll(async () => plain.angleDeg - (await scopeFigures()).angleDeg, { timeout: 5_000 })
@@ -126,7 +130,7 @@ describe('demo page', { retry: 1 }, () => {
     await page.waitForTimeout(900); // a reading taken after the swap's cross-fade
     const r = (await reading())!;
     // Level −10 dBFS is the PEP; two equal tones are each 20·log10(2) = 6.02 dB below it
-    // (REFERENCES.md §5 [C]; Krauss, Bostian & Raab p. 509: Ppeak = n²·Ptone).
+    // (Krauss, Bostian & Raab, Solid State Radio Engineering p. 509: Ppeak = n²·Ptone).
     expect(r.pepDbfs).toBeCloseTo(-10, 1);
     for (const t of r.tonesDbfs) expect(t).toBeCloseTo(-16.02, 1);
     // The generator is linear: its own products lie far below any exciter's (−30 dBc is a
@@ -196,7 +200,7 @@ describe('demo page', { retry: 1 }, () => {
     expect(r.taps).toBe(31);
     expect(r.verifyHz[0]).toBe(300);
     expect(r.verifyHz[r.verifyHz.length - 1]).toBe(3000);
-    // Skew τ gives a phase error 2πfτ (REFERENCES.md §6 [C]): one pair of trims cannot hold the whole
+    // Skew τ gives a phase error 2πfτ (the phase of a delay, common practice, no source): one pair of trims cannot hold the whole
     // band; the filter follows it. Figures of the multi-tone calibration test (tests/calibrate):
     // ≥ 55 dB with the filter where single trims fall short; here the 60 dB network adds its own error.
     expect(worst(r.after)).toBeGreaterThanOrEqual(50);

@@ -4,13 +4,9 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { designCorrection, equivalentTrims, fitImbalanceModel } from '../../src/calibrate/multitone.js';
-import {
-  createProfile,
-  parseProfileJson,
-  profileToJson,
-  validateProfile,
-} from '../../src/calibrate/profile.js';
+import { createProfile, validateProfile } from '../../src/calibrate/profile.js';
 import { profileToCHeader } from '../../src/export/profile-header.js';
+import { parseProfileJson, profileToJson } from '../../src/export/profile-json.js';
 import { validateCorrection } from '../../src/generate/correction.js';
 import { expectOrthotoneError } from '../support/errors.js';
 

@@ -37,7 +37,8 @@ describe('README examples, against the built package', () => {
       JSON.stringify({
         extends: join(root, 'tsconfig.json'),
         include: files,
-        // paths: {} undoes the root tsconfig's 'orthotone' → src/ mapping (for the demo): dist/ here.
+        // paths: {} so 'orthotone' resolves to the built package (package.json exports), not to src/ through
+        // the root tsconfig's mapping for the demo (which made tsc emit .js files into src/).
         compilerOptions: {
           noEmit: false,
           outDir: out,

@@ -58,6 +58,8 @@ export {
   type AnalyzerLike,
   analyzerSource,
   functionSource,
+  type LiveLevels,
+  liveGuard,
   mapSource,
   PASS_THROUGH,
   type ReadingContext,

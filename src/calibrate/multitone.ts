@@ -34,7 +34,14 @@ import {
   type SurfacePoint,
   surfaceDb,
 } from './quadratic-fit.js';
-import { functionSource, runSession, type SavedSeeker, type Seeker } from './session.js';
+import {
+  functionSource,
+  type ReadingSource,
+  runSession,
+  type SavedSeeker,
+  type Seeker,
+  type TrimApplier,
+} from './session.js';
 import { SIDEBAND_CURVATURE, sidebandPoint, sidebandTrims } from './sideband.js';
 
 // The correction's design and evaluation live in design/correction.ts (FIR design is design's job).
@@ -70,6 +77,20 @@ export interface MultitoneOptions {
   verifyReadings?: number;
   signal?: AbortSignal;
   onReading?: (step: { index: number; trims: Trims; levelsDb: number[] }) => void;
+  /**
+   * Where the search's readings come from, instead of `measure` (a typed prompt or a command from
+   * the CLI: it may answer retry, undo or stop). `measure` still serves the verification.
+   */
+  source?: ReadingSource<readonly number[]>;
+  /** Sets the trims before each reading of the search (a device). Default: the source does. */
+  applier?: TrimApplier;
+  /** Time allowed for one reading of the search, seconds. Default: none. */
+  timeoutSeconds?: number;
+  /**
+   * Called when a reading failed (before it is retried).
+   * @throws anything: passed on as the calibration's rejection.
+   */
+  onFailure?: (error: unknown, index: number) => void;
 }
 
 /** The fitted null of one tone. */
@@ -125,6 +146,8 @@ export interface MultitoneResult {
   readings: number;
   history: { index: number; trims: Trims; levelsDb: number[] }[];
   stopReason: StopReason;
+  /** Set when the search ended early: a person quit, the input ended, it was aborted or readings kept failing. */
+  cutShort?: 'quit' | 'end-of-input' | 'aborted' | 'failed' | 'refused';
   /** The final check with the correction applied (absent when skipped or the run was aborted). */
   verification?: MultitoneVerification;
 }
@@ -200,17 +223,16 @@ export async function calibrateMultitone(options: MultitoneOptions): Promise<Mul
   for (const [i, b] of band.entries()) requireFinite(`band[${i}]`, b);
   const start: Trims = { ...ZERO_TRIMS, ...(o.start ?? {}) };
   const refiner = createMultitoneSeeker({ tonesCount: o.tonesHz.length, start, noiseDb, maxReadings });
-  const session = await runSession(
-    refiner,
-    functionSource((t) => o.measure(t)),
-    {
-      signal: o.signal,
-      maxReadings,
-      onReading: (h) => {
-        if (h.levels) o.onReading?.({ index: h.index, trims: h.trims, levelsDb: [...h.levels] });
-      },
+  const session = await runSession(refiner, o.source ?? functionSource((t) => o.measure(t)), {
+    signal: o.signal,
+    applier: o.applier,
+    timeoutSeconds: o.timeoutSeconds,
+    onFailure: o.onFailure,
+    maxReadings,
+    onReading: (h) => {
+      if (h.levels) o.onReading?.({ index: h.index, trims: h.trims, levelsDb: [...h.levels] });
     },
-  );
+  });
   const history: MultitoneResult['history'] = session.history.map((h) => ({
     index: h.index,
     trims: h.trims,
@@ -283,6 +305,7 @@ export async function calibrateMultitone(options: MultitoneOptions): Promise<Mul
     readings: history.length,
     history,
     stopReason,
+    ...(session.cutShort ? { cutShort: session.cutShort } : {}),
     ...(verification ? { verification } : {}),
   };
 }

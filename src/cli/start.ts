@@ -24,7 +24,7 @@ import { encodeWav } from '../node/wav.js';
 import { createAnalyzer } from '../simulate/analyzer.js';
 import { createVirtualExciter } from '../simulate/exciter.js';
 import { HOMEBREW_BENCH_SEED, homebrewBenchDevice } from '../simulate/model.js';
-import { numberOpt, parseCommand } from './args.js';
+import { parseCommand, seedOpt } from './args.js';
 import { formatTable } from './table.js';
 
 const HELP = `usage: orthotone start [--out DIR] [--seed N]
@@ -65,7 +65,7 @@ export async function run(argv: string[]): Promise<number> {
     return 0;
   }
   const outDir = resolve((v.out as string | undefined) ?? 'out');
-  const seed = numberOpt('seed', v.seed ?? '1')!;
+  const seed = seedOpt('seed', v.seed, 1);
   const say = (s: string): void => {
     process.stdout.write(s);
   };

@@ -97,20 +97,56 @@ export function equivalentTrims(
 }
 
 /**
- * Designs the correction FIR pair realising a model over a band, by least squares on a grid.
+ * Largest absolute tap sum {@link designCorrection} aims for: three quarters of the 16 the generator
+ * accepts (generate/correction.ts CORRECTION_MAX_ABS_SUM; not imported: design/ sits below
+ * generate/).
+ */
+export const CORRECTION_TARGET_ABS_SUM = 12;
+
+/**
+ * Designs the correction FIR pair realising a model over a band, by ridge-regularised least squares
+ * on a grid. Over an audio band at a high sample rate the cosine and sine series are nearly
+ * collinear, and plain least-squares taps can sum to tens (the generator refuses more than 16) for
+ * no gain in the band; the ridge is therefore raised from 1e-10 in steps of 2 until the absolute tap
+ * sum is at most {@link CORRECTION_TARGET_ABS_SUM} (up to 1e-4).
  * @param model gain and phase versus frequency.
  * @param band [lo, hi] Hz.
  * @param sampleRate Hz.
  * @param taps odd length.
  * @returns the FIR pair (`qFromQ`, `qFromI`, `taps` long each).
  * @throws {OrthotoneError} INVALID_ARGUMENT for an even or too short length or a bad band.
- * Method: least squares on a log-spaced grid of 128 frequencies (see the file header).
+ * Method: least squares on a log-spaced grid of 128 frequencies (see the file header), with
+ * Tikhonov regularisation (Hansen, Rank-Deficient and Discrete Ill-Posed Problems, SIAM 1998, ch. 5).
  */
 export function designCorrection(
   model: ImbalanceModel,
   band: readonly [number, number],
   sampleRate: number,
   taps: number,
+): Correction {
+  let c = designWithRidge(model, band, sampleRate, taps, 1e-10);
+  for (let ridge = 2e-10; ridge <= 1e-4 && absTapSum(c) > CORRECTION_TARGET_ABS_SUM; ridge *= 2) {
+    c = designWithRidge(model, band, sampleRate, taps, ridge);
+  }
+  return c;
+}
+
+const absTapSum = (c: Correction): number => {
+  let s = 0;
+  for (let k = 0; k < c.qFromQ.length; k++) s += Math.abs(c.qFromQ[k]!) + Math.abs(c.qFromI[k]!);
+  return s;
+};
+
+/**
+ * {@link designCorrection} with a given ridge (relative weight of the taps' sum of squares).
+ * @throws {OrthotoneError} INVALID_ARGUMENT as {@link designCorrection}.
+ */
+function designWithRidge(
+  model: ImbalanceModel,
+  band: readonly [number, number],
+  sampleRate: number,
+  taps: number,
+  ridge: number,
 ): Correction {
   requireSampleRate(sampleRate);
   requireInteger('taps', taps, 1, 255);
@@ -143,8 +179,8 @@ export function designCorrection(
   // α = A_c + B_s and β = B_c − A_s (cosine parts from symmetric taps, sine parts from
   // antisymmetric taps); a light ridge keeps the series bounded outside the band.
   const ca =
-    weightedLeastSquares(rows, ya, ones, n, 1e-10) ?? Float64Array.from({ length: n }, (_, k) => +(k === 0));
-  const cb = weightedLeastSquares(rows, yb, ones, n, 1e-10) ?? new Float64Array(n);
+    weightedLeastSquares(rows, ya, ones, n, ridge) ?? Float64Array.from({ length: n }, (_, k) => +(k === 0));
+  const cb = weightedLeastSquares(rows, yb, ones, n, ridge) ?? new Float64Array(n);
   const qFromQ = new Array<number>(taps).fill(0);
   const qFromI = new Array<number>(taps).fill(0);
   qFromQ[m] = ca[0]!;

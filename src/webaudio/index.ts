@@ -35,5 +35,11 @@ export {
   type QuadratureNodeOptions,
   type SwapAck,
 } from './node.js';
-export { createTrimReader, type TrimReaderOptions } from './trim-reader.js';
+export {
+  type CaptureSourceOptions,
+  createCaptureSource,
+  createGeneratorApplier,
+  createTrimReader,
+  type TrimReaderOptions,
+} from './trim-reader.js';
 export { loadWorkletModule } from './worklet-module.js';

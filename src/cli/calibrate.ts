@@ -52,6 +52,7 @@ import {
 } from '../simulate/model.js';
 import { choiceOpt, lookupOpt, numberOpt, parseCommand, UsageError } from './args.js';
 import { commandSource, lineInput, promptSource } from './calibrate-sources.js';
+import { createProgress } from './progress.js';
 import { formatTable } from './table.js';
 
 const HELP = `usage: orthotone calibrate (--simulate | --prompt | --measure-command CMD) [options]
@@ -898,8 +899,11 @@ async function runBand(c: BandContext): Promise<number> {
           env: { OT_QUANTITY: 'band', OT_TONES_HZ: tonesHz.join(',') },
           count: K,
         });
+  // Progress on stderr (a terminal only) for the simulated run; typed or scripted readings show their own.
+  const progress = an ? createProgress('multi-tone calibration', Math.max(4, c.maxReadings)) : undefined;
   const r = await calibrateMultitone({
     measure: (t, corr) => (an ? simRead(t, corr) : tonesHz.map(() => Number.NaN)),
+    ...(progress ? { onReading: (step: { index: number }) => progress.update(step.index) } : {}),
     source,
     ...(c.extras.applier ? { applier: c.extras.applier } : {}),
     tonesHz,
@@ -912,12 +916,14 @@ async function runBand(c: BandContext): Promise<number> {
     signal: c.signal,
     timeoutSeconds: c.timeoutSeconds,
     onFailure: (e, index) => out(`  reading ${index} failed: ${(e as Error)?.message ?? 'no value'}\n`),
-  }).catch((e: unknown) => {
-    if (isOrthotoneError(e, 'MEASUREMENT_FAILED')) {
-      throw new UsageError(`${e.message}: too few readings for a correction; nothing was written`);
-    }
-    throw e;
-  });
+  })
+    .finally(() => progress?.finish())
+    .catch((e: unknown) => {
+      if (isOrthotoneError(e, 'MEASUREMENT_FAILED')) {
+        throw new UsageError(`${e.message}: too few readings for a correction; nothing was written`);
+      }
+      throw e;
+    });
   const table: string[][] = [['#', 'setting', ...tonesHz.map((f) => `${f} Hz dB`)]];
   for (const h of r.history)
     table.push([

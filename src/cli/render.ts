@@ -376,6 +376,8 @@ async function renderWith(
   const width = { uint8: 1, int16: 2, int24: 3, int32: 4, float32: 4, float64: 8 }[encoding];
   const dataBytes = frames * 2 * width;
   checkFreeSpace(outFile, dataBytes + 1024, '--out');
+  // A vectors row is at most about 50 characters (index and three 9-digit values).
+  if (vectorsFile !== undefined) checkFreeSpace(vectorsFile, frames * 50, '--vectors');
 
   const gen = createQuadratureGenerator(net, { trims, sideband });
   // Realised levels are read back from what is written; the tone readback keeps one window of it.

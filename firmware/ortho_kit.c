@@ -92,10 +92,16 @@ void ortho_set_trims(ortho_t *s, const ortho_trims_t *t) {
 }
 
 void ortho_init(ortho_t *s) {
-  ortho_trims_t t;
   ortho_reset(s);
-  ortho_trims_neutral(&t);
-  ortho_set_trims(s, &t);
+#if ORTHO_HAS_PROFILE
+  ortho_set_trims(s, &ORTHO_PROFILE_TRIMS);
+#else
+  {
+    ortho_trims_t t;
+    ortho_trims_neutral(&t);
+    ortho_set_trims(s, &t);
+  }
+#endif
 }
 
 /* ---- network input: sample to network word ---- */

@@ -36,6 +36,10 @@ const COMMANDS: Record<string, Command> = {
     summary: 'evaluate a network file: phase/gain error, suppression, group delay, cost',
     load: () => import('./analyze.js'),
   },
+  firmware: {
+    summary: 'write a C99 firmware kit (network and trims in float, Q31 or Q15) with host-check and README',
+    load: () => import('./firmware.js'),
+  },
   render: {
     summary: 'run a test signal or recording through a network and trims into an I/Q WAV',
     load: () => import('./render.js'),

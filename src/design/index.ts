@@ -18,3 +18,5 @@ export * from './kaiser.js';
 export * from './network.js';
 export * from './quantize.js';
 export * from './remez.js';
+export * from './kit-arithmetic.js';
+export * from './arithmetic-analysis.js';

@@ -7,3 +7,4 @@ export * from './prediction.js';
 export * from './quadrature-generator.js';
 export * from './sources.js';
 export * from './trim-stage.js';
+export * from './fixed-point.js';

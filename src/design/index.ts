@@ -11,12 +11,12 @@ export {
   networkCost,
   predictFigures,
 } from './analysis.js';
+export * from './arithmetic-analysis.js';
 export * from './design-network.js';
 export * from './elliptic.js';
 export * from './hilbert-fir.js';
 export * from './kaiser.js';
+export * from './kit-arithmetic.js';
 export * from './network.js';
 export * from './quantize.js';
 export * from './remez.js';
-export * from './kit-arithmetic.js';
-export * from './arithmetic-analysis.js';

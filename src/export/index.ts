@@ -1,5 +1,5 @@
 export * from './c-header.js';
 export * from './csv.js';
+export * from './firmware-kit.js';
 export * from './network-json.js';
 export * from './profile-header.js';
-export * from './firmware-kit.js';

@@ -21,7 +21,7 @@ const MIN32 = -2147483648;
 const F32_DENORMAL_GUARD = Math.fround(1e-20);
 
 function sat(v: number, lo: number, hi: number): number {
-  return v > hi ? hi : v < lo ? lo : v;
+  return Math.min(hi, Math.max(lo, v));
 }
 
 /**

@@ -40,6 +40,10 @@ const COMMANDS: Record<string, Command> = {
     summary: 'write a C99 firmware kit (network and trims in float, Q31 or Q15) with host-check and README',
     load: () => import('./firmware.js'),
   },
+  'port-check': {
+    summary: "compare a firmware port's captured output with 'render --vectors' test vectors",
+    load: () => import('./port-check.js'),
+  },
   render: {
     summary: 'run a test signal or recording through a network and trims into an I/Q WAV',
     load: () => import('./render.js'),

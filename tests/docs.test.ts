@@ -233,8 +233,6 @@ const MEMBER_ALLOW_LIST: ReadonlyMap<string, string> = new Map([
   ['src/calibrate/baselines.ts#AskTell.best', NOT_YET],
   ['src/calibrate/combined.ts#CombinedCalibrationOptions.measure', CALLBACK],
   ['src/calibrate/combined.ts#CombinedCalibrationOptions.onReading', CALLBACK],
-  ['src/calibrate/combined.ts#CombinedSeeker.next', NOT_YET],
-  ['src/calibrate/combined.ts#CombinedSeeker.best', NOT_YET],
   ['src/calibrate/multitone.ts#MultitoneOptions.measure', CALLBACK],
   ['src/calibrate/multitone.ts#MultitoneOptions.onReading', CALLBACK],
   ['src/calibrate/null-seeker.ts#NullSeeker.best', NOT_YET],

@@ -10,21 +10,26 @@
  *  - live: receiver audio coming back through the sound card (getUserMedia), read with
  *    measureSideband at the audio offset where the carrier lands.
  */
-import { type CombinedCalibrationResult, calibrateSidebandAndCarrier } from '../../src/calibrate/combined.js';
-import { calibrateMultitone, type MultitoneResult } from '../../src/calibrate/multitone.js';
-import type { CalibrationStep } from '../../src/calibrate/trim-calibration.js';
-import type { Trims } from '../../src/core/trims.js';
-import { measureSideband, type SidebandReading } from '../../src/measure/sideband.js';
-import { measureTones } from '../../src/measure/tones.js';
-import { createVirtualExciter } from '../../src/simulate/exciter.js';
 import {
+  type CalibrationStep,
+  type CaptureNode,
+  type CaptureResult,
+  type CombinedCalibrationResult,
+  calibrateMultitone,
+  calibrateSidebandAndCarrier,
+  createCaptureNode,
+  createTrimReader,
+  createVirtualExciter,
   drawDevice,
   type ExciterModel,
+  type MultitoneResult,
+  measureSideband,
+  measureTones,
+  type SidebandReading,
   TOLERANCE_PRESETS,
   type TolerancePreset,
-} from '../../src/simulate/model.js';
-import { type CaptureNode, type CaptureResult, createCaptureNode } from '../../src/webaudio/capture-node.js';
-import { createTrimReader } from '../../src/webaudio/trim-reader.js';
+  type Trims,
+} from 'orthotone';
 import { type Running, workletUrl } from './engine.js';
 
 /** Both levels of one reading, dBc. */

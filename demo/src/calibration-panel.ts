@@ -3,10 +3,7 @@
  * gain, phase and DC trims at one tone, or a correction filter across the band (multi-tone).
  */
 
-import type { Diagnosis } from '../../src/calibrate/diagnosis.js';
-import { createProfile, profileToJson } from '../../src/calibrate/profile.js';
-import type { Trims } from '../../src/core/trims.js';
-import { profileToCHeader } from '../../src/export/profile-header.js';
+import { createProfile, type Diagnosis, profileToCHeader, profileToJson, type Trims } from 'orthotone';
 import {
   audioReader,
   type CalibrationRun,

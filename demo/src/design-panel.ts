@@ -1,63 +1,130 @@
 /** Panel 1: the design explorer. Spec in; figures, plots and downloads out. */
-import { analyzeNetwork } from '../../src/design/analysis.js';
-import { designNetwork, type NetworkSpec } from '../../src/design/design-network.js';
-import type { Network } from '../../src/design/network.js';
-import { networkToCHeader } from '../../src/export/c-header.js';
-import { analysisToCsv, networkToCsv } from '../../src/export/csv.js';
-import { networkToJson } from '../../src/export/network-json.js';
-import { download, field, figure, fmt, h, numberInput, select } from './dom.js';
+import {
+  analysisToCsv,
+  analyzeNetwork,
+  designNetwork,
+  type Network,
+  type NetworkSpec,
+  networkToCHeader,
+  networkToCsv,
+  networkToJson,
+  parseNetworkJson,
+} from 'orthotone';
+import type { DesignReply, DesignRequest } from './design-job.js';
+import DesignWorker from './design-worker.ts?worker';
+import {
+  download,
+  type Figure,
+  field,
+  figure,
+  fmt,
+  h,
+  numberInput,
+  pickTextFile,
+  select,
+  statusLine,
+} from './dom.js';
 import { linePlot } from './plot.js';
 
 export interface DesignPanel {
   el: HTMLElement;
   network: Network;
+  /** The spec controls, for a saved session. */
+  state(): DesignState;
+  /** Sets the spec controls (a loaded session) without designing. */
+  restore(s: Partial<DesignState>): void;
+  /** Shows a network made elsewhere (a file, a profile, a session) as the current design. */
+  showNetwork(net: Network, from: string): Promise<void>;
+}
+
+/** The design panel's settings, as saved in a session. */
+export interface DesignState {
+  sampleRate: number;
+  band: [number, number];
+  targetDb: number;
+  method: NetworkSpec['method'];
+  coefficientFormat: NonNullable<NetworkSpec['coefficientFormat']>;
 }
 
 /** The starting spec: voice band at 48 kHz, 60 dB. */
 export const START_SPEC: NetworkSpec = { sampleRate: 48000, band: [300, 3000], method: 'auto', targetDb: 60 };
 
+/** Sample rates offered: the common codec rates from telephone band to studio. */
+const RATES: [string, string][] = [
+  ['8000', '8 kHz'],
+  ['16000', '16 kHz'],
+  ['24000', '24 kHz'],
+  ['32000', '32 kHz'],
+  ['44100', '44.1 kHz'],
+  ['48000', '48 kHz'],
+  ['96000', '96 kHz'],
+];
+
+/** Coefficient formats, as the command line's `--coefficients`. */
+const FORMATS: [string, string][] = [
+  ['float64', 'float64 (as designed)'],
+  ['float32', 'float32'],
+  ['q31', 'Q31 (32-bit fixed point)'],
+  ['q15', 'Q15 (16-bit fixed point)'],
+];
+
 export function designPanel(onUse: (net: Network) => void): DesignPanel {
-  const rate = select(
-    [
-      ['8000', '8 kHz'],
-      ['16000', '16 kHz'],
-      ['44100', '44.1 kHz'],
-      ['48000', '48 kHz'],
-      ['96000', '96 kHz'],
-    ],
-    String(START_SPEC.sampleRate),
-  );
-  const lo = numberInput(START_SPEC.band[0], { min: 1, step: 10 });
-  const hi = numberInput(START_SPEC.band[1], { min: 10, step: 10 });
+  const rate = select(RATES, String(START_SPEC.sampleRate), { id: 'design-rate' });
+  const lo = numberInput(START_SPEC.band[0], { min: 1, step: 10, id: 'design-lo' });
+  const hi = numberInput(START_SPEC.band[1], { min: 10, step: 10, id: 'design-hi' });
   const method = select(
     [
-      ['auto', 'Cheapest that meets the target'],
+      ['auto', 'Either: the cheaper one'],
       ['allpass', 'All-pass pair (IIR)'],
       ['fir', 'Hilbert FIR (linear phase)'],
     ],
     START_SPEC.method,
+    { id: 'design-method' },
   );
-  const target = numberInput(START_SPEC.targetDb ?? 60, { min: 10, max: 140, step: 1 });
-  const status = h('div', { class: 'status' });
+  const format = select(FORMATS, 'float64', { id: 'design-format' });
+  const target = numberInput(START_SPEC.targetDb ?? 60, { min: 10, max: 140, step: 1, id: 'design-target' });
+  const status = statusLine('design-status');
+  const loadStatus = statusLine('design-load-status');
   const figs = {
-    worst: figure('Worst suppression'),
-    phase: figure('Max phase error'),
-    gain: figure('Max gain error'),
+    worst: figure('Worst suppression', 'over the band'),
+    phase: figure('Largest phase error'),
+    gain: figure('Largest gain error'),
     kind: figure('Network'),
-    cost: figure('Multiplies / sample'),
-    latency: figure('Latency'),
+    cost: figure('Multiplies per sample'),
+    latency: figure('Delay'),
   };
+  const runBtn = h('button', { id: 'design-run', onclick: () => void run() }, 'Design');
+  const useBtn = h(
+    'button',
+    { id: 'design-use', onclick: () => onUse(panel.network) },
+    'Use in the generator',
+  );
+  const dlButtons = [
+    h('button', { class: 'secondary', onclick: () => dl('json') }, 'Network (JSON)'),
+    h('button', { class: 'secondary', onclick: () => dl('c') }, 'C header'),
+    h('button', { class: 'secondary', onclick: () => dl('csv') }, 'Coefficients (CSV)'),
+    h('button', { class: 'secondary', onclick: () => dl('analysis') }, 'Response (CSV)'),
+  ];
+  const loadBtn = h(
+    'button',
+    { class: 'secondary', id: 'design-load', onclick: () => void load() },
+    'Load a network (JSON)…',
+  );
   const plots = h('div', { id: 'design-plots' });
+  const figBox = h(
+    'div',
+    { class: 'figures', id: 'design-figures' },
+    ...Object.values(figs).map((f) => f.el),
+  );
   const el = h(
     'section',
-    { class: 'panel', id: 'panel-design' },
-    h('h2', {}, 'Design a 90° network'),
+    { class: 'panel', id: 'panel-design', 'aria-labelledby': 'design-title' },
+    h('h2', { id: 'design-title' }, 'Design a 90° network'),
     h(
       'p',
       { class: 'lead' },
-      'Say which audio band must reach the exciter and how deep the unwanted sideband must be. ',
-      'The explorer designs the network, shows its phase error and the suppression it allows across the band ',
-      '(before any analog errors), what it costs to run, and lets you download it.',
+      'Give the band and the suppression wanted; see the phase error, the suppression the network allows ',
+      '(before analog errors) and its cost, then use or download it.',
     ),
     h(
       'div',
@@ -71,24 +138,25 @@ export function designPanel(onUse: (net: Network) => void): DesignPanel {
           h('legend', {}, 'Specification'),
           field('Sample rate', rate),
           h('div', { class: 'row' }, field('Band low, Hz', lo), field('Band high, Hz', hi)),
-          field('Suppression wanted, dB', target, 'worst case over the band'),
+          field('Suppression wanted, dB', target, 'worst in the band'),
           field('Network kind', method),
-          h('button', { id: 'design-run', onclick: () => run() }, 'Design'),
+          field('Coefficient format', format, 'as your firmware runs them'),
+          runBtn,
+          status.el,
         ),
         h(
           'fieldset',
           {},
-          h('legend', {}, 'Use and export'),
-          h('button', { id: 'design-use', onclick: () => onUse(panel.network) }, 'Use in the generator'),
-          h('div', { class: 'hint' }, 'Downloads:'),
-          h('button', { class: 'secondary', onclick: () => dl('json') }, 'JSON'),
-          h('button', { class: 'secondary', onclick: () => dl('c') }, 'C header'),
-          h('button', { class: 'secondary', onclick: () => dl('csv') }, 'Coefficients CSV'),
-          h('button', { class: 'secondary', onclick: () => dl('analysis') }, 'Response CSV'),
+          h('legend', {}, 'Use, save, load'),
+          useBtn,
+          h('div', { class: 'hint' }, 'Download the design:'),
+          ...dlButtons,
+          h('div', { class: 'hint' }, 'Or evaluate a network saved earlier:'),
+          loadBtn,
+          loadStatus.el,
         ),
-        status,
       ),
-      h('div', {}, h('div', { class: 'figures' }, ...Object.values(figs).map((f) => f.el)), plots),
+      h('div', { 'aria-live': 'off' }, figBox, plots),
     ),
   );
   // Plots span the band and a little beyond it (shaded), so the edges show where the error turns up.
@@ -101,6 +169,8 @@ export function designPanel(onUse: (net: Network) => void): DesignPanel {
     title: 'Phase error across the band (I − Q − 90°; shaded: outside the band)',
     xLabel: 'Hz',
     yLabel: 'degrees',
+    yUnit: '°',
+    yDigits: 4,
     logX: true,
     series: [{ label: 'phase error', color: '#0f7c7a' }],
     xRange: () => view.range,
@@ -115,68 +185,177 @@ export function designPanel(onUse: (net: Network) => void): DesignPanel {
     logX: true,
     series: [
       { label: 'suppression', color: '#c8452b' },
-      { label: 'target', color: '#8a96a0', dash: [6, 4] },
+      { label: 'target', color: '#6b7884', dash: [6, 4] },
     ],
     xRange: () => view.range,
     shadeOutside: () => view.band,
   });
 
-  const panel: DesignPanel = { el, network: designNetwork(START_SPEC) };
-
-  function spec(): NetworkSpec {
-    return {
-      sampleRate: Number(rate.value),
-      band: [Number(lo.value), Number(hi.value)],
-      method: method.value as NetworkSpec['method'],
-      targetDb: Number(target.value),
-    };
+  // Designs run in a worker; a new request replaces one still running.
+  let worker: Worker | null = null;
+  let pending: { id: number; resolve: (r: DesignReply) => void } | null = null;
+  let seq = 0;
+  function request(req: Omit<DesignRequest, 'id'>): Promise<DesignReply> {
+    if (pending) {
+      worker?.terminate();
+      worker = null;
+      pending = null;
+    }
+    if (!worker) {
+      worker = new DesignWorker();
+      worker.addEventListener('message', (e: MessageEvent<DesignReply>) => {
+        if (pending && e.data.id === pending.id) {
+          const p = pending;
+          pending = null;
+          p.resolve(e.data);
+        }
+      });
+    }
+    const id = ++seq;
+    return new Promise((resolve) => {
+      pending = { id, resolve };
+      worker!.postMessage({ ...req, id } as DesignRequest);
+    });
   }
 
-  function show(net: Network): void {
+  const panel: DesignPanel = {
+    el,
+    network: designNetwork(START_SPEC),
+    state: () => ({
+      sampleRate: Number(rate.value),
+      band: [Number(lo.value), Number(hi.value)],
+      targetDb: Number(target.value),
+      method: method.value as NetworkSpec['method'],
+      coefficientFormat: format.value as DesignState['coefficientFormat'],
+    }),
+    restore(s) {
+      if (s.sampleRate !== undefined) setRate(s.sampleRate);
+      if (s.band) {
+        lo.value = String(s.band[0]);
+        hi.value = String(s.band[1]);
+      }
+      if (s.targetDb !== undefined) target.value = String(s.targetDb);
+      if (s.method) method.value = s.method;
+      if (s.coefficientFormat) format.value = s.coefficientFormat;
+    },
+    async showNetwork(net, from) {
+      panel.restore({ sampleRate: net.sampleRate, band: net.band, method: net.kind });
+      const f = (net.design as { coefficientFormat?: string }).coefficientFormat;
+      format.value = typeof f === 'string' && FORMATS.some(([v]) => v === f) ? f : 'float64';
+      await evaluate({ network: net }, loadStatus, `${from}: `);
+    },
+  };
+
+  /** Picks the rate in the list, adding it when a loaded network runs at another rate. */
+  function setRate(fs: number): void {
+    if (![...rate.options].some((o) => Number(o.value) === fs)) {
+      rate.append(h('option', { value: String(fs) }, `${fmt(fs / 1000, 3).replace(/\.?0+$/, '')} kHz`));
+    }
+    rate.value = String(fs);
+  }
+
+  function spec(): NetworkSpec {
+    const s = panel.state();
+    return { ...s, coefficientFormat: s.coefficientFormat };
+  }
+
+  function setAvailable(ok: boolean): void {
+    useBtn.disabled = !ok;
+    for (const b of dlButtons) b.disabled = !ok;
+  }
+
+  /** Clears every figure and plot: nothing from an earlier design stays up after a failure. */
+  function clearFigures(why: string): void {
+    for (const f of Object.values(figs) as Figure[]) f.clear();
+    phasePlot.clear(why);
+    supPlot.clear(why);
+    delete plots.dataset['xRange'];
+  }
+
+  function show(r: Extract<DesignReply, { ok: true }>): void {
+    const net = r.network;
+    const a = r.band;
     const fs = net.sampleRate;
-    const a = analyzeNetwork(net, {
-      points: 400,
-      // The band itself: outside it the error grows fast and would hide the equiripple detail.
-      fromHz: net.band[0],
-      toHz: net.band[1],
-      scale: 'log',
-    });
     const t = Number(target.value);
-    figs.worst.set(`${fmt(a.worst.suppressionDb)} dB`, a.worst.suppressionDb >= t - 0.05 ? 'good' : 'bad');
+    const meets = a.worst.suppressionDb >= t - 0.05;
+    figs.worst.set(
+      `${fmt(a.worst.suppressionDb)} dB`,
+      meets ? 'good' : 'bad',
+      `${meets ? 'meets' : 'below'} ${fmt(t, 0)} dB`,
+    );
     figs.phase.set(`${fmt(a.maxPhaseErrorDeg, 3)}°`);
     figs.gain.set(`${fmt(a.maxGainErrorDb, 4)} dB`);
     const size =
       net.kind === 'fir'
         ? `FIR, ${net.taps.length} taps`
         : `All-pass, ${net.branches.i.sections.length + net.branches.q.sections.length} sections`;
-    figs.kind.set(size);
+    const f = (net.design as { coefficientFormat?: string }).coefficientFormat;
+    figs.kind.set(f && f !== 'float64' ? `${size}, ${f.toUpperCase()}` : size);
     figs.cost.set(String(net.cost.multipliesPerSample));
     figs.latency.set(
-      `${fmt(net.cost.latencySamples)} smp · ${fmt((1000 * net.cost.latencySamples) / fs, 2)} ms`,
+      `${fmt(net.cost.latencySamples)} samples · ${fmt((1000 * net.cost.latencySamples) / fs, 2)} ms`,
     );
-    // A little beyond the band: an eighth of it on each side (log scale), inside 0…Nyquist.
-    const [lo, hi] = net.band;
-    const margin = (hi / lo) ** (1 / 16);
-    const range: [number, number] = [Math.max(1, lo / margin), Math.min(0.499 * fs, hi * margin)];
-    view = { range, band: [lo, hi], phaseSpan: Math.max(1e-6, 1.6 * a.maxPhaseErrorDeg) };
-    const w = analyzeNetwork(net, { points: 480, fromHz: range[0], toHz: range[1], scale: 'log' });
+    view = {
+      range: r.range,
+      band: [net.band[0], net.band[1]],
+      phaseSpan: Math.max(1e-6, 1.6 * a.maxPhaseErrorDeg),
+    };
+    const w = r.wide;
     phasePlot.setData(w.frequencyHz, [w.phaseErrorDeg]);
     supPlot.setData(w.frequencyHz, [
       Array.from(w.suppressionDb, (s) => Math.max(0, Math.min(s, 160))),
       Array.from(w.frequencyHz, () => t),
     ]);
-    plots.dataset['xRange'] = JSON.stringify(range);
+    plots.dataset['xRange'] = JSON.stringify(r.range);
   }
 
-  function run(): void {
+  /** Designs or evaluates in the worker, with a busy sign; a failure clears the stale figures. */
+  async function evaluate(req: Omit<DesignRequest, 'id'>, line = status, prefix = ''): Promise<boolean> {
+    line.busy('spec' in req ? 'Designing… (the page stays usable)' : 'Evaluating the network…');
+    runBtn.disabled = true;
+    figBox.setAttribute('aria-busy', 'true');
+    el.classList.add('busy');
     try {
-      panel.network = designNetwork(spec());
-      status.className = 'status';
-      status.textContent = `Designed for ${panel.network.band[0]}–${panel.network.band[1]} Hz at ${panel.network.sampleRate} Hz.`;
-      show(panel.network);
+      const r = await request(req);
+      if (!r.ok) {
+        clearFigures(`No design: ${r.message}`);
+        setAvailable(false);
+        line.fail(`${prefix}${r.message} The figures and downloads are cleared until a design succeeds.`);
+        return false;
+      }
+      panel.network = r.network;
+      setAvailable(true);
+      show(r);
+      const n = r.network;
+      line.say(
+        'spec' in req
+          ? `Designed for ${n.band[0]}–${n.band[1]} Hz at ${n.sampleRate} Hz (${fmt(r.ms / 1000, 2)} s).`
+          : `${prefix}${n.kind === 'fir' ? 'Hilbert FIR' : 'all-pass pair'} for ${n.band[0]}–${n.band[1]} Hz at ${n.sampleRate} Hz.`,
+      );
+      if (line !== status) status.clear();
+      el.dataset['design'] = JSON.stringify({ ms: r.ms, kind: n.kind, worstDb: r.band.worst.suppressionDb });
+      return true;
+    } finally {
+      runBtn.disabled = false;
+      figBox.removeAttribute('aria-busy');
+      el.classList.remove('busy');
+    }
+  }
+
+  async function run(): Promise<void> {
+    loadStatus.clear();
+    await evaluate({ spec: spec() });
+  }
+
+  async function load(): Promise<void> {
+    const file = await pickTextFile('.json,application/json');
+    if (!file) return;
+    try {
+      const net = parseNetworkJson(file.text);
+      status.clear();
+      await panel.showNetwork(net, `Loaded ${file.name}`);
     } catch (e) {
-      status.className = 'status error';
-      status.textContent = e instanceof Error ? e.message : String(e);
+      loadStatus.fail(`${file.name}: ${e instanceof Error ? e.message : String(e)}`);
     }
   }
 
@@ -189,6 +368,6 @@ export function designPanel(onUse: (net: Network) => void): DesignPanel {
     else download(`${base}-response.csv`, analysisToCsv(analyzeNetwork(net, { points: 512 })), 'text/csv');
   }
 
-  queueMicrotask(() => show(panel.network));
+  queueMicrotask(() => void evaluate({ network: panel.network }, status, 'Start design: '));
   return panel;
 }

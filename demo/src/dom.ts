@@ -21,9 +21,52 @@ export function h<K extends keyof HTMLElementTagNameMap>(
   return el;
 }
 
-/** A labelled control. */
+let nextId = 0;
+
+/** A fresh element id for the page (labels and descriptions refer to controls by id). */
+export function uid(prefix: string): string {
+  nextId += 1;
+  return `${prefix}-${nextId}`;
+}
+
+/**
+ * A labelled control: a `<label for>` tied to the control (its accessible name), and an optional
+ * hint tied to it as its description.
+ */
 export function field(label: string, control: HTMLElement, hint?: string): HTMLElement {
-  return h('div', {}, h('label', {}, label, hint ? h('small', {}, ` ${hint}`) : null), control);
+  if (!control.id) control.id = uid('f');
+  const hintEl = hint ? h('small', { class: 'hint-inline', id: `${control.id}-hint` }, ` ${hint}`) : null;
+  if (hintEl) control.setAttribute('aria-describedby', hintEl.id);
+  return h('div', { class: 'field' }, h('label', { for: control.id }, label, hintEl), control);
+}
+
+/** A status line beside the button that started the work: announced politely, errors marked by a word. */
+export interface StatusLine {
+  el: HTMLElement;
+  /** Plain progress or result text. */
+  say(text: string): void;
+  /** An error: "Error:" before the text, so it does not rest on colour. */
+  fail(text: string): void;
+  /** Work in progress: a busy sign and the text. */
+  busy(text: string): void;
+  clear(): void;
+}
+
+/** Creates a status line (`role=status`, `aria-live=polite`). */
+export function statusLine(id: string): StatusLine {
+  const el = h('p', { class: 'status', id, role: 'status', 'aria-live': 'polite' });
+  const put = (cls: string, text: string, prefix?: string) => {
+    el.className = `status ${cls}`.trim();
+    el.replaceChildren(...(prefix ? [h('strong', {}, prefix), ' '] : []), text);
+    el.setAttribute('aria-busy', String(cls === 'busy'));
+  };
+  return {
+    el,
+    say: (text) => put('', text),
+    fail: (text) => put('error', text, '✗ Error:'),
+    busy: (text) => put('busy', text),
+    clear: () => put('', ''),
+  };
 }
 
 /** A number input. */
@@ -39,19 +82,61 @@ export function select(options: [string, string][], value: string, attrs: Record
 }
 
 /** A figure tile: caption and value. */
-export function figure(caption: string): {
+export interface Figure {
   el: HTMLElement;
-  set(text: string, tone?: 'good' | 'bad' | ''): void;
-} {
+  /**
+   * Shows `text`; a good or bad state is also written as a sign and a word (`note`, or "meets" /
+   * "short"), never shown by colour alone. Without a tone, `note` is a plain line under the value
+   * (e.g. the tone level a carrier figure is read against).
+   */
+  set(text: string, tone?: 'good' | 'bad' | '', note?: string): void;
+  /** Back to "—" (no figure: e.g. after a failed run, so no stale figure stays up). */
+  clear(): void;
+}
+
+/** Creates a figure tile. `caption` names the figure; `unitNote` (small) says what it is read against. */
+export function figure(caption: string, unitNote?: string): Figure {
   const v = h('div', { class: 'v' }, '—');
-  const el = h('div', { class: 'figure' }, h('div', { class: 'k' }, caption), v);
+  const mark = h('div', { class: 'mark' });
+  const el = h(
+    'div',
+    { class: 'figure' },
+    h('div', { class: 'k' }, caption, unitNote ? h('span', { class: 'unit-note' }, ` · ${unitNote}`) : null),
+    v,
+    mark,
+  );
   return {
     el,
-    set(text, tone = '') {
+    set(text, tone = '', note) {
       v.textContent = text;
-      el.className = `figure ${tone}`;
+      el.className = `figure ${tone}`.trim();
+      mark.textContent =
+        tone === 'good' ? `✓ ${note ?? 'meets'}` : tone === 'bad' ? `✗ ${note ?? 'short'}` : (note ?? '');
+    },
+    clear() {
+      v.textContent = '—';
+      el.className = 'figure';
+      mark.textContent = '';
     },
   };
+}
+
+/** Reads a file the user picked as text. */
+export function pickTextFile(accept: string): Promise<{ name: string; text: string } | null> {
+  return new Promise((resolve) => {
+    const input = h('input', { type: 'file', accept, hidden: true });
+    input.addEventListener('change', async () => {
+      const f = input.files?.[0];
+      input.remove();
+      resolve(f ? { name: f.name, text: await f.text() } : null);
+    });
+    input.addEventListener('cancel', () => {
+      input.remove();
+      resolve(null);
+    });
+    document.body.append(input);
+    input.click();
+  });
 }
 
 /** Offers `text` as a file download. */

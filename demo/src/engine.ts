@@ -4,12 +4,18 @@
  * generator's output for the monitor and the in-page virtual exciter. The processor module is the
  * library's own worklet (src/webaudio/processor.ts), bundled by Vite as a separate module.
  */
-import type { Correction } from '../../src/core/trims.js';
-import type { Network } from '../../src/design/network.js';
-import { type CaptureNode, createCaptureNode } from '../../src/webaudio/capture-node.js';
-import type { SourceSpec } from '../../src/webaudio/messages.js';
-import { createQuadratureNode, type QuadratureNode } from '../../src/webaudio/node.js';
-import workletUrl from '../../src/webaudio/processor.ts?worker&url';
+import {
+  type CaptureNode,
+  type Correction,
+  createCaptureNode,
+  createQuadratureNode,
+  type Network,
+  type QuadratureNode,
+  type SourceSpec,
+  type Trims,
+  ZERO_TRIMS,
+} from 'orthotone';
+import workletUrl from 'orthotone/worklet?url';
 
 export { workletUrl };
 
@@ -24,6 +30,9 @@ export interface Running {
 
 type Listener = (r: Running | null) => void;
 
+/** The test tone the page starts with, Hz: the command line's default (`--tone`, 1000 Hz). */
+export const DEFAULT_TONE_HZ = 1000;
+
 /** A correction filter pair and where it came from. */
 export interface CorrectionState {
   correction: Correction;
@@ -36,10 +45,12 @@ export interface CorrectionState {
 /** Holds the running audio graph and the settings it was made with. */
 export class Engine {
   running: Running | null = null;
-  source: SourceSpec = { kind: 'tone', frequencyHz: 1800 };
+  source: SourceSpec = { kind: 'tone', frequencyHz: DEFAULT_TONE_HZ };
   levelDb = -10;
   sideband: 'upper' | 'lower' = 'upper';
   outputOn = true;
+  /** The trims the generator runs with (kept while audio is stopped, applied when it starts). */
+  trims: Trims = { ...ZERO_TRIMS };
   /** The correction filter held by the page (applied to the node when `on`). */
   correction: CorrectionState | null = null;
   private mic: MediaStreamAudioSourceNode | null = null;
@@ -83,6 +94,7 @@ export class Engine {
       moduleUrl: workletUrl,
       source: this.source.kind === 'input' ? { kind: 'silence' } : this.source,
       levelDb: this.levelDb,
+      trims: this.trims,
       sideband: this.sideband,
       correction: this.correction?.on ? this.correction.correction : null,
     });
@@ -148,6 +160,12 @@ export class Engine {
       }
     }
     await r.node.setSource(s);
+  }
+
+  /** Sets trims (ramped on a running node) and keeps them for the next start. */
+  setTrims(t: Partial<Trims>): void {
+    this.trims = { ...this.trims, ...t };
+    this.running?.node.setTrims(t);
   }
 
   setLevel(db: number): void {

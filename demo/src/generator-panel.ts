@@ -3,15 +3,19 @@
  * I + jQ (spectrum, I/Q scope, and the readings that fit the source: one tone, two tones, or
  * several tones across the band).
  */
-import type { Trims } from '../../src/core/trims.js';
-import { measureSideband } from '../../src/measure/sideband.js';
-import { computeSpectrum } from '../../src/measure/spectrum.js';
-import { measureTones } from '../../src/measure/tones.js';
-import { measureTwoTone, type TwoToneReading } from '../../src/measure/two-tone.js';
-import type { SourceSpec } from '../../src/webaudio/messages.js';
+import {
+  computeSpectrum,
+  measureSideband,
+  measureTones,
+  measureTwoTone,
+  type SourceSpec,
+  type Trims,
+  type TwoToneReading,
+  ZERO_TRIMS,
+} from 'orthotone';
 import { logTones } from './bench.js';
-import { field, figure, fmt, h, numberInput, select } from './dom.js';
-import type { Engine } from './engine.js';
+import { field, figure, fmt, h, numberInput, select, statusLine } from './dom.js';
+import { DEFAULT_TONE_HZ, type Engine } from './engine.js';
 import { linePlot } from './plot.js';
 import { iqScope } from './scope.js';
 
@@ -26,9 +30,9 @@ interface TrimControl {
 const TRIM_CONTROLS: TrimControl[] = [
   { name: 'gainDb', label: 'Q gain, dB', range: 1, step: 0.001, digits: 3 },
   { name: 'phaseDeg', label: 'Phase, °', range: 5, step: 0.005, digits: 3 },
-  { name: 'skewSamples', label: 'Q delay, samples', range: 2, step: 0.01, digits: 2 },
-  { name: 'dcI', label: 'DC on I, FS', range: 0.02, step: 0.00001, digits: 5 },
-  { name: 'dcQ', label: 'DC on Q, FS', range: 0.02, step: 0.00001, digits: 5 },
+  { name: 'skewSamples', label: 'Skew (Q later), samples', range: 2, step: 0.01, digits: 2 },
+  { name: 'dcI', label: 'DC on I, of full scale', range: 0.02, step: 0.00001, digits: 5 },
+  { name: 'dcQ', label: 'DC on Q, of full scale', range: 0.02, step: 0.00001, digits: 5 },
 ];
 
 /** Frame of the monitor's spectrum plot: 11.7 Hz bins at 48 kHz, two frames averaged per capture. */
@@ -40,6 +44,21 @@ export interface GeneratorPanel {
   el: HTMLElement;
   /** Shows trims set elsewhere (by the calibration) on the sliders. */
   showTrims(t: Trims): void;
+  /** The panel's settings, for a saved session. */
+  state(): GeneratorState;
+  /** Sets the panel's settings and the engine's (a loaded session or profile). */
+  restore(s: Partial<GeneratorState>): Promise<void>;
+}
+
+/** The generator's settings, as saved in a session (trims and correction travel in its profile). */
+export interface GeneratorState {
+  source: string;
+  toneHz: number;
+  secondToneHz: number;
+  levelDb: number;
+  sideband: 'upper' | 'lower';
+  output: boolean;
+  magnify: string;
 }
 
 /** A level in dB, or "≤ level" when the reading is at the floor (an upper bound). */
@@ -63,31 +82,42 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
     'tone',
     { id: 'gen-source' },
   );
-  const f1 = numberInput(1800, { min: 20, step: 10, id: 'gen-f1' });
+  // The command line's default test tone (1000 Hz), so the page and `orthotone start` agree.
+  const f1 = numberInput(DEFAULT_TONE_HZ, { min: 20, step: 10, id: 'gen-f1' });
   const f2 = numberInput(700, { min: 20, step: 10, id: 'gen-f2' });
   const f1Row = field('Tone, Hz', f1);
   const f2Row = field('Second tone, Hz', f2);
-  const level = h('input', { type: 'range', min: -60, max: 0, step: 0.5, value: String(engine.levelDb) });
-  const levelOut = h('output', {}, `${engine.levelDb} dBFS`);
+  const level = h('input', {
+    type: 'range',
+    id: 'gen-level',
+    min: -60,
+    max: 0,
+    step: 0.5,
+    value: String(engine.levelDb),
+    'aria-describedby': 'gen-level-hint',
+  });
+  const levelOut = h('output', { for: 'gen-level', id: 'gen-level-out' }, `${engine.levelDb} dBFS`);
   const sideband = select(
     [
       ['upper', 'Upper sideband'],
       ['lower', 'Lower sideband'],
     ],
     'upper',
+    { id: 'gen-sideband' },
   );
-  const status = h('div', { class: 'status' });
+  const status = statusLine('gen-status');
   const sliders = new Map<keyof Trims, { input: HTMLInputElement; out: HTMLOutputElement }>();
   const trimRows = TRIM_CONTROLS.map((c) => {
-    const input = h('input', { type: 'range', min: -c.range, max: c.range, step: c.step, value: '0' });
-    const out = h('output', {}, (0).toFixed(c.digits));
+    const id = `gen-trim-${c.name}`;
+    const input = h('input', { type: 'range', id, min: -c.range, max: c.range, step: c.step, value: '0' });
+    const out = h('output', { for: id }, (0).toFixed(c.digits));
     input.addEventListener('input', () => {
       const v = Number(input.value);
       out.textContent = v.toFixed(c.digits);
-      engine.running?.node.setTrims({ [c.name]: v });
+      engine.setTrims({ [c.name]: v });
     });
     sliders.set(c.name, { input, out });
-    return h('div', { class: 'trim' }, h('label', {}, c.label), input, out);
+    return h('div', { class: 'trim' }, h('label', { for: id }, c.label), input, out);
   });
 
   // Correction filter (from the multi-tone calibration).
@@ -101,7 +131,7 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
   const corrControls = h(
     'div',
     { hidden: true },
-    h('label', {}, corrOn, ' Run it (untick to compare without)'),
+    h('label', { class: 'check' }, corrOn, ' Run it (untick to compare without)'),
     corrRemove,
     h(
       'p',
@@ -121,8 +151,8 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
   // Monitor figures: one set per kind of source, only the fitting one shown.
   const figs = {
     wanted: figure('Wanted tone'),
-    sideband: figure('Sideband suppression'),
-    carrier: figure('Carrier suppression'),
+    sideband: figure('Sideband suppression', 'below the tone'),
+    carrier: figure('Carrier suppression', 'below the tone'),
     peak: figure('Output peak'),
   };
   const two = {
@@ -174,8 +204,8 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
     h(
       'p',
       { class: 'lead' },
-      'The network runs in an AudioWorklet. The left channel carries I and the right channel Q: wire the ',
-      'sound card output to the exciter’s I and Q inputs. Trims act on Q and on DC, smoothly, while it plays.',
+      'The left channel carries I and the right channel Q: wire the sound card output to the exciter’s I and Q ',
+      'inputs. Trims act on Q and on DC, smoothly, while it plays.',
     ),
     h(
       'div',
@@ -188,7 +218,8 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
           {},
           h('legend', {}, 'Audio'),
           startBtn,
-          h('label', {}, outputBox, ' Send to the sound card (left I, right Q)'),
+          status.el,
+          h('label', { class: 'check' }, outputBox, ' Send to the sound card (left I, right Q)'),
         ),
         h(
           'fieldset',
@@ -196,7 +227,17 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
           h('legend', {}, 'Source'),
           field('Signal', kind),
           h('div', { class: 'row' }, f1Row, f2Row),
-          field('Level', h('div', { class: 'level' }, level, levelOut), 'peak dBFS (two tones: PEP)'),
+          h(
+            'div',
+            { class: 'field' },
+            h(
+              'label',
+              { for: 'gen-level' },
+              'Level ',
+              h('small', { class: 'hint-inline', id: 'gen-level-hint' }, 'peak dBFS (two tones: PEP)'),
+            ),
+            h('div', { class: 'level' }, level, levelOut),
+          ),
           field('Sideband', sideband),
         ),
         h(
@@ -206,7 +247,6 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
           scope.el,
           field('Show', magnify, 'magnify how far the trace strays from a circle'),
         ),
-        status,
       ),
       h(
         'div',
@@ -219,6 +259,12 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
           h('button', { class: 'secondary', onclick: () => resetTrims() }, 'Zero all trims'),
         ),
         corrBox,
+        h(
+          'p',
+          { class: 'hint', id: 'gen-monitor-note' },
+          'Monitor: read from the generator’s own digital I/Q, before the sound card. These are true figures of ',
+          'the signal the page sends; what your exciter puts out is read on panel 3 or with a receiver.',
+        ),
         oneBox,
         twoBox,
         multiBox,
@@ -227,8 +273,9 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
     ),
   );
   const spec = linePlot(monitor, {
-    title: 'Spectrum of I + jQ (right of 0 Hz: upper sideband; left: lower)',
-    xLabel: 'Hz from carrier',
+    title: 'Spectrum of the generator’s I/Q (right of the carrier: upper sideband; left: lower)',
+    xLabel: 'Hz from the carrier',
+    xUnit: 'Hz',
     yLabel: 'dBFS',
     series: [{ label: 'level', color: '#0f7c7a' }],
     height: 220,
@@ -275,14 +322,8 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
   showSource(engine.source);
   engine.onSource(showSource);
 
-  const report = (e: unknown) => {
-    status.className = 'status error';
-    status.textContent = e instanceof Error ? e.message : String(e);
-  };
-  const ok = (text: string) => {
-    status.className = 'status';
-    status.textContent = text;
-  };
+  const report = (e: unknown) => status.fail(e instanceof Error ? e.message : String(e));
+  const ok = (text: string) => status.say(text);
 
   startBtn.addEventListener('click', async () => {
     try {
@@ -290,10 +331,14 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
         await engine.stop();
       } else {
         engine.source = source();
+        status.busy('Starting audio…');
+        startBtn.disabled = true;
         await engine.start();
       }
     } catch (e) {
       report(e);
+    } finally {
+      startBtn.disabled = false;
     }
   });
   engine.onChange((r) => {
@@ -335,8 +380,8 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
   );
 
   function resetTrims(): void {
-    engine.running?.node.setTrims({ gainDb: 0, phaseDeg: 0, skewSamples: 0, dcI: 0, dcQ: 0 });
-    panel.showTrims({ gainDb: 0, phaseDeg: 0, skewSamples: 0, dcI: 0, dcQ: 0 });
+    engine.setTrims(ZERO_TRIMS);
+    panel.showTrims(ZERO_TRIMS);
   }
 
   function showTwoTone(r: TwoToneReading): void {
@@ -395,13 +440,18 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
       spec.setData(xs, [ys]);
       let peak = 0;
       for (let k = 0; k < i.length; k++) peak = Math.max(peak, Math.abs(i[k]!), Math.abs(q[k]!));
-      figs.peak.set(`${fmt(20 * Math.log10(Math.max(peak, 1e-9)))} dBFS`, peak > 1 ? 'bad' : '');
+      figs.peak.set(
+        `${fmt(20 * Math.log10(Math.max(peak, 1e-9)))} dBFS`,
+        peak > 1 ? 'bad' : '',
+        peak > 1 ? 'clipping: lower the level' : undefined,
+      );
       const sign = engine.sideband === 'upper' ? 1 : -1;
       if (src.kind === 'tone') {
         const m = measureSideband(i, q, fs, { toneHz: src.frequencyHz, sideband: engine.sideband });
-        figs.wanted.set(`${fmt(m.wanted.levelDbfs)} dBFS`);
-        figs.sideband.set(`${fmt(m.sidebandSuppressionDb)} dB`);
-        figs.carrier.set(`${fmt(m.carrierSuppressionDb)} dB`);
+        const toneAt = `tone at ${fmt(m.wanted.levelDbfs)} dBFS`;
+        figs.wanted.set(`${fmt(m.wanted.levelDbfs)} dBFS`, '', `${fmt(src.frequencyHz, 0)} Hz`);
+        figs.sideband.set(`${fmt(m.sidebandSuppressionDb)} dB`, '', toneAt);
+        figs.carrier.set(`${fmt(m.carrierSuppressionDb)} dB`, '', toneAt);
       } else if (src.kind === 'two-tone') {
         const [a, b] = src.frequenciesHz;
         showTwoTone(measureTwoTone({ i, q }, fs, [sign * a, sign * b], { maxOrder: 5 }));
@@ -418,8 +468,8 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
         multiBox.dataset['reading'] = JSON.stringify({ tonesHz: f, suppressionDb: sup });
       } else {
         figs.wanted.set('tone sources only');
-        figs.sideband.set('—');
-        figs.carrier.set('—');
+        figs.sideband.clear();
+        figs.carrier.clear();
       }
     } catch {
       // A monitor frame that cannot be read is skipped.
@@ -430,7 +480,40 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
 
   const panel: GeneratorPanel = {
     el,
+    state: () => ({
+      source: kind.value,
+      toneHz: Number(f1.value),
+      secondToneHz: Number(f2.value),
+      levelDb: Number(level.value),
+      sideband: sideband.value as 'upper' | 'lower',
+      output: outputBox.checked,
+      magnify: magnify.value,
+    }),
+    async restore(st) {
+      if (st.source !== undefined && [...kind.options].some((o) => o.value === st.source))
+        kind.value = st.source;
+      if (st.toneHz !== undefined) f1.value = String(st.toneHz);
+      if (st.secondToneHz !== undefined) f2.value = String(st.secondToneHz);
+      if (st.magnify !== undefined) magnify.value = st.magnify;
+      if (st.levelDb !== undefined) {
+        level.value = String(st.levelDb);
+        levelOut.textContent = `${level.value} dBFS`;
+        engine.setLevel(Number(level.value));
+      }
+      if (st.output !== undefined) {
+        outputBox.checked = st.output;
+        engine.setOutput(st.output);
+      }
+      if (st.sideband !== undefined) {
+        sideband.value = st.sideband;
+        await engine.setSideband(st.sideband);
+      }
+      // A microphone source asks for permission: a loaded session never starts one by itself.
+      if (kind.value === 'input') kind.value = 'tone';
+      await engine.setSource(source());
+    },
     showTrims(t) {
+      engine.trims = { ...t };
       for (const c of TRIM_CONTROLS) {
         const s = sliders.get(c.name)!;
         const v = Math.max(-c.range, Math.min(c.range, t[c.name]));

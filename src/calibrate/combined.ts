@@ -9,7 +9,8 @@ import { OrthotoneError } from '../core/errors.js';
 import type { Trims } from '../core/trims.js';
 import { requireRange } from '../core/validate.js';
 import { type CarrierCalibrationOptions, carrierAxes } from './carrier.js';
-import type { NullSeekerState } from './null-seeker.js';
+import type { NullSeekerState, StopReason } from './null-seeker.js';
+import { functionSource, runSession, type SavedSeeker, type Seeker } from './session.js';
 import { sidebandAxes } from './sideband.js';
 import {
   type CalibrationStep,
@@ -48,38 +49,17 @@ export interface CombinedCalibrationResult {
   readings: number;
 }
 
-/** A step of a combined run, as kept in each calibration's history. */
-type CombinedStep = CalibrationStep & { carrierDb: number };
-
 /**
- * The ask/tell core of {@link calibrateSidebandAndCarrier}, for drivers that cannot hand over a
- * `measure` function (a person typing both levels off one analyzer display, with undo).
+ * The ask/tell core of {@link calibrateSidebandAndCarrier}: the session {@link Seeker} for both nulls
+ * at once (levels `{ sidebandDb, carrierDb }`), for drivers that cannot hand over a `measure`
+ * function (a person typing both levels off one analyzer display, with undo).
  */
-export interface CombinedSeeker {
-  /** The trims to read next (all four), or undefined when both nulls are done or the budget is used. */
-  next(): Trims | undefined;
-  /**
-   * Reports both levels read with the trims `next()` gave; a non-finite level records a failed
-   * reading of that quantity. `error` is kept in the history. Levels in dB (dBc).
-   * @throws {OrthotoneError} INVALID_ARGUMENT when the calibration has stopped (both nulls done, the
-   *   budget used, or `stop()` called).
-   */
-  tell(levels: BothLevels, error?: unknown): CombinedStep;
-  /**
-   * Removes the last reading from both calibrations (a person mistyped it); undoes a stop.
-   * @throws never in normal use (as `NullSeeker.undo`).
-   */
-  undo(): void;
+export interface CombinedSeeker extends Seeker<BothLevels> {
   /**
    * Stops both (e.g. a person quits); the results keep the best trims so far.
    * @throws never
    */
-  stop(reason: 'aborted' | 'budget'): void;
-  /** Readings taken, resumed ones included. */
-  readonly count: number;
-  readonly done: boolean;
-  /** The best trims so far, and the level at each null (dB). */
-  best(): { trims: Trims; sidebandDb: number; carrierDb: number };
+  stop(reason: StopReason): void;
   /**
    * The results so far (each calibration's, and the combined trims). Stops any seeker still running.
    * @throws never
@@ -104,19 +84,29 @@ export function createCombinedSeeker(
     onReading: undefined,
     resume: undefined,
   };
-  const sb = seekerFor({ ...base, ...(options.resume ? { resume: options.resume.sideband } : {}) }, sAxes);
-  const cr = seekerFor(
-    { ...(base as CarrierCalibrationOptions), ...(options.resume ? { resume: options.resume.carrier } : {}) },
-    cAxes,
-  );
+  const make = (resume: boolean) => {
+    const sb = seekerFor(
+      { ...base, ...(resume && options.resume ? { resume: options.resume.sideband } : {}) },
+      sAxes,
+    );
+    const cr = seekerFor(
+      {
+        ...(base as CarrierCalibrationOptions),
+        ...(resume && options.resume ? { resume: options.resume.carrier } : {}),
+      },
+      cAxes,
+    );
+    return { sb, cr };
+  };
+  let { sb, cr } = make(true);
   const start: Trims = { ...sb.start, dcI: cr.start.dcI, dcQ: cr.start.dcQ };
   const budget = sb.seeker.options.maxReadings;
-  const hs: CalibrationStep[] = [];
-  const hc: CalibrationStep[] = [];
+  let hs: CalibrationStep[] = [];
+  let hc: CalibrationStep[] = [];
   // Which seekers each reading was told to (a stopped seeker holds its best and is not told).
-  const told: [boolean, boolean][] = [];
+  let told: [boolean, boolean][] = [];
   let count = Math.max(sb.seeker.count, cr.seeker.count);
-  let stopped: 'aborted' | 'budget' | undefined;
+  let stopped: StopReason | undefined;
   let ps: [number, number] | undefined;
   let pc: [number, number] | undefined;
 
@@ -131,20 +121,19 @@ export function createCombinedSeeker(
       pc = cr.seeker.next() ?? cr.seeker.best().point;
       return trimsAt(ps, pc);
     },
-    tell(levels, error) {
-      if (!ps || !pc) self.next();
-      if (!ps || !pc) {
+    tell(trims, levels, error) {
+      if (done()) {
         throw new OrthotoneError(
           'INVALID_ARGUMENT',
           'the calibration has stopped: read no more, take result()',
         );
       }
-      const trims = trimsAt(ps, pc);
+      const t0 = { ...start, ...trims };
       const s = levels && Number.isFinite(levels.sidebandDb) ? levels.sidebandDb : Number.NaN;
       const c = levels && Number.isFinite(levels.carrierDb) ? levels.carrierDb : Number.NaN;
       const t: [boolean, boolean] = [!sb.seeker.done, !cr.seeker.done];
-      if (t[0]) sb.seeker.tell(ps, s);
-      if (t[1]) cr.seeker.tell(pc, c);
+      if (t[0]) sb.seeker.tell(sAxes.toPoint(t0), s);
+      if (t[1]) cr.seeker.tell(cAxes.toPoint(t0), c);
       told.push(t);
       count++;
       ps = undefined;
@@ -153,14 +142,13 @@ export function createCombinedSeeker(
       const bc = cr.seeker.best();
       const common = {
         index: count,
-        trims,
+        trims: t0,
         role: 'probe' as const,
         bestTrims: trimsAt(bs.point, bc.point),
         ...(error !== undefined ? { error } : {}),
       };
       hs.push({ ...common, levelDb: s, bestLevelDb: bs.levelDb });
       hc.push({ ...common, levelDb: c, bestLevelDb: bc.levelDb });
-      return { ...common, levelDb: s, bestLevelDb: bs.levelDb, carrierDb: c };
     },
     undo() {
       const t = told.pop();
@@ -185,10 +173,60 @@ export function createCombinedSeeker(
     get done() {
       return done();
     },
+    get stopReason() {
+      if (stopped) return stopped;
+      if (!done()) return undefined;
+      if (count >= budget && !(sb.seeker.done && cr.seeker.done)) return 'budget';
+      return sb.seeker.stopReason ?? cr.seeker.stopReason;
+    },
     best() {
       const bs = sb.seeker.best();
       const bc = cr.seeker.best();
-      return { trims: trimsAt(bs.point, bc.point), sidebandDb: bs.levelDb, carrierDb: bc.levelDb };
+      return {
+        trims: trimsAt(bs.point, bc.point),
+        levels: { sidebandDb: bs.levelDb, carrierDb: bc.levelDb },
+      };
+    },
+    save(): SavedSeeker {
+      return {
+        format: 'orthotone-seeker-session',
+        version: 1,
+        kind: 'combined',
+        readings: hs.map((h, k) => ({
+          trims: h.trims,
+          levels: {
+            sidebandDb: Number.isFinite(h.levelDb) ? h.levelDb : null,
+            carrierDb: Number.isFinite(hc[k]!.levelDb) ? hc[k]!.levelDb : null,
+          },
+        })),
+      };
+    },
+    restore(state) {
+      const st = state as SavedSeeker;
+      if (
+        st?.format !== 'orthotone-seeker-session' ||
+        st.kind !== 'combined' ||
+        !Array.isArray(st.readings)
+      ) {
+        throw new OrthotoneError(
+          'INVALID_DOCUMENT',
+          'saved session is not a combined sideband and carrier run: resume it with the calibration that saved it',
+        );
+      }
+      ({ sb, cr } = make(false));
+      hs = [];
+      hc = [];
+      told = [];
+      count = 0;
+      stopped = undefined;
+      for (const r of st.readings) {
+        if (done()) break;
+        const l = r.levels as { sidebandDb: number | null; carrierDb: number | null } | null;
+        self.tell(r.trims, {
+          sidebandDb: l?.sidebandDb ?? Number.NaN,
+          carrierDb: l?.carrierDb ?? Number.NaN,
+        });
+      }
     },
     result(lastError) {
       for (const k of [sb.seeker, cr.seeker]) if (!k.done) k.stop(stopped ?? 'budget');
@@ -206,7 +244,9 @@ export function createCombinedSeeker(
 }
 
 /**
- * Calibrates gain/phase and DC from readings that return both levels at once.
+ * Calibrates gain/phase and DC from readings that return both levels at once: a
+ * {@link createCombinedSeeker} driven by {@link runSession} (which honours the AbortSignal even
+ * while a reading never settles).
  * @param options as {@link calibrateSideband}, with `measure` returning `{ sidebandDb, carrierDb }`.
  * @returns the combined trims and each calibration's result; `readings` counts `measure` calls,
  *   never more than `maxReadings`.
@@ -216,24 +256,21 @@ export async function calibrateSidebandAndCarrier(
   options: CombinedCalibrationOptions,
 ): Promise<CombinedCalibrationResult> {
   const core = createCombinedSeeker(options);
-  let lastError: unknown;
-  const signal = options.signal;
-  for (;;) {
-    if (signal?.aborted) break;
-    const trims = core.next();
-    if (!trims) break;
-    let levels: BothLevels | undefined;
-    let error: unknown;
-    try {
-      levels = await options.measure(trims);
-    } catch (e) {
-      error = e;
-      lastError = e;
-    }
-    if (signal?.aborted) break;
-    const step = core.tell(levels ?? { sidebandDb: Number.NaN, carrierDb: Number.NaN }, error);
-    options.onReading?.(step);
-  }
-  if (signal?.aborted) core.stop('aborted');
-  return core.result(lastError);
+  const session = await runSession(core, functionSource(options.measure), {
+    signal: options.signal,
+    maxReadings: options.maxReadings,
+    onReading: (h) => {
+      options.onReading?.({
+        index: h.index,
+        trims: h.trims,
+        role: 'probe',
+        levelDb: h.levels?.sidebandDb ?? Number.NaN,
+        carrierDb: h.levels?.carrierDb ?? Number.NaN,
+        bestTrims: h.best.trims,
+        bestLevelDb: h.best.levels.sidebandDb,
+        ...(h.error !== undefined ? { error: h.error } : {}),
+      });
+    },
+  });
+  return core.result(session.lastError);
 }

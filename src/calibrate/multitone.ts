@@ -26,8 +26,15 @@ import type { Correction, Trims } from '../core/trims.js';
 import { ZERO_TRIMS } from '../core/trims.js';
 import { degToRad, radToDeg } from '../core/units.js';
 import { requireFinite, requireInteger, requirePositive, requireSampleRate } from '../core/validate.js';
-import { createNullSeeker, type StopReason } from './null-seeker.js';
-import { fitNullSurface, linearPowerFit, type NullSurface, type SurfacePoint } from './quadratic-fit.js';
+import { createNullSeeker, type NullSeeker, type StopReason } from './null-seeker.js';
+import {
+  fitNullSurface,
+  linearPowerFit,
+  type NullSurface,
+  type SurfacePoint,
+  surfaceDb,
+} from './quadratic-fit.js';
+import { functionSource, runSession, type SavedSeeker, type Seeker } from './session.js';
 import { SIDEBAND_CURVATURE, sidebandPoint, sidebandTrims } from './sideband.js';
 import { weightedLeastSquares } from './small-linear.js';
 
@@ -329,123 +336,31 @@ export async function calibrateMultitone(options: MultitoneOptions): Promise<Mul
   const band: [number, number] = o.band ?? [Math.min(...o.tonesHz), Math.max(...o.tonesHz)];
   for (const [i, b] of band.entries()) requireFinite(`band[${i}]`, b);
   const start: Trims = { ...ZERO_TRIMS, ...(o.start ?? {}) };
-  const K = o.tonesHz.length;
-  const pts: SurfacePoint[][] = o.tonesHz.map(() => []);
-  const history: MultitoneResult['history'] = [];
-  let failures = 0;
-  let stopReason: StopReason = 'budget';
-
-  const read = async (p: [number, number]): Promise<number[] | undefined> => {
-    const trims = sidebandTrims(p, start);
-    let levels: number[] | undefined;
-    try {
-      const r = await o.measure(trims);
-      if (Array.isArray(r) && r.length === K && r.every((x) => Number.isFinite(x))) levels = [...r];
-    } catch {
-      levels = undefined;
-    }
-    history.push({ index: history.length + 1, trims, levelsDb: levels ?? o.tonesHz.map(() => Number.NaN) });
-    if (levels) {
-      failures = 0;
-      for (const [k, db] of levels.entries()) pts[k]!.push({ x: p[0], y: p[1], db });
-      o.onReading?.(history[history.length - 1]!);
-    } else failures++;
-    return levels;
-  };
-
-  // Stage 1: the mean image power of the tones.
-  const stage1 = Math.max(4, Math.round(0.6 * maxReadings));
-  const seeker = createNullSeeker({
-    model: 'known-curvature',
-    curvature: SIDEBAND_CURVATURE,
-    start: sidebandPoint(start),
-    noiseDb: noiseDb / Math.sqrt(K),
-    maxReadings: stage1,
-    bounds: [
-      [-0.45, 0.85],
-      [-0.5, 0.5],
-    ],
-    maxStep: [0.3, 0.3],
-    axisNames: ['gain', 'phase'],
-  });
-  for (;;) {
-    if (o.signal?.aborted) {
-      stopReason = 'aborted';
-      break;
-    }
-    const p = seeker.next();
-    if (!p) break;
-    const levels = await read(p);
-    const mean = levels ? 10 * Math.log10(levels.reduce((s, db) => s + 10 ** (db / 10), 0) / K) : Number.NaN;
-    seeker.tell(p, mean);
-  }
-  if (seeker.stopReason === 'measurement-failed') stopReason = 'measurement-failed';
-
-  // Stage 2: per-tone fits, refined by probes around the least certain tone.
-  const fits: (NullSurface & { cov: [number, number, number] })[] = [];
-  const fitTone = (k: number): void => {
-    const s = pts[k]!;
-    const floorGuess = 10 ** ((Math.min(...s.map((q) => q.db)) - 10) / 10);
-    const e = seeker.estimate();
-    const starts: NullSurface[] = [];
-    const base = { logC: Math.log(SIDEBAND_CURVATURE), logN: Math.log(floorGuess), s: 0, k: 0 };
-    if (fits[k]) starts.push(fits[k]!);
-    if (e) starts.push({ ...base, cx: e.centre[0], cy: e.centre[1] });
-    const lin = linearPowerFit(s, 'known-curvature', Math.log(SIDEBAND_CURVATURE), floorGuess);
-    if (lin) starts.push({ ...lin, s: 0, k: 0 });
-    if (starts.length === 0) starts.push({ ...base, cx: s[0]!.x, cy: s[0]!.y });
-    const f = fitNullSurface(s, {
-      noiseDb,
-      robust: true,
-      starts,
-      priors: {
-        cx: { mean: starts[0]!.cx, sd: 1 },
-        cy: { mean: starts[0]!.cy, sd: 1 },
-        logC: { mean: Math.log(SIDEBAND_CURVATURE), sd: 0.15 },
-        logN: { mean: Math.log(floorGuess), sd: 3 },
-        s: { mean: 0, sd: 0.05 },
-        k: { mean: 0, sd: 0.05 },
+  const refiner = createMultitoneSeeker({ tonesCount: o.tonesHz.length, start, noiseDb, maxReadings });
+  const session = await runSession(
+    refiner,
+    functionSource((t) => o.measure(t)),
+    {
+      signal: o.signal,
+      maxReadings,
+      onReading: (h) => {
+        if (h.levels) o.onReading?.({ index: h.index, trims: h.trims, levelsDb: [...h.levels] });
       },
-    });
-    fits[k] = { ...f.surface, cov: f.centreCov };
-  };
-  const ok = pts.every((s) => s.length >= 3);
-  if (ok) for (let k = 0; k < K; k++) fitTone(k);
-  const jumped = o.tonesHz.map(() => false);
-  let probeSign = 1;
-  while (ok && stopReason === 'budget' && history.length < maxReadings && failures < 3) {
-    if (o.signal?.aborted) {
-      stopReason = 'aborted';
-      break;
-    }
-    let worst = 0;
-    let worstVar = -1;
-    fits.forEach((f, k) => {
-      const v = f.cov[0] + f.cov[2];
-      if (v > worstVar) {
-        worstVar = v;
-        worst = k;
-      }
-    });
-    const f = fits[worst]!;
-    const rf = Math.sqrt(Math.exp(f.logN) / Math.exp(f.logC));
-    let p: [number, number];
-    if (!jumped[worst]) {
-      p = [f.cx, f.cy];
-      jumped[worst] = true;
-    } else {
-      const [a, b, c] = f.cov;
-      const angle = 0.5 * Math.atan2(2 * b, a - c);
-      const r = Math.max(rf, 2 * Math.sqrt(Math.max(a + c, 0)));
-      p = [f.cx + probeSign * r * Math.cos(angle), f.cy + probeSign * r * Math.sin(angle)];
-      probeSign = -probeSign;
-      jumped[worst] = false;
-    }
-    await read(p);
-    for (let k = 0; k < K; k++) fitTone(k);
-  }
-  if (failures >= 3) stopReason = 'measurement-failed';
-  if (!ok) {
+    },
+  );
+  const history: MultitoneResult['history'] = session.history.map((h) => ({
+    index: h.index,
+    trims: h.trims,
+    levelsDb: h.levels ? [...h.levels] : o.tonesHz.map(() => Number.NaN),
+  }));
+  const stopReason: StopReason =
+    session.stopReason === 'aborted' || session.stopReason === 'measurement-failed'
+      ? session.stopReason
+      : 'budget';
+  const K = o.tonesHz.length;
+  const fits = refiner.fits();
+  const pts = refiner.points();
+  if (!fits) {
     throw new OrthotoneError(
       'MEASUREMENT_FAILED',
       `multi-tone calibration needs at least 3 good readings; got ${Math.min(...pts.map((s) => s.length))}`,
@@ -563,4 +478,246 @@ async function verify(
     predictedWorstAtTonesDb,
     ...(warning ? { warning } : {}),
   };
+}
+
+/** Options of {@link createMultitoneSeeker}. */
+export interface MultitoneSeekerOptions {
+  /** Number of tones each reading returns. */
+  tonesCount: number;
+  /** Trims to begin from; gain and phase are searched. */
+  start: Trims;
+  /** Standard deviation of one reading, dB. */
+  noiseDb: number;
+  /** Budget of readings. */
+  maxReadings: number;
+}
+
+/** A fitted per-tone null with the covariance of its centre. */
+export type ToneFit = NullSurface & { cov: [number, number, number] };
+
+/** The per-tone refiner: the session seeker of {@link calibrateMultitone}. */
+export interface MultitoneSeeker extends Seeker<readonly number[]> {
+  /**
+   * The per-tone fits, or undefined while some tone has fewer than 3 good readings.
+   * @throws never
+   */
+  fits(): ToneFit[] | undefined;
+  /**
+   * The good readings of each tone, natural units.
+   * @throws never
+   */
+  points(): SurfacePoint[][];
+}
+
+/**
+ * The per-tone refiner (ask/tell): a null seeker on the mean image power of the tones spends about
+ * 60% of the budget, then per-tone fits are refined by jumps and ring probes around the tone whose
+ * null is least certain (see the file header).
+ * @throws never: options are checked by {@link calibrateMultitone}.
+ */
+export function createMultitoneSeeker(o: MultitoneSeekerOptions): MultitoneSeeker {
+  const K = o.tonesCount;
+  const stage1Budget = Math.max(4, Math.round(0.6 * o.maxReadings));
+  let stage1: NullSeeker;
+  let pts: SurfacePoint[][];
+  let fits: ToneFit[];
+  let jumped: boolean[];
+  let probeSign: number;
+  let failures: number;
+  let stopped: StopReason | undefined;
+  let log: { trims: Trims; levels: readonly number[] | undefined }[];
+  let pending: [number, number] | undefined;
+  let pendingPlan: (() => void) | undefined;
+
+  const reset = (): void => {
+    stage1 = createNullSeeker({
+      model: 'known-curvature',
+      curvature: SIDEBAND_CURVATURE,
+      start: sidebandPoint(o.start),
+      noiseDb: o.noiseDb / Math.sqrt(K),
+      maxReadings: stage1Budget,
+      bounds: [
+        [-0.45, 0.85],
+        [-0.5, 0.5],
+      ],
+      maxStep: [0.3, 0.3],
+      axisNames: ['gain', 'phase'],
+    });
+    pts = Array.from({ length: K }, () => []);
+    fits = [];
+    jumped = new Array<boolean>(K).fill(false);
+    probeSign = 1;
+    failures = 0;
+    stopped = undefined;
+    log = [];
+    pending = undefined;
+    pendingPlan = undefined;
+  };
+  reset();
+
+  const fitTone = (k: number): void => {
+    const s = pts[k]!;
+    const floorGuess = 10 ** ((Math.min(...s.map((q) => q.db)) - 10) / 10);
+    const e = stage1.estimate();
+    const starts: NullSurface[] = [];
+    const base = { logC: Math.log(SIDEBAND_CURVATURE), logN: Math.log(floorGuess), s: 0, k: 0 };
+    if (fits[k]) starts.push(fits[k]!);
+    if (e) starts.push({ ...base, cx: e.centre[0], cy: e.centre[1] });
+    const lin = linearPowerFit(s, 'known-curvature', Math.log(SIDEBAND_CURVATURE), floorGuess);
+    if (lin) starts.push({ ...lin, s: 0, k: 0 });
+    if (starts.length === 0) starts.push({ ...base, cx: s[0]!.x, cy: s[0]!.y });
+    const f = fitNullSurface(s, {
+      noiseDb: o.noiseDb,
+      robust: true,
+      starts,
+      priors: {
+        cx: { mean: starts[0]!.cx, sd: 1 },
+        cy: { mean: starts[0]!.cy, sd: 1 },
+        logC: { mean: Math.log(SIDEBAND_CURVATURE), sd: 0.15 },
+        logN: { mean: Math.log(floorGuess), sd: 3 },
+        s: { mean: 0, sd: 0.05 },
+        k: { mean: 0, sd: 0.05 },
+      },
+    });
+    fits[k] = { ...f.surface, cov: f.centreCov };
+  };
+  const enough = (): boolean => pts.every((s) => s.length >= 3);
+  const inStage2 = (): boolean => stage1.done && stage1.stopReason !== 'measurement-failed' && enough();
+  const done = (): boolean =>
+    stopped !== undefined || log.length >= o.maxReadings || failures >= 3 || (stage1.done && !inStage2());
+
+  const planStage2 = (): void => {
+    let worst = 0;
+    let worstVar = -1;
+    fits.forEach((f, k) => {
+      const v = f.cov[0] + f.cov[2];
+      if (v > worstVar) {
+        worstVar = v;
+        worst = k;
+      }
+    });
+    const f = fits[worst]!;
+    const rf = Math.sqrt(Math.exp(f.logN) / Math.exp(f.logC));
+    if (!jumped[worst]) {
+      pending = [f.cx, f.cy];
+      pendingPlan = () => {
+        jumped[worst] = true;
+      };
+    } else {
+      const [a, b, c] = f.cov;
+      const angle = 0.5 * Math.atan2(2 * b, a - c);
+      const r = Math.max(rf, 2 * Math.sqrt(Math.max(a + c, 0)));
+      pending = [f.cx + probeSign * r * Math.cos(angle), f.cy + probeSign * r * Math.sin(angle)];
+      pendingPlan = () => {
+        probeSign = -probeSign;
+        jumped[worst] = false;
+      };
+    }
+  };
+
+  const self: MultitoneSeeker = {
+    next() {
+      if (done()) return undefined;
+      if (!pending) {
+        if (!stage1.done) {
+          const p = stage1.next();
+          if (p) pending = p;
+        }
+        if (!pending && inStage2()) {
+          if (fits.length === 0) for (let k = 0; k < K; k++) fitTone(k);
+          planStage2();
+        }
+      }
+      return pending ? sidebandTrims(pending, o.start) : undefined;
+    },
+    tell(trims, levels) {
+      if (done()) {
+        throw new OrthotoneError('INVALID_ARGUMENT', 'the multi-tone search has stopped: read no more');
+      }
+      if (!pending) self.next();
+      const p = sidebandPoint({ ...o.start, ...trims });
+      const ok = levels !== undefined && levels.length === K && levels.every((x) => Number.isFinite(x));
+      log.push({ trims: { ...o.start, ...trims }, levels: ok ? [...levels] : undefined });
+      if (ok) {
+        failures = 0;
+        for (const [k, db] of levels.entries()) pts[k]!.push({ x: p[0], y: p[1], db });
+      } else failures++;
+      if (!stage1.done) {
+        const mean = ok
+          ? 10 * Math.log10(levels.reduce((acc, db) => acc + 10 ** (db / 10), 0) / K)
+          : Number.NaN;
+        stage1.tell(p, mean);
+      } else {
+        pendingPlan?.();
+        if (ok) for (let k = 0; k < K; k++) fitTone(k);
+      }
+      pending = undefined;
+      pendingPlan = undefined;
+    },
+    undo() {
+      const keep = log.slice(0, -1);
+      reset();
+      for (const r of keep) self.tell(r.trims, r.levels);
+    },
+    best() {
+      const f = enough() && fits.length === K ? fits : undefined;
+      const single: [number, number] = f
+        ? [f.reduce((acc, x) => acc + x.cx, 0) / K, f.reduce((acc, x) => acc + x.cy, 0) / K]
+        : stage1.best().point;
+      return {
+        trims: sidebandTrims(single, o.start),
+        levels: f
+          ? f.map((x) => surfaceDb(x, single[0], single[1]))
+          : new Array<number>(K).fill(stage1.best().levelDb),
+      };
+    },
+    save(): SavedSeeker {
+      return {
+        format: 'orthotone-seeker-session',
+        version: 1,
+        kind: 'multitone',
+        readings: log.map((r) => ({ trims: r.trims, levels: r.levels ?? null })),
+      };
+    },
+    restore(state) {
+      const st = state as SavedSeeker;
+      if (
+        st?.format !== 'orthotone-seeker-session' ||
+        st.kind !== 'multitone' ||
+        !Array.isArray(st.readings)
+      ) {
+        throw new OrthotoneError(
+          'INVALID_DOCUMENT',
+          'saved session is not a multi-tone run: resume it with the calibration that saved it',
+        );
+      }
+      reset();
+      for (const r of st.readings) {
+        if (done()) break;
+        self.tell(r.trims, (r.levels as number[] | null) ?? undefined);
+      }
+    },
+    stop(reason) {
+      stopped ??= reason;
+      pending = undefined;
+    },
+    get done() {
+      return done();
+    },
+    get stopReason() {
+      if (stopped) return stopped;
+      if (failures >= 3 || stage1.stopReason === 'measurement-failed') return 'measurement-failed';
+      return done() ? 'budget' : undefined;
+    },
+    get count() {
+      return log.length;
+    },
+    fits() {
+      if (!enough()) return undefined;
+      if (fits.length < K) for (let k = 0; k < K; k++) fitTone(k);
+      return fits;
+    },
+    points: () => pts,
+  };
+  return self;
 }

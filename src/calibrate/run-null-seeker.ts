@@ -1,13 +1,15 @@
 /**
- * The async driver of a {@link NullSeeker}: asks, measures, tells, until the seeker stops, the
+ * The async driver of a bare {@link NullSeeker} (natural coordinates), as a thin composition of
+ * the session driver (session.ts `runSession`): asks, measures, tells, until the seeker stops, the
  * budget is used or an AbortSignal fires. A reading that throws or returns a non-finite value is
  * recorded as failed (it counts against the budget) and the setting is tried again; after three
  * failures in a row the run stops with `measurement-failed`. Nothing is ever thrown away: the
  * best setting so far and the saved state are always available from the seeker.
  */
-import { abortable } from '../core/abort.js';
-import { isOrthotoneError } from '../core/errors.js';
+import { type Trims, ZERO_TRIMS } from '../core/trims.js';
 import type { NullSeeker, SeekerBest, SeekerEstimate } from './null-seeker.js';
+import { functionSource, runSession } from './session.js';
+import { createTrimSeeker, type TrimAxes } from './trim-calibration.js';
 
 /** What the driver reports after each reading. */
 export interface SeekerProgress {
@@ -45,42 +47,32 @@ export async function runNullSeeker(
   measure: (point: [number, number]) => number | Promise<number>,
   options: RunSeekerOptions = {},
 ): Promise<{ lastError?: unknown }> {
-  const { signal, onReading } = options;
-  let lastError: unknown;
-  for (;;) {
-    if (signal?.aborted) {
-      seeker.stop('aborted');
-      break;
-    }
-    const p = seeker.next();
-    if (!p) break;
-    let db: number;
-    let error: unknown;
-    try {
-      db = await abortable(
-        Promise.resolve().then(() => measure([p[0], p[1]])),
-        signal,
-        (s) => s.reason ?? new Error('aborted'),
-      );
-    } catch (e) {
-      if (signal?.aborted || isOrthotoneError(e, 'ABORTED')) {
-        seeker.stop('aborted');
-        break;
-      }
-      error = e;
-      lastError = e;
-      db = Number.NaN;
-    }
-    if (typeof db !== 'number' || !Number.isFinite(db)) db = Number.NaN;
-    seeker.tell(p, db);
-    onReading?.({
-      index: seeker.count,
-      point: p,
-      db,
-      ...(error !== undefined ? { error } : {}),
-      best: seeker.best(),
-      estimate: seeker.estimate(),
-    });
-  }
-  return lastError !== undefined ? { lastError } : {};
+  // The plain coordinates ride in two trim fields through the session driver.
+  const axes: TrimAxes = {
+    quantity: 'sideband',
+    names: [...seeker.options.axisNames] as [string, string],
+    toPoint: (t: Trims) => [t.gainDb, t.phaseDeg],
+    toTrims: (p: readonly [number, number], base: Trims) => ({ ...base, gainDb: p[0], phaseDeg: p[1] }),
+    seeker: {},
+  };
+  const ts = createTrimSeeker(seeker, axes, { ...ZERO_TRIMS });
+  const { onReading } = options;
+  const session = await runSession(
+    ts,
+    functionSource((t: Trims) => measure([t.gainDb, t.phaseDeg])),
+    {
+      signal: options.signal,
+      onReading: (h) => {
+        onReading?.({
+          index: seeker.count,
+          point: [h.trims.gainDb, h.trims.phaseDeg],
+          db: h.levels ?? Number.NaN,
+          ...(h.error !== undefined ? { error: h.error } : {}),
+          best: seeker.best(),
+          estimate: seeker.estimate(),
+        });
+      },
+    },
+  );
+  return session.lastError !== undefined ? { lastError: session.lastError } : {};
 }

@@ -16,7 +16,7 @@ import {
   type SeekerModel,
   type StopReason,
 } from './null-seeker.js';
-import { runNullSeeker } from './run-null-seeker.js';
+import { functionSource, runSession, type SavedSeeker, type Seeker, type SessionStep } from './session.js';
 
 /** One step of a calibration, as reported to `onReading` and kept in `history`. */
 export interface CalibrationStep {
@@ -283,7 +283,98 @@ export function resultOf(
 }
 
 /**
- * Runs a two-trim calibration end to end (the fitting method of DESIGN.md §6).
+ * The one-null seeker in trims: a {@link NullSeeker} (natural coordinates) seen through a calibration's
+ * axes, implementing the session {@link Seeker} interface. Trims the seeker does not move are taken
+ * from `start`; a reading is told at the trims that were in force (mapped back to coordinates).
+ * @param seeker the ask/tell core in natural coordinates.
+ * @param axes the mapping between trims and coordinates.
+ * @param start the trims the run began from.
+ * @throws never
+ */
+export function createTrimSeeker(
+  seeker: NullSeeker,
+  axes: TrimAxes,
+  start: Trims,
+): Seeker<number> & { readonly core: NullSeeker; readonly axes: TrimAxes; readonly start: Trims } {
+  let inner = seeker;
+  const self = {
+    get core() {
+      return inner;
+    },
+    axes,
+    start,
+    next() {
+      const p = inner.next();
+      return p ? axes.toTrims(p, start) : undefined;
+    },
+    tell(trims: Trims, db: number | undefined) {
+      inner.tell(axes.toPoint({ ...start, ...trims }), db === undefined ? Number.NaN : db);
+    },
+    undo() {
+      inner.undo();
+    },
+    best() {
+      const b = inner.best();
+      return { trims: axes.toTrims(b.point, start), levels: b.levelDb };
+    },
+    save(): SavedSeeker {
+      const st = inner.save();
+      return {
+        format: 'orthotone-seeker-session',
+        version: 1,
+        kind: 'null',
+        quantity: axes.quantity,
+        start,
+        readings: st.readings.map((r) => ({ trims: axes.toTrims(r.point, start), levels: r.db })),
+        seeker: st,
+      };
+    },
+    restore(state: unknown) {
+      const s = state as SavedSeeker;
+      if (s?.format !== 'orthotone-seeker-session' || s.kind !== 'null' || s.quantity !== axes.quantity) {
+        throw new OrthotoneError(
+          'INVALID_DOCUMENT',
+          `saved session is not a ${axes.quantity} null: resume it with the calibration that saved it`,
+        );
+      }
+      inner = restoreNullSeeker(s.seeker);
+    },
+    stop(reason: StopReason) {
+      inner.stop(reason);
+    },
+    get done() {
+      return inner.done;
+    },
+    get stopReason() {
+      return inner.stopReason;
+    },
+    get count() {
+      return inner.count;
+    },
+  };
+  return self;
+}
+
+/**
+ * A session history as the calibration history (levels, roles and best trims per reading).
+ * @throws never
+ */
+export function stepsOf(seeker: NullSeeker, history: readonly SessionStep<number>[]): CalibrationStep[] {
+  const rs = seeker.readings();
+  return history.map((h, i) => ({
+    index: h.index,
+    trims: h.trims,
+    levelDb: h.levels ?? Number.NaN,
+    role: rs[i]?.role ?? 'probe',
+    bestTrims: h.best.trims,
+    bestLevelDb: h.best.levels,
+    ...(h.error !== undefined ? { error: h.error } : {}),
+  }));
+}
+
+/**
+ * Runs a two-trim calibration end to end (the fitting method of DESIGN.md §6): a {@link createTrimSeeker}
+ * driven by {@link runSession} over `o.measure`.
  * @throws {OrthotoneError} INVALID_ARGUMENT / INVALID_DOCUMENT as {@link seekerFor}, before the first
  *   reading. A failed reading or an abort never rejects: it ends the run with `stopReason`
  *   `measurement-failed` or `aborted`. An exception thrown by `onReading` is passed on.
@@ -293,30 +384,29 @@ export async function runTrimCalibration(
   axes: TrimAxes,
 ): Promise<TrimCalibrationResult> {
   const { seeker, start } = seekerFor(o, axes);
-  const history: CalibrationStep[] = seeker.readings().map((r, i) => ({
+  const ts = createTrimSeeker(seeker, axes, start);
+  const resumed: SessionStep<number>[] = seeker.readings().map((r, i) => ({
     index: i + 1,
     trims: axes.toTrims(r.point, start),
-    levelDb: r.db,
-    role: r.role,
-    bestTrims: axes.toTrims(r.point, start),
-    bestLevelDb: r.db,
+    levels: Number.isFinite(r.db) ? r.db : undefined,
+    best: { trims: axes.toTrims(r.point, start), levels: r.db },
   }));
-  const { lastError } = await runNullSeeker(seeker, (p) => o.measure(axes.toTrims(p, start)), {
+  const session = await runSession(ts, functionSource(o.measure), {
     signal: o.signal,
-    onReading: (p) => {
-      const r = seeker.readings()[seeker.count - 1]!;
-      const step: CalibrationStep = {
-        index: p.index,
-        trims: axes.toTrims(p.point, start),
-        levelDb: p.db,
-        role: r.role,
-        bestTrims: axes.toTrims(p.best.point, start),
-        bestLevelDb: p.best.levelDb,
-        ...(p.error !== undefined ? { error: p.error } : {}),
-      };
-      history.push(step);
-      o.onReading?.(step);
+    history: resumed,
+    maxReadings: seeker.options.maxReadings,
+    onReading: (h) => {
+      const rs = seeker.readings();
+      o.onReading?.({
+        index: h.index,
+        trims: h.trims,
+        levelDb: h.levels ?? Number.NaN,
+        role: rs[rs.length - 1]?.role ?? 'probe',
+        bestTrims: h.best.trims,
+        bestLevelDb: h.best.levels,
+        ...(h.error !== undefined ? { error: h.error } : {}),
+      });
     },
   });
-  return resultOf(seeker, axes, start, history, lastError);
+  return resultOf(seeker, axes, start, stepsOf(seeker, session.history), session.lastError);
 }

@@ -4,6 +4,7 @@
  */
 import { type ParseArgsConfig, parseArgs } from 'node:util';
 import { isOrthotoneError } from '../core/errors.js';
+import { nearestName } from '../core/validate.js';
 
 /** A usage error: printed as one line, exit status 2. */
 export class UsageError extends Error {
@@ -16,24 +17,83 @@ export class UsageError extends Error {
 /** Option table for a command: parseArgs options plus a help line per option. */
 export type OptionTable = NonNullable<ParseArgsConfig['options']>;
 
+/** A token that reads as a negative number (`-70`, `-0.5`, `-.5`, `-1e3`), taken as an option's value. */
+const NEGATIVE_NUMBER = /^-(\d|\.\d)/;
+
 /**
- * Parses `argv` strictly (node:util `parseArgs`); unknown options become a {@link UsageError}.
- * @throws {UsageError} the first line of parseArgs's message for an unknown option, a missing value
- *   or a positional argument where none is allowed.
+ * Parses `argv` strictly (node:util `parseArgs`), with these rules on top:
+ * - a value option followed by a negative number takes it as its value (`--floor -70`);
+ * - an option given twice is refused (never last-wins);
+ * - an unknown option is named, with the nearest known option.
+ * @throws {UsageError} `unknown option --x: did you mean --y?`, `--x given twice`, a missing value,
+ *   a value given to a switch, or a positional argument where none is allowed.
  */
 export function parseCommand(
   argv: string[],
   options: OptionTable,
   allowPositionals = false,
 ): { values: Record<string, string | boolean | string[] | undefined>; positionals: string[] } {
+  const args: string[] = [];
+  for (let k = 0; k < argv.length; k++) {
+    const a = argv[k]!;
+    const next = argv[k + 1];
+    const name = a.startsWith('--') && !a.includes('=') ? a.slice(2) : undefined;
+    if (
+      name !== undefined &&
+      Object.hasOwn(options, name) &&
+      options[name]!.type === 'string' &&
+      next !== undefined &&
+      NEGATIVE_NUMBER.test(next)
+    ) {
+      args.push(`${a}=${next}`);
+      k++;
+    } else args.push(a);
+  }
+  // First pass, lenient: unknown and repeated options get their own messages.
+  const loose = parseArgs({ args, options, allowPositionals: true, strict: false, tokens: true });
+  const seen = new Set<string>();
+  for (const t of loose.tokens ?? []) {
+    if (t.kind === 'option-terminator') break;
+    if (t.kind !== 'option') continue;
+    if (!Object.hasOwn(options, t.name)) {
+      const raw = t.rawName.startsWith('--') ? t.rawName : args[t.index]!;
+      if (NEGATIVE_NUMBER.test(raw)) {
+        throw new UsageError(
+          `unexpected ${raw}: a number must follow the option it belongs to (e.g. --floor ${raw})`,
+        );
+      }
+      const known = Object.keys(options);
+      const near = nearestName(t.name, known);
+      throw new UsageError(
+        `unknown option ${t.rawName}${near === undefined ? '' : `: did you mean --${near}?`} (--help lists the options)`,
+      );
+    }
+    if (seen.has(t.name) && !options[t.name]!.multiple) {
+      throw new UsageError(`--${t.name} is given twice: give it once`);
+    }
+    seen.add(t.name);
+  }
   try {
-    const r = parseArgs({ args: argv, options, allowPositionals, strict: true });
+    const r = parseArgs({ args, options, allowPositionals, strict: true });
     return {
       values: r.values as Record<string, string | boolean | string[] | undefined>,
       positionals: r.positionals,
     };
   } catch (e) {
-    throw new UsageError((e as Error).message.split('\n')[0] ?? 'bad arguments');
+    const err = e as Error & { code?: string };
+    const m = /Option '(-[^' ]+)/.exec(err.message);
+    if (err.code === 'ERR_PARSE_ARGS_INVALID_OPTION_VALUE' && m) {
+      if (/does not take an argument/.test(err.message))
+        throw new UsageError(`${m[1]} is a switch and takes no value`);
+      throw new UsageError(`${m[1]} needs a value`);
+    }
+    if (err.code === 'ERR_PARSE_ARGS_UNEXPECTED_POSITIONAL') {
+      const p = /'([^']*)'/.exec(err.message);
+      throw new UsageError(
+        `unexpected argument ${p ? JSON.stringify(p[1]) : ''}: this command takes options only`,
+      );
+    }
+    throw new UsageError(err.message.split('\n')[0] ?? 'bad arguments');
   }
 }
 
@@ -130,6 +190,61 @@ export async function runGuarded(body: () => Promise<number> | number): Promise<
       );
       return 2;
     }
+    throw e;
+  }
+}
+
+/**
+ * Library option keys and the CLI options a user types for them. Messages from the library name
+ * its keys (`targetDb 250 dB is out of range`); the CLI shows the option instead (`--target 250 dB
+ * is out of range`). Keys without a CLI option (maxTaps) are explained in CLI terms.
+ */
+export const CLI_NAMES: Readonly<Record<string, string>> = Object.freeze({
+  sampleRate: '--rate',
+  targetDb: '--target',
+  firMethod: '--fir-method',
+  allpassForm: '--form',
+  coefficientFormat: '--coefficients',
+  maxTaps: 'the FIR length limit',
+  maxSections: 'the section limit',
+  gainDb: '--gain-db',
+  phaseDeg: '--phase-deg',
+  skewSamples: '--skew',
+  dcI: '--dc-i',
+  dcQ: '--dc-q',
+  levelDbfs: '--level',
+  durationSeconds: '--duration',
+  floorDbc: '--floor',
+  resolutionHz: '--resolution',
+  offsetHz: '--offset',
+});
+
+/**
+ * Rewrites a library message so that it names CLI options: each key of `names` (as a whole word)
+ * becomes its option, and the leading `taps N` / `sections N` / `method 'x'` become `--taps N`, ….
+ * @throws never
+ */
+export function toCliWords(message: string, names: Readonly<Record<string, string>> = CLI_NAMES): string {
+  let m = message;
+  for (const [key, opt] of Object.entries(names)) {
+    m = m.replace(new RegExp(`(?<![\\w-])${key}(?![\\w])`, 'g'), opt);
+  }
+  return m
+    .replace(/(?<![\w-])(taps|sections) (-?[\d.]+)/g, '--$1 $2')
+    .replace(/(?<![\w-])(drop|omit) (taps|sections)\b/g, '$1 --$2')
+    .replace(/(?<![\w-])method '/g, "--method '");
+}
+
+/**
+ * Runs `fn` and re-throws an OrthotoneError from it with its message in CLI words
+ * ({@link toCliWords}); other errors pass unchanged.
+ * @throws {UsageError} for an OrthotoneError from `fn`; whatever else `fn` throws.
+ */
+export function inCliWords<T>(fn: () => T, names?: Readonly<Record<string, string>>): T {
+  try {
+    return fn();
+  } catch (e) {
+    if (isOrthotoneError(e)) throw new UsageError(toCliWords(e.message, names));
     throw e;
   }
 }

@@ -4,20 +4,27 @@
  * an analyzer (`--prompt`), or printed by a command (`--measure-command`). Prints a convergence
  * table and the resulting suppression; writes a profile and a C header on request.
  */
-import { exec } from 'node:child_process';
-import { readFile, writeFile } from 'node:fs/promises';
-import { createInterface } from 'node:readline/promises';
+import { accessSync, constants as fsConstants, statSync } from 'node:fs';
+import { readFile } from 'node:fs/promises';
+import { dirname, resolve } from 'node:path';
 import { carrierAxes } from '../calibrate/carrier.js';
-import { type BothLevels, type CombinedSeeker, createCombinedSeeker } from '../calibrate/combined.js';
+import { createCombinedSeeker } from '../calibrate/combined.js';
 import type { Diagnosis } from '../calibrate/diagnosis.js';
-import type { NullSeeker } from '../calibrate/null-seeker.js';
 import { createProfile, type ProfileReading, profileToJson } from '../calibrate/profile.js';
-import { runNullSeeker } from '../calibrate/run-null-seeker.js';
+import {
+  mapSource,
+  runSession,
+  type SavedSeeker,
+  type Seeker,
+  type TrimApplier,
+} from '../calibrate/session.js';
 import { sidebandAxes } from '../calibrate/sideband.js';
 import {
+  createTrimSeeker,
   type HardwareTrimOptions,
   resultOf,
   seekerFor,
+  stepsOf,
   type TrimAxes,
   type TrimCalibrationResult,
   type TrimName,
@@ -30,6 +37,7 @@ import { requireSampleRate } from '../core/validate.js';
 import type { Network } from '../design/network.js';
 import { parseNetworkJson } from '../export/network-json.js';
 import { profileToCHeader } from '../export/profile-header.js';
+import { assertDistinctFiles, writeFileAtomic } from '../node/files.js';
 import { createAnalyzer } from '../simulate/analyzer.js';
 import { createVirtualExciter, type VirtualExciter } from '../simulate/exciter.js';
 import {
@@ -39,6 +47,7 @@ import {
   type TolerancePreset,
 } from '../simulate/model.js';
 import { choiceOpt, lookupOpt, numberOpt, parseCommand, UsageError } from './args.js';
+import { commandSource, lineInput, promptSource } from './calibrate-sources.js';
 import { formatTable } from './table.js';
 
 const HELP = `usage: orthotone calibrate (--simulate | --prompt | --measure-command CMD) [options]
@@ -52,10 +61,14 @@ where the readings come from:
   --prompt               you: for each step it says which trims to set (or, with your generator
                          under its control, what it plays) and asks for the level your analyzer
                          shows, in dB. Answer a number, 'retry' (ask again), 'undo' (drop the last
-                         reading) or 'quit' (stop and keep the best so far)
+                         reading) or 'quit' (stop, keep the best so far, write the profile).
+                         Answers may come from a pipe or a file; end of input ends the run
+                         like 'quit'. A first level at or above 0 dB asks for confirmation
   --measure-command CMD  runs CMD (in a shell) for each reading with the trims in OT_GAIN_DB,
                          OT_PHASE_DEG, OT_DC_I, OT_DC_Q and what to read in OT_QUANTITY
-                         (sideband | carrier), OT_TONE_HZ; CMD prints one level in dB
+                         (sideband | carrier), OT_TONE_HZ; CMD prints one level in dB (a decimal
+                         number, 'dB' after it allowed) and exits 0. It runs in its own process
+                         group, killed whole on --timeout and on Ctrl-C
 
 options:
   --what W               sideband | carrier | both (default both: sideband first, then carrier)
@@ -82,6 +95,13 @@ options:
   --outliers RATE        share of readings 10 dB off (simulate; default 0)
   --profile FILE         write the calibration profile (JSON)
   --header FILE          write the profile as a C header
+  --session FILE         save the session after every reading (to continue it with --resume)
+  --resume FILE          continue a session saved with --session (same --what, --together, --tone)
+  --timeout S            time allowed for one reading, seconds (default 60); three failed
+                         readings in a row end the null
+
+exit status: 0 done; 2 bad options; 3 cut short (quit, end of input, failing readings: the best
+trims so far are kept and the profile written, its note says which nulls are unfinished); 130 Ctrl-C.
   --format F             table (default) | json
   -h, --help             this help
 `;
@@ -108,6 +128,9 @@ const OPTIONS = {
   outliers: { type: 'string' },
   profile: { type: 'string' },
   header: { type: 'string' },
+  session: { type: 'string' },
+  resume: { type: 'string' },
+  timeout: { type: 'string' },
   format: { type: 'string' },
   help: { type: 'boolean', short: 'h' },
 } as const;
@@ -163,130 +186,6 @@ const fmtTrims = (q: Quantity, t: Trims): string =>
     : `dcI ${t.dcI >= 0 ? '+' : ''}${t.dcI.toFixed(6)}, dcQ ${t.dcQ >= 0 ? '+' : ''}${t.dcQ.toFixed(6)}`;
 
 /**
- * Reads `count` levels from a person on one line (numbers in dB, a `dB`/`dBc` after each allowed,
- * separated by spaces or commas); resolves to the numbers, or 'retry' | 'undo' | 'quit'.
- */
-async function askLevels(
-  rl: ReturnType<typeof createInterface>,
-  question: string,
-  count: number,
-): Promise<number[] | 'retry' | 'undo' | 'quit'> {
-  for (;;) {
-    let line: string;
-    try {
-      line = (await rl.question(question)).trim().toLowerCase();
-    } catch {
-      return 'quit'; // input closed
-    }
-    if (line === 'retry' || line === 'undo' || line === 'quit') return line;
-    const parts = line
-      .replace(/(\d)\s*dbc?\b/g, '$1 ')
-      .split(/[\s,;]+/)
-      .filter((x) => x !== '');
-    const xs = parts.map(Number);
-    if (xs.length === count && xs.every(Number.isFinite)) return xs;
-    const want =
-      count === 1
-        ? 'a number in dB (e.g. -42.5)'
-        : 'the sideband and the carrier level in dB (e.g. -43.5 -27.9)';
-    process.stdout.write(
-      `  '${line}' is not ${count === 1 ? 'a level' : 'two levels'}: type ${want}, retry, undo or quit\n`,
-    );
-  }
-}
-
-/** Reads one level from a person; resolves to a number, or 'retry' | 'undo' | 'quit'. */
-async function ask(
-  rl: ReturnType<typeof createInterface>,
-  question: string,
-): Promise<number | 'retry' | 'undo' | 'quit'> {
-  const a = await askLevels(rl, question, 1);
-  return typeof a === 'string' ? a : a[0]!;
-}
-
-const fmtAll = (t: Trims): string => `${fmtTrims('sideband', t)}, ${fmtTrims('carrier', t)}`;
-
-/**
- * Runs a combined calibration (both levels from each reading) by prompting a person, with retry,
- * undo and quit.
- */
-async function promptBothLoop(
-  core: CombinedSeeker,
-  maxReadings: number,
-  toneHz: number,
-  rl: ReturnType<typeof createInterface>,
-): Promise<void> {
-  for (;;) {
-    const t = core.next();
-    if (!t) return;
-    const n = core.count + 1;
-    process.stdout.write(`\n[reading ${n} of at most ${maxReadings}] set ${fmtAll(t)}\n`);
-    const a = await askLevels(
-      rl,
-      `  sideband and carrier levels at ${toneHz} Hz, dB, e.g. -43.5 -27.9 (retry | undo | quit): `,
-      2,
-    );
-    if (a === 'retry') continue;
-    if (a === 'quit') {
-      core.stop('aborted');
-      return;
-    }
-    if (a === 'undo') {
-      if (core.count === 0) process.stdout.write('  nothing to undo\n');
-      else {
-        core.undo();
-        process.stdout.write(`  dropped reading ${n - 1}\n`);
-      }
-      continue;
-    }
-    core.tell({ sidebandDb: a[0]!, carrierDb: a[1]! });
-    const b = core.best();
-    process.stdout.write(
-      `  best so far: ${fmtAll(b.trims)} (sideband ${b.sidebandDb.toFixed(1)} dB, carrier ${b.carrierDb.toFixed(1)} dB)\n`,
-    );
-  }
-}
-
-/** Runs a seeker by prompting a person, with retry and undo. */
-async function promptLoop(
-  seeker: NullSeeker,
-  axes: TrimAxes,
-  start: Trims,
-  q: Quantity,
-  toneHz: number,
-  rl: ReturnType<typeof createInterface>,
-): Promise<void> {
-  for (;;) {
-    const p = seeker.next();
-    if (!p) return;
-    const t = axes.toTrims(p, start);
-    const n = seeker.count + 1;
-    process.stdout.write(
-      `\n[${q} reading ${n} of at most ${seeker.options.maxReadings}] set ${fmtTrims(q, t)}\n`,
-    );
-    const a = await ask(rl, `  ${q} level at ${toneHz} Hz, dB (retry | undo | quit): `);
-    if (a === 'retry') continue;
-    if (a === 'quit') {
-      seeker.stop('aborted');
-      return;
-    }
-    if (a === 'undo') {
-      if (seeker.count === 0) process.stdout.write('  nothing to undo\n');
-      else {
-        seeker.undo();
-        process.stdout.write(`  dropped reading ${n - 1}\n`);
-      }
-      continue;
-    }
-    seeker.tell(p, a);
-    const b = seeker.best();
-    process.stdout.write(
-      `  best so far: ${fmtTrims(q, axes.toTrims(b.point, start))} (${b.levelDb.toFixed(1)} dB, ${b.source})\n`,
-    );
-  }
-}
-
-/**
  * Reads and validates a network document file.
  * @throws {UsageError} when the file cannot be read; {OrthotoneError} INVALID_DOCUMENT when it is
  *   not a network document.
@@ -308,35 +207,86 @@ async function readNetwork(file: string): Promise<Network> {
   }
 }
 
-/** Runs a shell command and parses the first `count` numbers it prints. */
-function commandReadings(cmd: string, env: Record<string, string>, count: number): Promise<number[]> {
-  return new Promise((resolve, reject) => {
-    exec(cmd, { env: { ...process.env, ...env }, timeout: 120_000 }, (err, stdout) => {
-      if (err) return reject(new Error(`measure command failed: ${err.message.split('\n')[0]}`));
-      const m = stdout.match(/[-+]?\d+(\.\d+)?([eE][-+]?\d+)?/g) ?? [];
-      if (m.length < count) {
-        return reject(
-          new Error(
-            `measure command printed ${m.length === 0 ? 'no number' : `${m.length} number(s), not ${count}`}: ${JSON.stringify(stdout.slice(0, 80))}`,
-          ),
-        );
-      }
-      resolve(m.slice(0, count).map(Number));
-    });
-  });
+const fmtAll = (t: Trims): string => `${fmtTrims('sideband', t)}, ${fmtTrims('carrier', t)}`;
+
+/** Hooks for front ends that set the trims themselves (the device link's `calibrate --device`). */
+export interface CalibrateExtras {
+  /**
+   * Sets the trims before each reading and returns those in force (e.g. a device over a serial
+   * link, which confirms what it applied). Default: the reading source applies them.
+   */
+  applier?: TrimApplier;
+  /** One line saying what applies the trims, printed before the first reading. */
+  applierNote?: string;
 }
 
-/** Runs a shell command and parses the first number it prints. */
-async function commandReading(cmd: string, env: Record<string, string>): Promise<number> {
-  return (await commandReadings(cmd, env, 1))[0]!;
+/** What `--session` writes and `--resume` reads. */
+interface SessionDocument {
+  format: 'orthotone-calibrate-session';
+  version: 1;
+  what: 'sideband' | 'carrier' | 'both';
+  together: boolean;
+  toneHz: number;
+  /** Saved seekers, by null ('sideband', 'carrier', or 'both' for --together). */
+  nulls: Record<string, SavedSeeker>;
 }
 
-const trimEnv = (t: Trims): Record<string, string> => ({
-  OT_GAIN_DB: String(t.gainDb),
-  OT_PHASE_DEG: String(t.phaseDeg),
-  OT_DC_I: String(t.dcI),
-  OT_DC_Q: String(t.dcQ),
-});
+/**
+ * Reads a session file written by `--session`.
+ * @throws {UsageError} when it cannot be read or is not a saved calibrate session.
+ */
+async function readSession(file: string): Promise<SessionDocument> {
+  let doc: SessionDocument;
+  try {
+    doc = JSON.parse(await readFile(file, 'utf8')) as SessionDocument;
+  } catch (e) {
+    throw new UsageError(
+      `--resume ${file} cannot be read: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`,
+    );
+  }
+  if (doc?.format !== 'orthotone-calibrate-session' || doc.version !== 1 || typeof doc.nulls !== 'object') {
+    throw new UsageError(
+      `--resume ${file} is not a session written by 'calibrate --session': give that file`,
+    );
+  }
+  return doc;
+}
+
+/**
+ * Refuses an output path that cannot be written (missing folder, a folder, no permission), before any
+ * reading is taken.
+ * @throws {UsageError} naming the option, the path and the fix.
+ */
+function checkWritable(option: string, path: string | undefined): void {
+  if (path === undefined) return;
+  const dir = dirname(resolve(path));
+  try {
+    if (!statSync(dir).isDirectory()) throw new Error('not a folder');
+    accessSync(dir, fsConstants.W_OK);
+  } catch {
+    throw new UsageError(
+      `--${option} ${path}: cannot write into ${dir} (missing or not writable): choose a writable folder`,
+    );
+  }
+  try {
+    if (statSync(path).isDirectory())
+      throw new UsageError(`--${option} ${path} is a folder: give a file name`);
+  } catch (e) {
+    if (e instanceof UsageError) throw e;
+  }
+}
+
+/**
+ * Parses a seed option: an integer 0…2³²−1.
+ * @throws {UsageError} naming the option and the range.
+ */
+function seedOpt(name: string, v: unknown, fallback: number): number {
+  const x = numberOpt(name, v ?? String(fallback))!;
+  if (!(Number.isInteger(x) && x >= 0 && x <= 0xffffffff)) {
+    throw new UsageError(`--${name} ${String(v)} must be a whole number from 0 to 4294967295`);
+  }
+  return x;
+}
 
 interface RunOut {
   q: Quantity;
@@ -346,14 +296,18 @@ interface RunOut {
 }
 
 /**
- * `orthotone calibrate` entry point; returns the exit status.
- * @throws {UsageError} for bad or conflicting options or an unreadable network file;
- *   OrthotoneError INVALID_ARGUMENT for calibration or simulator settings the library refuses,
- *   INVALID_DOCUMENT for a profile that fails validation. A failed reading never throws (the run stops with a reason);
- *   a Node file-system error when an output file cannot be written. The CLI's `main` (through
- *   `runGuarded`) turns UsageError and OrthotoneError into one line on stderr and exit status 2.
+ * `orthotone calibrate` entry point; returns the exit status: 0 when every null finished, 3 when the
+ * run was cut short (quit, end of input, readings that kept failing: the best so far is kept and
+ * written), 130 on Ctrl-C (likewise kept and written).
+ * @param argv the command's arguments.
+ * @param extras a trim applier for front ends that set the trims themselves (`calibrate --device`).
+ * @throws {UsageError} for bad or conflicting options, an unreadable network or session file or an
+ *   output that cannot be written (checked before the first reading); OrthotoneError
+ *   INVALID_ARGUMENT for calibration or simulator settings the library refuses, OUTPUT_IS_INPUT,
+ *   WRITE_FAILED. A failed reading never throws (the run stops with a reason). The CLI's `main`
+ *   (through `runGuarded`) turns UsageError and OrthotoneError into one line on stderr and exit 2.
  */
-export async function run(argv: string[]): Promise<number> {
+export async function run(argv: string[], extras: CalibrateExtras = {}): Promise<number> {
   const { values: v } = parseCommand(argv, OPTIONS);
   if (v.help) {
     process.stdout.write(HELP);
@@ -377,16 +331,47 @@ export async function run(argv: string[]): Promise<number> {
   const targetDb = numberOpt('target', v.target);
   const noiseDb = numberOpt('noise', v.noise ?? '0.5')!;
   const floorDb = numberOpt('floor', v.floor);
+  const timeoutSeconds = numberOpt('timeout', v.timeout ?? '60')!;
+  if (!(timeoutSeconds > 0 && timeoutSeconds <= 86_400)) {
+    throw new UsageError(`--timeout ${timeoutSeconds} must be a time in seconds above 0 (at most 86400)`);
+  }
   const hw: HardwareTrimOptions = { steps: parseSteps(v.steps as string | undefined) };
   validateHardware(hw, ZERO_TRIMS);
   const axesFor = (q: Quantity): TrimAxes =>
     q === 'sideband' ? sidebandAxes(hw) : carrierAxes(toneAmplitude, hw);
-  const network = typeof v.network === 'string' ? await readNetwork(v.network) : undefined;
+  const files = {
+    network: v.network as string | undefined,
+    resume: v.resume as string | undefined,
+    profile: v.profile as string | undefined,
+    header: v.header as string | undefined,
+    session: v.session as string | undefined,
+  };
+  assertDistinctFiles(
+    [
+      ['--network', files.network],
+      ['--resume', files.resume],
+    ],
+    [
+      ['--profile', files.profile],
+      ['--header', files.header],
+      ['--session', files.session],
+    ],
+  );
+  checkWritable('profile', files.profile);
+  checkWritable('header', files.header);
+  checkWritable('session', files.session);
+  const network = files.network !== undefined ? await readNetwork(files.network) : undefined;
+  const resumed = files.resume !== undefined ? await readSession(files.resume) : undefined;
+  if (resumed && (resumed.what !== what || resumed.together !== together || resumed.toneHz !== toneHz)) {
+    throw new UsageError(
+      `--resume ${files.resume} was saved for --what ${resumed.what}${resumed.together ? ' --together' : ''} --tone ${resumed.toneHz}: give the same options`,
+    );
+  }
   const givenRate = numberOpt('rate', v.rate);
   if (givenRate !== undefined) requireSampleRate(givenRate);
   if (network && givenRate !== undefined && givenRate !== network.sampleRate) {
     throw new UsageError(
-      `--rate ${givenRate} Hz disagrees with the network ${v.network as string}, designed for ${network.sampleRate} Hz: drop --rate or give the network's rate`,
+      `--rate ${givenRate} Hz disagrees with the network ${files.network}, designed for ${network.sampleRate} Hz: drop --rate or give the network's rate`,
     );
   }
   const sampleRate = network?.sampleRate ?? givenRate ?? 48000;
@@ -398,22 +383,17 @@ export async function run(argv: string[]): Promise<number> {
   const out = (s: string): void => {
     if (format === 'table') process.stdout.write(s);
   };
-  out(`${cautionsText()}\n\n`);
-  if (network && (toneHz < network.band[0] || toneHz > network.band[1])) {
-    out(
-      `note: the ${toneHz} Hz tone lies outside the network's band ${network.band[0]}-${network.band[1]} Hz: the trims found there may not hold in the band\n`,
-    );
-  }
 
   let exciter: VirtualExciter | undefined;
   let analyzer: ReturnType<typeof createAnalyzer> | undefined;
   const simAmplitude = toneAmplitude ?? 0.5;
+  let simNote = '';
   if (v.simulate) {
     const presetName = (v.preset ?? 'homebrew-bench') as string;
     const preset = lookupOpt('preset', presetName, TOLERANCE_PRESETS, 'homebrew-bench');
     const tol = parseTolerance(v.tolerance as string | undefined, preset);
-    const deviceSeed = numberOpt('device-seed', v['device-seed'] ?? String(HOMEBREW_BENCH_SEED))!;
-    const seed = numberOpt('seed', v.seed ?? '1')!;
+    const deviceSeed = seedOpt('device-seed', v['device-seed'], HOMEBREW_BENCH_SEED);
+    const seed = seedOpt('seed', v.seed, 1);
     exciter = createVirtualExciter(drawDevice(tol, deviceSeed), { sampleRate, seed });
     analyzer = createAnalyzer(exciter, {
       seed,
@@ -421,23 +401,106 @@ export async function run(argv: string[]): Promise<number> {
       noiseDb,
       outlierRate: numberOpt('outliers', v.outliers ?? '0')!,
     });
+    simNote = `virtual exciter: preset ${presetName}, device ${deviceSeed}; analyzer floor ${floorDb ?? -70} dBc, noise ${noiseDb} dB, seed ${seed}; tone ${toneHz} Hz at ${simAmplitude} of full scale${toneAmplitude === undefined ? ' (not told to the calibration)' : ''}\n`;
+  }
+  out(`${cautionsText()}\n\n`);
+  if (network && (toneHz < network.band[0] || toneHz > network.band[1])) {
     out(
-      `virtual exciter: preset ${presetName}, device ${deviceSeed}; analyzer floor ${floorDb ?? -70} dBc, noise ${noiseDb} dB, seed ${seed}; tone ${toneHz} Hz at ${simAmplitude} of full scale${toneAmplitude === undefined ? ' (not told to the calibration)' : ''}\n`,
+      `note: the ${toneHz} Hz tone lies outside the network's band ${network.band[0]}-${network.band[1]} Hz: the trims found there may not hold in the band\n`,
     );
   }
-  const rl = v.prompt
-    ? createInterface({ input: process.stdin, output: process.stdout, terminal: false })
-    : undefined;
-  if (rl) {
+  out(simNote);
+  if (extras.applierNote) out(`${extras.applierNote}\n`);
+  const input = v.prompt ? lineInput(process.stdin) : undefined;
+  if (input) {
     out(
-      'Play a single tone at the test frequency into the exciter, into a dummy load, and read the\nunwanted sideband (or the carrier) relative to the wanted tone on your analyzer, in dBc.\n',
+      'Play a single tone at the test frequency into the exciter, into a dummy load, and read the\nunwanted sideband (or the carrier) relative to the wanted tone on your analyzer, in dBc\n(a level below the tone is negative: type -44 for a suppression of 44 dB).\n',
     );
   }
+  // Ctrl-C: stop the reading in progress (a command's whole process group), keep the best so far.
+  const ctl = new AbortController();
+  let interrupted = false;
+  const onSigint = (): void => {
+    interrupted = true;
+    ctl.abort(new OrthotoneError('ABORTED', 'interrupted (Ctrl-C)'));
+  };
+  process.on('SIGINT', onSigint);
+
+  /** The reading source for one null (count 1) or both (count 2). */
+  const sourceFor = (label: string, quantity: string, count: number, describe: (t: Trims) => string) => {
+    if (analyzer) {
+      const a = analyzer;
+      return {
+        read: (t: Trims) =>
+          count === 2
+            ? (() => {
+                const r = a.readBoth(toneHz, t, simAmplitude);
+                return [r.sidebandDbc, r.carrierDbc];
+              })()
+            : [
+                quantity === 'sideband'
+                  ? a.readSideband(toneHz, t, simAmplitude)
+                  : a.readCarrier(toneHz, t, simAmplitude),
+              ],
+      };
+    }
+    if (input) {
+      return promptSource({
+        input,
+        output: process.stdout,
+        count,
+        label,
+        describe,
+        applied: extras.applier !== undefined,
+        question:
+          count === 2
+            ? `sideband and carrier levels at ${toneHz} Hz, dB, e.g. -43.5 -27.9`
+            : `${quantity} level at ${toneHz} Hz, dB`,
+      });
+    }
+    return commandSource({
+      command: v['measure-command'] as string,
+      env: { OT_QUANTITY: quantity, OT_TONE_HZ: String(toneHz) },
+      count,
+    });
+  };
+  const sessionOptions = {
+    signal: ctl.signal,
+    timeoutSeconds,
+    maxReadings,
+    ...(extras.applier ? { applier: extras.applier } : {}),
+    onFailure: (e: unknown, index: number) =>
+      out(`  reading ${index} failed: ${(e as Error)?.message ?? 'no value'}\n`),
+    onUndo: (d: { index: number } | undefined) =>
+      out(d ? `  dropped reading ${d.index}\n` : '  nothing to undo\n'),
+  };
+  const saved: Record<string, SavedSeeker> = { ...(resumed?.nulls ?? {}) };
+  const saveSession = (key: string, s: Seeker<unknown>): void => {
+    saved[key] = s.save();
+    if (files.session) {
+      const doc: SessionDocument = {
+        format: 'orthotone-calibrate-session',
+        version: 1,
+        what,
+        together,
+        toneHz,
+        nulls: saved,
+      };
+      writeFileAtomic(files.session, `${JSON.stringify(doc, null, 2)}\n`);
+    }
+  };
 
   const quantities: Quantity[] = what === 'both' ? ['sideband', 'carrier'] : [what as Quantity];
   const runs: RunOut[] = [];
+  const profileReadings: ProfileReading[] = [];
+  const unfinished: string[] = [];
+  let cutShort: string | undefined;
   let current: Trims = { ...ZERO_TRIMS };
   let sharedReadings: number | undefined;
+  const truth = (q: Quantity, t: Trims): number => {
+    const r = exciter!.response(toneHz, t, simAmplitude);
+    return -(q === 'sideband' ? r.unwantedDbc : r.carrierDbc);
+  };
   try {
     if (together) {
       const core = createCombinedSeeker({
@@ -448,40 +511,39 @@ export async function run(argv: string[]): Promise<number> {
         ...(floorDb !== undefined ? { floorDb } : {}),
         ...(toneAmplitude !== undefined ? { toneAmplitude } : {}),
       });
+      if (resumed?.nulls.both) core.restore(resumed.nulls.both);
       out('\n== sideband and carrier nulls together: gain, phase, dcI and dcQ trims ==\n');
-      let lastError: unknown;
-      if (rl) await promptBothLoop(core, maxReadings, toneHz, rl);
-      else {
-        for (let t = core.next(); t; t = core.next()) {
-          let levels: BothLevels;
-          let error: unknown;
-          try {
-            if (analyzer) {
-              const r = analyzer.readBoth(toneHz, t, simAmplitude);
-              levels = { sidebandDb: r.sidebandDbc, carrierDb: r.carrierDbc };
-            } else {
-              const [a, b] = await commandReadings(
-                v['measure-command'] as string,
-                { OT_QUANTITY: 'both', OT_TONE_HZ: String(toneHz), ...trimEnv(t) },
-                2,
-              );
-              levels = { sidebandDb: a!, carrierDb: b! };
-            }
-          } catch (e) {
-            error = e;
-            lastError = e;
-            levels = { sidebandDb: Number.NaN, carrierDb: Number.NaN };
-            out(`  reading ${core.count + 1} failed: ${(e as Error)?.message ?? 'no value'}\n`);
+      if (core.count > 0) out(`resumed ${core.count} reading(s) from ${files.resume}\n`);
+      const source = mapSource(sourceFor('reading', 'both', 2, fmtAll), (x: number[]) => ({
+        sidebandDb: x[0]!,
+        carrierDb: x[1]!,
+      }));
+      const session = await runSession(core, source, {
+        ...sessionOptions,
+        onReading: (h) => {
+          saveSession('both', core);
+          if (input) {
+            const b = h.best;
+            out(
+              `  best so far: ${fmtAll(b.trims)} (sideband ${b.levels.sidebandDb.toFixed(1)} dB, carrier ${b.levels.carrierDb.toFixed(1)} dB)\n`,
+            );
           }
-          core.tell(levels, error);
-        }
+        },
+      });
+      if (session.cutShort) {
+        cutShort = session.cutShort;
+        unfinished.push('sideband', 'carrier');
       }
-      const res = core.result(lastError);
+      const res = core.result(session.lastError);
       const table: string[][] = [['#', 'setting', 'sideband dB', 'carrier dB']];
       res.sideband.history.forEach((h, k) => {
         const c = res.carrier.history[k]!.levelDb;
         const f = (x: number) => (Number.isFinite(x) ? x.toFixed(2) : 'failed');
         table.push([String(h.index), fmtAll(h.trims), f(h.levelDb), f(c)]);
+        profileReadings.push(
+          { quantity: 'sideband', trims: h.trims, levelDb: Number.isFinite(h.levelDb) ? h.levelDb : null },
+          { quantity: 'carrier', trims: h.trims, levelDb: Number.isFinite(c) ? c : null },
+        );
       });
       out(formatTable(table));
       for (const [q, result] of [
@@ -490,12 +552,8 @@ export async function run(argv: string[]): Promise<number> {
       ] as const) {
         const ro: RunOut = { q, result };
         if (exciter) {
-          const pick = (t: Trims) => {
-            const r = exciter!.response(toneHz, t, simAmplitude);
-            return -(q === 'sideband' ? r.unwantedDbc : r.carrierDbc);
-          };
-          ro.trueStartDb = pick(ZERO_TRIMS);
-          ro.trueEndDb = pick(res.trims);
+          ro.trueStartDb = truth(q, ZERO_TRIMS);
+          ro.trueEndDb = truth(q, res.trims);
         }
         runs.push(ro);
         out(`stop (${q}): ${result.stopReason}; result ${fmtTrims(q, result.trims)}\n`);
@@ -505,6 +563,10 @@ export async function run(argv: string[]): Promise<number> {
       sharedReadings = res.readings;
     }
     for (const q of together ? [] : quantities) {
+      if (cutShort) {
+        unfinished.push(q);
+        continue;
+      }
       const axes = axesFor(q);
       const { seeker, start } = seekerFor(
         {
@@ -518,50 +580,66 @@ export async function run(argv: string[]): Promise<number> {
         },
         axes,
       );
+      const ts = createTrimSeeker(seeker, axes, start);
+      const saved0 = resumed?.nulls[q];
+      if (saved0) ts.restore(saved0);
+      const startTrims = ts.start;
       out(`\n== ${q} null: ${axes.names.join(' and ')} trims ==\n`);
-      if (rl) {
-        await promptLoop(seeker, axes, start, q, toneHz, rl);
-      } else {
-        const measure = async (p: [number, number]): Promise<number> => {
-          const t = axes.toTrims(p, start);
-          if (analyzer) {
-            return q === 'sideband'
-              ? analyzer.readSideband(toneHz, t, simAmplitude)
-              : analyzer.readCarrier(toneHz, t, simAmplitude);
-          }
-          return commandReading(v['measure-command'] as string, {
-            OT_QUANTITY: q,
-            OT_TONE_HZ: String(toneHz),
-            ...trimEnv(t),
+      if (ts.count > 0) out(`resumed ${ts.count} reading(s) from ${files.resume}\n`);
+      const history = (saved0?.readings ?? []).map((r, i) => ({
+        index: i + 1,
+        trims: r.trims,
+        levels: typeof r.levels === 'number' ? r.levels : undefined,
+        best: ts.best(),
+      }));
+      const source = mapSource(
+        sourceFor(`${q} reading`, q, 1, (t) => fmtTrims(q, t)),
+        (x: number[]) => x[0]!,
+      );
+      const session = ts.done
+        ? { stopReason: ts.stopReason ?? 'budget', history }
+        : await runSession(ts, source, {
+            ...sessionOptions,
+            history,
+            onReading: (h) => {
+              saveSession(q, ts);
+              if (input && h.levels !== undefined) {
+                const b = h.best;
+                out(`  best so far: ${fmtTrims(q, b.trims)} (${b.levels.toFixed(1)} dB)\n`);
+              }
+            },
           });
-        };
-        await runNullSeeker(seeker, measure, {
-          onReading: (r) => {
-            if (Number.isNaN(r.db))
-              out(`  reading ${r.index} failed: ${(r.error as Error)?.message ?? 'no value'}\n`);
-          },
-        });
+      if ('cutShort' in session && session.cutShort) {
+        cutShort = session.cutShort;
+        unfinished.push(q);
       }
-      const result = resultOf(seeker, axes, start, [], undefined);
+      const core = ts.core;
+      const result = resultOf(
+        core,
+        axes,
+        startTrims,
+        stepsOf(core, session.history),
+        (session as { lastError?: unknown }).lastError,
+      );
       const table: string[][] = [['#', 'role', 'setting', 'read dB', 'weight']];
-      seeker.readings().forEach((r, k) => {
+      const rs = core.readings();
+      session.history.forEach((h, k) => {
+        const r = rs[k];
         table.push([
           String(k + 1),
-          r.role,
-          fmtTrims(q, axes.toTrims(r.point, start)),
-          Number.isFinite(r.db) ? r.db.toFixed(2) : 'failed',
-          r.weight === undefined ? '' : r.weight.toFixed(2),
+          r?.role ?? '',
+          fmtTrims(q, h.trims),
+          h.levels !== undefined ? h.levels.toFixed(2) : 'failed',
+          r?.weight === undefined ? '' : r.weight.toFixed(2),
         ]);
+        // The trims in force at each reading, exactly as the reading source saw them.
+        profileReadings.push({ quantity: q, trims: h.trims, levelDb: h.levels ?? null });
       });
       out(formatTable(table));
       const ro: RunOut = { q, result };
       if (exciter) {
-        const pick = (t: Trims) => {
-          const r = exciter!.response(toneHz, t, simAmplitude);
-          return -(q === 'sideband' ? r.unwantedDbc : r.carrierDbc);
-        };
-        ro.trueStartDb = pick(start);
-        ro.trueEndDb = pick(result.trims);
+        ro.trueStartDb = truth(q, startTrims);
+        ro.trueEndDb = truth(q, result.trims);
       }
       runs.push(ro);
       current = result.trims;
@@ -569,9 +647,12 @@ export async function run(argv: string[]): Promise<number> {
       for (const d of result.diagnosis) out(`note [${d.code}]: ${d.message}\n`);
     }
   } finally {
-    rl?.close();
+    input?.close();
+    process.off('SIGINT', onSigint);
   }
 
+  const fmt1 = (x: number | undefined): string =>
+    x !== undefined && Number.isFinite(x) ? x.toFixed(1) : '-';
   const summary: string[][] = [
     [
       'null',
@@ -585,11 +666,11 @@ export async function run(argv: string[]): Promise<number> {
   for (const r of runs) {
     summary.push([
       r.q,
-      r.result.startLevelDb.toFixed(1),
-      r.result.levelDb.toFixed(1),
+      fmt1(r.result.startLevelDb),
+      fmt1(r.result.levelDb),
       String(r.result.readings),
-      r.result.stopReason,
-      ...(exciter ? [`${r.trueStartDb!.toFixed(1)} down`, `${r.trueEndDb!.toFixed(1)} down`] : []),
+      unfinished.includes(r.q) ? `${r.result.stopReason} (cut short)` : r.result.stopReason,
+      ...(exciter ? [`${fmt1(r.trueStartDb)} down`, `${fmt1(r.trueEndDb)} down`] : []),
     ]);
   }
   out(
@@ -598,50 +679,47 @@ export async function run(argv: string[]): Promise<number> {
   out(
     `trims: gainDb ${current.gainDb.toFixed(5)}, phaseDeg ${current.phaseDeg.toFixed(5)}, dcI ${current.dcI.toExponential(4)}, dcQ ${current.dcQ.toExponential(4)}\n`,
   );
+  const why = interrupted
+    ? 'interrupted (Ctrl-C)'
+    : cutShort === 'end-of-input'
+      ? 'input ended'
+      : cutShort === 'quit'
+        ? 'quit'
+        : cutShort === 'failed'
+          ? 'readings kept failing'
+          : cutShort;
+  const note = cutShort
+    ? `cut short (${why}): ${unfinished.join(' and ')} null${unfinished.length > 1 ? 's' : ''} unfinished; trims are the best so far`
+    : undefined;
+  if (note) out(`${note}${files.session ? `; continue with --resume ${files.session}` : ''}\n`);
 
-  const readings: ProfileReading[] = runs.flatMap((r) =>
-    together
-      ? r.result.history.map((h) => ({
-          quantity: r.q,
-          trims: h.trims,
-          levelDb: Number.isFinite(h.levelDb) ? h.levelDb : null,
-        }))
-      : r.result.state.readings.map((x) => ({
-          quantity: r.q,
-          trims: axesFor(r.q).toTrims(x.point, ZERO_TRIMS),
-          levelDb: x.db,
-        })),
-  );
   const sb = runs.find((r) => r.q === 'sideband');
   const cr = runs.find((r) => r.q === 'carrier');
-  const results = exciter
-    ? {
-        ...(sb ? { sidebandDb: sb.trueEndDb! } : {}),
-        ...(cr ? { carrierDb: cr.trueEndDb! } : {}),
-        readingsUsed: sharedReadings ?? runs.reduce((s, r) => s + r.result.readings, 0),
-        source: 'simulated' as const,
-      }
-    : {
-        ...(sb ? { sidebandDb: -sb.result.levelDb } : {}),
-        ...(cr ? { carrierDb: -cr.result.levelDb } : {}),
-        readingsUsed: sharedReadings ?? runs.reduce((s, r) => s + r.result.readings, 0),
-        source: 'fit' as const,
-      };
+  const finite = (x: number | undefined): x is number => x !== undefined && Number.isFinite(x);
+  const sbDb = exciter ? sb?.trueEndDb : sb ? -sb.result.levelDb : undefined;
+  const crDb = exciter ? cr?.trueEndDb : cr ? -cr.result.levelDb : undefined;
+  const results = {
+    ...(finite(sbDb) ? { sidebandDb: sbDb } : {}),
+    ...(finite(crDb) ? { carrierDb: crDb } : {}),
+    readingsUsed: sharedReadings ?? runs.reduce((s, r) => s + r.result.readings, 0),
+    source: exciter ? ('simulated' as const) : ('fit' as const),
+  };
   const profile = createProfile({
     sampleRate,
     toneHz,
     trims: current,
-    readings,
+    readings: profileReadings,
     results,
     ...(network ? { network } : {}),
+    ...(note ? { note } : {}),
   });
-  if (v.profile) {
-    await writeFile(v.profile as string, profileToJson(profile));
-    out(`wrote profile ${v.profile}\n`);
+  if (files.profile) {
+    writeFileAtomic(files.profile, profileToJson(profile));
+    out(`wrote profile ${files.profile}\n`);
   }
-  if (v.header) {
-    await writeFile(v.header as string, profileToCHeader(profile));
-    out(`wrote C header ${v.header}\n`);
+  if (files.header) {
+    writeFileAtomic(files.header, profileToCHeader(profile));
+    out(`wrote C header ${files.header}\n`);
   }
   if (format === 'json') {
     const diag: Diagnosis[] = runs.flatMap((r) => r.result.diagnosis);
@@ -649,6 +727,7 @@ export async function run(argv: string[]): Promise<number> {
       `${JSON.stringify(
         {
           trims: current,
+          ...(cutShort ? { cutShort: why, unfinished } : {}),
           runs: runs.map((r) => ({
             quantity: r.q,
             readings: r.result.readings,
@@ -666,5 +745,6 @@ export async function run(argv: string[]): Promise<number> {
     );
   }
   out(`\n${cautionsText()}\n`);
-  return 0;
+  if (interrupted) return 130;
+  return cutShort ? 3 : 0;
 }

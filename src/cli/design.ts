@@ -10,7 +10,7 @@ import { quantizationReport } from '../design/quantize.js';
 import { networkToCHeader } from '../export/c-header.js';
 import { networkToCsv } from '../export/csv.js';
 import { networkToJson } from '../export/network-json.js';
-import { choiceOpt, numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
+import { choiceOpt, inCliWords, numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
 import { fixed, formatPairs } from './table.js';
 
 const HELP = `usage: orthotone design [options]
@@ -43,20 +43,38 @@ options:
  */
 export function specFromOptions(v: Record<string, unknown>): NetworkSpec {
   const band = numberListOpt('band', v.band ?? '300:3000', ':', 2) as [number, number];
-  const method = choiceOpt('method', v.method, ['fir', 'allpass', 'auto'], 'auto');
+  const taps = numberOpt('taps', v.taps);
+  const sections = numberOpt('sections', v.sections);
+  if (taps !== undefined && sections !== undefined)
+    throw new UsageError('give --taps (a Hilbert FIR) or --sections (an all-pass pair), not both');
+  // A size names its network type: --taps alone means a FIR, --sections alone an all-pass pair
+  // (typing --method as well would add nothing). A size against an explicit other method is refused.
+  const implied = taps !== undefined ? 'fir' : sections !== undefined ? 'allpass' : 'auto';
+  const method = choiceOpt('method', v.method, ['fir', 'allpass', 'auto'], implied);
+  if (v.method !== undefined && implied !== 'auto' && method !== implied) {
+    throw new UsageError(
+      `--${taps !== undefined ? 'taps' : 'sections'} sets the size of ${implied === 'fir' ? 'a Hilbert FIR' : 'an all-pass pair'} but --method is ${method}: use --method ${implied}, or drop --${taps !== undefined ? 'taps' : 'sections'}`,
+    );
+  }
+  const rate = numberOpt('rate', v.rate ?? '48000')!;
+  if (!Number.isInteger(rate) || rate < 1000 || rate > 1_000_000) {
+    throw new UsageError(
+      `--rate ${rate} must be a whole number of Hz from 1000 to 1000000 (WAV files and converters run at whole rates)`,
+    );
+  }
   const spec: NetworkSpec = {
-    sampleRate: numberOpt('rate', v.rate ?? '48000')!,
+    sampleRate: rate,
     band,
     method: method as NetworkSpec['method'],
   };
   const target = numberOpt('target', v.target);
-  const taps = numberOpt('taps', v.taps);
-  const sections = numberOpt('sections', v.sections);
   if (target !== undefined) spec.targetDb = target;
   if (taps !== undefined) spec.taps = taps;
   if (sections !== undefined) spec.sections = sections;
-  if (v['fir-method'] !== undefined) spec.firMethod = v['fir-method'] as NetworkSpec['firMethod'];
-  if (v.form !== undefined) spec.allpassForm = v.form as NetworkSpec['allpassForm'];
+  if (v['fir-method'] !== undefined)
+    spec.firMethod = choiceOpt('fir-method', v['fir-method'], ['remez', 'kaiser'] as const, 'remez');
+  if (v.form !== undefined)
+    spec.allpassForm = choiceOpt('form', v.form, ['first-order', 'second-order'] as const, 'first-order');
   if (v.coefficients !== undefined) {
     spec.coefficientFormat = choiceOpt(
       'coefficients',
@@ -181,7 +199,7 @@ export async function run(argv: string[]): Promise<number> {
     process.stdout.write(HELP);
     return 0;
   }
-  const net = designNetwork(specFromOptions(v));
+  const net = inCliWords(() => designNetwork(specFromOptions(v)));
   const text = renderNetwork(net, (v.format as string | undefined) ?? 'table', v.name as string | undefined);
   if (typeof v.out === 'string') {
     writeFileSync(v.out, text);

@@ -166,18 +166,8 @@ function writeVectors(file: string, x: Float32Array, i: Float32Array, q: Float32
  *   `runGuarded`) turns UsageError and OrthotoneError into one line on stderr and exit status 2.
  */
 export async function run(argv: string[]): Promise<number> {
-  // Let numeric options take negative values without '=' (`--level -7`, `--gain-db -0.3`).
-  const args: string[] = [];
-  for (let k = 0; k < argv.length; k++) {
-    const a = argv[k]!;
-    const next = argv[k + 1];
-    if (/^--[a-z-]+$/.test(a) && next !== undefined && /^-\d|^-\.\d/.test(next)) {
-      args.push(`${a}=${next}`);
-      k++;
-    } else args.push(a);
-  }
   const { values: v, positionals } = parseCommand(
-    args,
+    argv,
     {
       ...DESIGN_OPTIONS,
       tone: { type: 'string' },

@@ -19,6 +19,10 @@ export type OrthotoneErrorCode =
   | 'MEASUREMENT_FAILED' // a reading could not be taken
   | 'WRITE_FAILED' // a file could not be written (the previous file, if any, is kept)
   | 'OUTPUT_IS_INPUT' // an output file is the same file as an input or as another output
+  | 'DEVICE_TIMEOUT' // a device did not answer a command in time
+  | 'DEVICE_REFUSED' // a device answered a command with an error (its code is in the message)
+  | 'DEVICE_LOST' // the link to a device closed and did not come back (unplugged, powered off)
+  | 'DEVICE_VERSION' // a device speaks another version of the link protocol
   | 'ABORTED'; // an AbortSignal fired
 
 /** The library's single error type. `code` is stable; `message` is for people. */

@@ -147,13 +147,85 @@ export function requireBand(band: unknown, sampleRate: number): [number, number]
 }
 
 /**
- * Merges `partial` over frozen `defaults`, dropping keys whose value is `undefined`. Validates
- * nothing: callers validate the merged result.
+ * Edit distance between two words: the fewest single-character insertions, deletions,
+ * substitutions or swaps of neighbours that turn one into the other (optimal string alignment,
+ * Damerau 1964, CACM 7(3):171; Levenshtein 1966). Written here because it is a dozen lines and
+ * serves only the "did you mean" hints.
  * @throws never
  */
-export function withDefaults<T extends object>(defaults: Readonly<T>, partial: Partial<T> | undefined): T {
+export function editDistance(a: string, b: string): number {
+  const m = a.length;
+  const n = b.length;
+  const d: number[][] = Array.from({ length: m + 1 }, (_, i) => {
+    const row = new Array<number>(n + 1).fill(0);
+    row[0] = i;
+    return row;
+  });
+  for (let j = 0; j <= n; j++) d[0]![j] = j;
+  for (let i = 1; i <= m; i++) {
+    for (let j = 1; j <= n; j++) {
+      const cost = a[i - 1] === b[j - 1] ? 0 : 1;
+      let v = Math.min(d[i - 1]![j]! + 1, d[i]![j - 1]! + 1, d[i - 1]![j - 1]! + cost);
+      if (i > 1 && j > 1 && a[i - 1] === b[j - 2] && a[i - 2] === b[j - 1])
+        v = Math.min(v, d[i - 2]![j - 2]! + 1);
+      d[i]![j] = v;
+    }
+  }
+  return d[m]![n]!;
+}
+
+/**
+ * The known name nearest to `word` by {@link editDistance} (case-insensitive), when it is near
+ * enough to be a likely typo (distance at most 2, or a third of the word's length, whichever is
+ * more); `undefined` otherwise.
+ * @throws never
+ */
+export function nearestName(word: string, known: readonly string[]): string | undefined {
+  let best: string | undefined;
+  let bestD = Number.POSITIVE_INFINITY;
+  for (const k of known) {
+    const dist = editDistance(word.toLowerCase(), k.toLowerCase());
+    if (dist < bestD) {
+      bestD = dist;
+      best = k;
+    }
+  }
+  return bestD <= Math.max(2, Math.floor(word.length / 3)) ? best : undefined;
+}
+
+/**
+ * Refuses keys of an options object that the function does not know, naming the nearest known key
+ * (a mistyped `tragetDb` would otherwise be ignored silently and the default used).
+ * @param what what the options are for, e.g. `designNetwork options`.
+ * @throws {OrthotoneError} INVALID_ARGUMENT `unknown option tragetDb in …: did you mean targetDb?`.
+ */
+export function rejectUnknownKeys(what: string, options: unknown, known: readonly string[]): void {
+  if (typeof options !== 'object' || options === null) return;
+  for (const k of Object.keys(options)) {
+    if (known.includes(k)) continue;
+    const near = nearestName(k, known);
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      `unknown option ${k} in ${what}: ${near === undefined ? `use one of ${known.join(', ')}` : `did you mean ${near}?`}`,
+      k,
+    );
+  }
+}
+
+/**
+ * Merges `partial` over frozen `defaults`, dropping keys whose value is `undefined`, and refuses a
+ * key that is neither in `defaults` nor in `optionalKeys` (see {@link rejectUnknownKeys}).
+ * Validates no values: callers validate the merged result.
+ * @throws {OrthotoneError} INVALID_ARGUMENT for an unknown key, naming the nearest known one.
+ */
+export function withDefaults<T extends object>(
+  defaults: Readonly<T>,
+  partial: Partial<T> | undefined,
+  optionalKeys: readonly string[] = [],
+): T {
   const out = { ...defaults } as T;
   if (partial) {
+    rejectUnknownKeys('the options', partial, [...Object.keys(defaults), ...optionalKeys]);
     for (const k of Object.keys(partial) as (keyof T)[]) {
       const v = partial[k];
       if (v !== undefined) out[k] = v as T[keyof T];

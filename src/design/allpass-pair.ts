@@ -256,7 +256,12 @@ function validatePairSpec(spec: AllpassPairSpec): {
   if (typeof spec !== 'object' || spec === null) {
     throw new OrthotoneError('INVALID_ARGUMENT', 'spec must be an object { sampleRate, band, ... }', spec);
   }
-  const o = withDefaults(PAIR_DEFAULTS as Required<AllpassPairSpec>, spec);
+  const o = withDefaults(PAIR_DEFAULTS as Required<AllpassPairSpec>, spec, [
+    'sampleRate',
+    'band',
+    'sections',
+    'targetDb',
+  ]);
   const fs = requireSampleRate(o.sampleRate);
   const band = requireBand(o.band, fs);
   const form = requireOneOf('form', o.form, ['first-order', 'second-order'] as const);

@@ -7,6 +7,7 @@
  */
 import { isOrthotoneError, OrthotoneError } from '../core/errors.js';
 import {
+  rejectUnknownKeys,
   requireBand,
   requireInteger,
   requireOneOf,
@@ -16,7 +17,7 @@ import {
 } from '../core/validate.js';
 import { type AllpassPairDesign, designAllpassPair, MAX_DESIGN_TARGET_DB } from './allpass-pair.js';
 import { networkCost, predictFigures } from './analysis.js';
-import { designHilbertFir, type HilbertFirDesign } from './hilbert-fir.js';
+import { designHilbertFir, type HilbertFirDesign, MAX_TAPS_LIMIT } from './hilbert-fir.js';
 import type { AllpassNetwork, FirNetwork, Network } from './network.js';
 import { validateNetwork } from './network.js';
 import { COEFFICIENT_FORMATS, type CoefficientFormat, quantizeNetwork } from './quantize.js';
@@ -70,6 +71,22 @@ export interface DesignCandidate {
 
 const DEFAULT_TARGET_DB = 60;
 
+/** Every key a {@link NetworkSpec} may hold (an unknown one is refused, naming the nearest). */
+const SPEC_KEYS: readonly string[] = [
+  'sampleRate',
+  'band',
+  'method',
+  'targetDb',
+  'taps',
+  'sections',
+  'firMethod',
+  'allpassForm',
+  'maxLatencySamples',
+  'maxSections',
+  'maxTaps',
+  'coefficientFormat',
+];
+
 interface Checked {
   fs: number;
   band: [number, number];
@@ -93,6 +110,7 @@ function checkSpec(spec: NetworkSpec): Checked {
       spec,
     );
   }
+  rejectUnknownKeys('the network spec', spec, SPEC_KEYS);
   const fs = requireSampleRate(spec.sampleRate);
   const band = requireBand(spec.band, fs);
   const method = requireOneOf('method', spec.method, ['fir', 'allpass', 'auto'] as const);
@@ -103,7 +121,7 @@ function checkSpec(spec: NetworkSpec): Checked {
     band,
     method,
     targetDb: opt(spec.targetDb, (v) => requireRange('targetDb', v, 1, MAX_DESIGN_TARGET_DB, 'dB')),
-    taps: opt(spec.taps, (v) => requireInteger('taps', v, 3, 65535)),
+    taps: opt(spec.taps, (v) => requireInteger('taps', v, 3, MAX_TAPS_LIMIT)),
     sections: opt(spec.sections, (v) => requireInteger('sections', v, 1, maxSections)),
     firMethod: requireOneOf('firMethod', spec.firMethod ?? 'remez', ['remez', 'kaiser'] as const),
     allpassForm: opt(spec.allpassForm, (v) =>
@@ -111,7 +129,7 @@ function checkSpec(spec: NetworkSpec): Checked {
     ),
     maxLatencySamples: opt(spec.maxLatencySamples, (v) => requirePositive('maxLatencySamples', v, 'samples')),
     maxSections,
-    maxTaps: opt(spec.maxTaps, (v) => requireInteger('maxTaps', v, 3, 65535)),
+    maxTaps: opt(spec.maxTaps, (v) => requireInteger('maxTaps', v, 3, MAX_TAPS_LIMIT)),
     format: undefined,
   };
   const format = requireOneOf('coefficientFormat', spec.coefficientFormat ?? 'float64', [
@@ -119,6 +137,22 @@ function checkSpec(spec: NetworkSpec): Checked {
     ...COEFFICIENT_FORMATS,
   ]);
   if (format !== 'float64') c.format = format;
+  // A size belongs to one network type: taps to the FIR, sections to the all-pass pair. Ignoring
+  // one quietly (method 'auto' returning an all-pass for taps 63) would hide the user's intent.
+  if (c.taps !== undefined && method !== 'fir') {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      `taps ${c.taps} sets the length of a Hilbert FIR but method is '${method}': use method 'fir', or drop taps`,
+      c.taps,
+    );
+  }
+  if (c.sections !== undefined && method !== 'allpass') {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      `sections ${c.sections} sets the size of an all-pass pair but method is '${method}': use method 'allpass', or drop sections`,
+      c.sections,
+    );
+  }
   if (c.taps !== undefined && c.taps % 2 === 0) {
     throw new OrthotoneError(
       'INVALID_ARGUMENT',
@@ -185,12 +219,23 @@ function firDocument(c: Checked, d: HilbertFirDesign, design: Record<string, unk
   });
 }
 
-function shortfall(c: Checked, net: Network, targetDb: number | undefined, sizeName: string): void {
+function shortfall(
+  c: Checked,
+  net: Network,
+  targetDb: number | undefined,
+  sizeName: string,
+  sizeGiven: boolean,
+): void {
   if (targetDb !== undefined && net.predicted.worstSuppressionDb < targetDb) {
+    const what = sizeName.split(' ')[0]!;
+    const fix = sizeGiven
+      ? `omit ${what} to get the smallest design that meets the target, or lower targetDb`
+      : c.format !== undefined
+        ? `the search stopped there after rounding to ${c.format}: use a wider coefficient format, raise ${what === 'taps' ? 'maxTaps' : 'maxSections'}, or lower targetDb`
+        : `raise ${what === 'taps' ? 'maxTaps' : 'maxSections'}, widen the band, or lower targetDb`;
     throw new OrthotoneError(
       'UNREACHABLE_TARGET',
-      `${sizeName} give ${net.predicted.worstSuppressionDb.toFixed(2)} dB worst suppression over [${c.band[0]}, ${c.band[1]}] Hz, below targetDb ${targetDb} dB: ` +
-        `omit ${sizeName.split(' ')[0]} to get the smallest design that meets the target, or lower targetDb`,
+      `${sizeName} give ${net.predicted.worstSuppressionDb.toFixed(2)} dB worst suppression over [${c.band[0]}, ${c.band[1]}] Hz, below targetDb ${targetDb} dB: ${fix}`,
       targetDb,
     );
   }
@@ -209,7 +254,7 @@ function designFir(c: Checked, targetDb: number | undefined, design: Record<stri
   const extra = c.maxTaps === undefined ? {} : { maxTaps: c.maxTaps };
   if (c.taps !== undefined) {
     const net = firDocument(c, designHilbertFir({ ...base, ...extra, taps: c.taps }), design);
-    shortfall(c, net, targetDb, `taps ${c.taps}`);
+    shortfall(c, net, targetDb, `taps ${c.taps}`, true);
     return net;
   }
   const target = targetDb ?? DEFAULT_TARGET_DB;
@@ -226,7 +271,7 @@ function designFir(c: Checked, targetDb: number | undefined, design: Record<stri
     if (c.maxTaps !== undefined && taps > c.maxTaps) break;
     net = firDocument(c, designHilbertFir({ ...base, ...extra, taps }), design);
   }
-  shortfall(c, net, target, `taps ${net.taps.length}`);
+  shortfall(c, net, target, `taps ${net.taps.length}`, false);
   return net;
 }
 
@@ -261,7 +306,13 @@ function designAllpass(
     n = next.sections;
     net = allpassDocument(c, next, design);
   }
-  shortfall(c, net, targetDb, `sections ${net.branches.i.sections.length + net.branches.q.sections.length}`);
+  shortfall(
+    c,
+    net,
+    targetDb,
+    `sections ${net.branches.i.sections.length + net.branches.q.sections.length}`,
+    c.sections !== undefined,
+  );
   return net;
 }
 

@@ -103,8 +103,8 @@ const DEFAULTS = Object.freeze({
   gridDensity: 16,
 });
 
-/** Largest maxTaps accepted (the Remez design of a full type III of this size takes seconds). */
-const MAX_TAPS_LIMIT = 16383;
+/** Largest FIR length designed (the Remez design of a full type III of this size takes seconds). */
+export const MAX_TAPS_LIMIT = 16383;
 
 /**
  * Worst opposite-sideband suppression of a Hilbert FIR with amplitude ripple δ and exact 90°:
@@ -566,7 +566,12 @@ export function designHilbertFir(spec: HilbertFirSpec): HilbertFirDesign {
       spec,
     );
   }
-  const o = withDefaults<Omit<HilbertFirSpec, 'sampleRate' | 'band'>>(DEFAULTS, spec);
+  const o = withDefaults<Omit<HilbertFirSpec, 'sampleRate' | 'band'>>(DEFAULTS, spec, [
+    'sampleRate',
+    'band',
+    'taps',
+    'targetDb',
+  ]);
   const fs = requireSampleRate(spec.sampleRate);
   const band = requireBand(spec.band, fs);
   const method = requireOneOf('method', o.method, ['remez', 'kaiser'] as const);
@@ -590,7 +595,8 @@ export function designHilbertFir(spec: HilbertFirSpec): HilbertFirDesign {
         t,
       );
     }
-    taps = requireInteger('taps', t, 3, maxTaps);
+    // A length given without maxTaps is limited by what can be designed, not by the search's default cap.
+    taps = requireInteger('taps', t, 3, spec.maxTaps === undefined ? MAX_TAPS_LIMIT : maxTaps);
   }
   const targetDb = o.targetDb === undefined ? undefined : requireRange('targetDb', o.targetDb, 10, 150, 'dB');
   if (taps === undefined && targetDb === undefined) {

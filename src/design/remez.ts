@@ -102,7 +102,8 @@ function validate(
   desired: number[],
   options: RemezOptions | undefined,
 ): { o: Required<Omit<RemezOptions, 'weight'>>; weight: number[]; edges: Float64Array } {
-  const o = withDefaults(DEFAULTS, options) as Required<Omit<RemezOptions, 'weight'>> & RemezOptions;
+  const o = withDefaults(DEFAULTS, options, ['weight']) as Required<Omit<RemezOptions, 'weight'>> &
+    RemezOptions;
   requireInteger('numtaps', numtaps, 2, MAX_TAPS);
   requireOneOf('type', o.type, ['bandpass', 'differentiator', 'hilbert'] as const);
   const fs = requirePositive('fs', o.fs);

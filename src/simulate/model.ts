@@ -108,6 +108,19 @@ export const DEFAULT_TOLERANCE: Readonly<TolerancePreset> = Object.freeze({
   distribution: 'uniform' as const,
 });
 
+/** The hand-built bench's tolerances (`homebrew-bench`; `skew-bench` builds on them). */
+const HOMEBREW_TOLERANCE: Readonly<TolerancePreset> = Object.freeze({
+  ...DEFAULT_TOLERANCE,
+  resistorPct: 0.5,
+  offsetMv: 6,
+  fullScaleVolts: 0.3,
+  codecGainDb: 0.1,
+  antiImagingLowPassHz: 20000,
+  cornerPct: 5,
+  converterBits: 16,
+  converterNoiseDbfs: -96,
+});
+
 /**
  * Named tolerance sets (invented benches of our own, typical component grades; common practice,
  * no source):
@@ -117,6 +130,9 @@ export const DEFAULT_TOLERANCE: Readonly<TolerancePreset> = Object.freeze({
  *   at 20 kHz, 16 bits — a hand-built exciter like the one that reached about 34 dB carrier and
  *   44 dB opposite-sideband suppression (common practice, no source); see HOMEBREW_BENCH_SEED.
  * - `ac-coupled`: `one-percent` with 10 Hz coupling capacitors (DC trims cannot reach the mixer).
+ * - `skew-bench`: `homebrew-bench` plus up to 2 µs of codec skew between the channels, 20 Hz
+ *   coupling and ±10% on the filter corners: its imbalance changes across the band (skew τ gives a
+ *   phase error 2πfτ), so one pair of trims cannot null the whole band; a correction filter can.
  */
 export const TOLERANCE_PRESETS: Readonly<Record<string, Readonly<TolerancePreset>>> = Object.freeze({
   ideal: DEFAULT_TOLERANCE,
@@ -140,16 +156,13 @@ export const TOLERANCE_PRESETS: Readonly<Record<string, Readonly<TolerancePreset
     converterBits: 16,
     converterNoiseDbfs: -96,
   }),
-  'homebrew-bench': Object.freeze({
-    ...DEFAULT_TOLERANCE,
-    resistorPct: 0.5,
-    offsetMv: 6,
-    fullScaleVolts: 0.3,
-    codecGainDb: 0.1,
+  'homebrew-bench': HOMEBREW_TOLERANCE,
+  'skew-bench': Object.freeze({
+    ...HOMEBREW_TOLERANCE,
+    skewSeconds: 2e-6,
+    couplingHighPassHz: 20,
     antiImagingLowPassHz: 20000,
-    cornerPct: 5,
-    converterBits: 16,
-    converterNoiseDbfs: -96,
+    cornerPct: 10,
   }),
   'ac-coupled': Object.freeze({
     ...DEFAULT_TOLERANCE,
@@ -165,7 +178,13 @@ export const TOLERANCE_PRESETS: Readonly<Record<string, Readonly<TolerancePreset
 });
 
 /** Names of {@link TOLERANCE_PRESETS}. */
-export type TolerancePresetName = 'ideal' | 'precision' | 'one-percent' | 'homebrew-bench' | 'ac-coupled';
+export type TolerancePresetName =
+  | 'ideal'
+  | 'precision'
+  | 'one-percent'
+  | 'homebrew-bench'
+  | 'ac-coupled'
+  | 'skew-bench';
 
 /**
  * Seed that, with the `homebrew-bench` preset, draws a device near the hand-built bench figures

@@ -294,11 +294,11 @@ describe('calibrateSidebandAndCarrier', () => {
     const core = createCombinedSeeker({ maxReadings: 16 });
     for (let k = 0; k < 5; k++) {
       const t = core.next()!;
-      core.tell({ sidebandDb: an.sideband(t), carrierDb: an.carrier(t) });
+      core.tell(t, { sidebandDb: an.sideband(t), carrierDb: an.carrier(t) });
     }
     const before = core.next();
     const bestBefore = core.best();
-    core.tell({ sidebandDb: -10, carrierDb: -10 });
+    core.tell(before!, { sidebandDb: -10, carrierDb: -10 });
     expect(core.count).toBe(6);
     core.undo();
     expect(core.count).toBe(5);

@@ -3,6 +3,7 @@ import { createRng } from '../../src/core/rng.js';
 import type { Trims } from '../../src/core/trims.js';
 import type { Network } from '../../src/design/network.js';
 import { createNetworkRuntime, createQuadratureGenerator } from '../../src/generate/quadrature-generator.js';
+import { TrimStage } from '../../src/generate/trim-stage.js';
 import { bitDiffs } from './dft.js';
 import { kaiserHilbertNetwork, niemitaloNetwork } from './reference-networks.js';
 
@@ -118,4 +119,68 @@ describe('trim stage: clone', () => {
     copy.process(x, b[0], b[1]);
     expect(bitDiffs(a[0], b[0]) + bitDiffs(a[1], b[1])).toBe(0);
   });
+});
+
+describe('trim stage phase and gain trims through image rejection (not only the formula)', () => {
+  // A modulator whose Q path has gain h and phase error ψ (its Q local oscillator off quadrature):
+  // I_hw = I', Q_hw = h·(Q'·cos ψ + I'·sin ψ), which turns an exact pair (cos, sin) into
+  // (cos ωt, h·sin(ωt + ψ)), the model of K. Schmidt, QEX Aug 1994 §2 (REFERENCES.md §1). Its image
+  // rejection is IRR = (1 + 2h·cos ψ + h²)/(1 − 2h·cos ψ + h²). The trims that undo it solve
+  // g·cos ψ·sin φ + sin ψ = 0 and h·g·cos ψ·cos φ = 1 (Q'' then equals Q exactly), for either sideband.
+  const h = 10 ** (0.3 / 20);
+  const psi = (3 * Math.PI) / 180;
+  const f0 = 1500; // 32 samples a cycle at 48 kHz: 4800 samples hold 150 whole cycles
+  const n = 8192;
+  const skip = 1024;
+  const m = 4800;
+  /** Wanted and image power ratio, dB, of z = I + jQ read on exact bins with a plain DFT. */
+  function irrDb(i: Float32Array, q: Float32Array, wantedSign: 1 | -1): number {
+    const bin = (sign: number) => {
+      let re = 0;
+      let im = 0;
+      for (let k = 0; k < m; k++) {
+        const w = (sign * 2 * Math.PI * f0 * k) / fs;
+        const a = i[skip + k]!;
+        const b = q[skip + k]!;
+        // (a + jb)·e^{−jw}
+        re += a * Math.cos(w) + b * Math.sin(w);
+        im += b * Math.cos(w) - a * Math.sin(w);
+      }
+      return re * re + im * im;
+    };
+    return 10 * Math.log10(bin(wantedSign) / bin(-wantedSign));
+  }
+  function run(sideband: 'upper' | 'lower', trims: Partial<Trims>) {
+    const stage = new TrimStage(fs, { trims, sideband, rampSeconds: 0 });
+    const inI = new Float32Array(n);
+    const inQ = new Float32Array(n);
+    for (let k = 0; k < n; k++) {
+      inI[k] = 0.5 * Math.cos((2 * Math.PI * f0 * k) / fs);
+      inQ[k] = 0.5 * Math.sin((2 * Math.PI * f0 * k) / fs);
+    }
+    const oi = new Float32Array(n);
+    const oq = new Float32Array(n);
+    stage.process(inI, inQ, oi, oq);
+    const qi = new Float32Array(n);
+    for (let k = 0; k < n; k++) qi[k] = h * (oq[k]! * Math.cos(psi) + oi[k]! * Math.sin(psi));
+    return irrDb(oi, qi, sideband === 'upper' ? 1 : -1);
+  }
+  // Closed-form trims: tan φ = −sin ψ/(g·cos ψ) with g·cos φ = 1/(h·cos ψ) ⇒ tan φ = −h·sin ψ.
+  const phi = Math.atan(-h * Math.sin(psi));
+  const g = 1 / (h * Math.cos(psi) * Math.cos(phi));
+  const good: Partial<Trims> = { gainDb: 20 * Math.log10(g), phaseDeg: (phi * 180) / Math.PI };
+  const flipped: Partial<Trims> = { ...good, phaseDeg: -good.phaseDeg! };
+  const uncorrected =
+    10 * Math.log10((1 + 2 * h * Math.cos(psi) + h * h) / (1 - 2 * h * Math.cos(psi) + h * h));
+
+  for (const sideband of ['upper', 'lower'] as const) {
+    it(`${sideband} sideband: no trims read the Schmidt IRR, the solved trims null the image, the opposite phase sign does not`, () => {
+      expect(Math.abs(run(sideband, {}) - uncorrected)).toBeLessThan(0.01);
+      // float32 samples: the null is limited near 130 dB; 90 dB is far beyond any wrong sign.
+      expect(run(sideband, good)).toBeGreaterThan(90);
+      // Flipping the phase trim's sign doubles the phase error instead of cancelling it.
+      const twice = -20 * Math.log10(Math.abs(Math.tan(psi)));
+      expect(run(sideband, flipped)).toBeLessThan(twice + 1);
+    });
+  }
 });

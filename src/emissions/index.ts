@@ -1,0 +1,4 @@
+export * from './check.js';
+export * from './limits.js';
+export * from './output-filter.js';
+export * from './products.js';

@@ -4,10 +4,11 @@
  */
 import { readFileSync, writeFileSync } from 'node:fs';
 import { analyzeNetwork } from '../design/analysis.js';
+import { analyzeKitArithmetic } from '../design/arithmetic-analysis.js';
 import { analysisToCsv } from '../export/csv.js';
 import { parseNetworkJson } from '../export/network-json.js';
 import { numberOpt, parseCommand, UsageError } from './args.js';
-import { describeNetwork } from './design.js';
+import { arithmeticOpt, describeArithmetic, describeNetwork } from './design.js';
 import { fixed, formatTable } from './table.js';
 
 const HELP = `usage: orthotone analyze FILE [options]
@@ -18,6 +19,8 @@ options:
   --points N       frequencies evaluated (default 25 for table, 2000 for json/csv)
   --from HZ        lowest frequency (default band lower edge / 2)
   --to HZ          highest frequency (default min(2 x band upper edge, Nyquist))
+  --arithmetic A   double (default) | float | q31 | q15: also report the firmware kit's arithmetic
+                   (image rejection, noise floor, headroom, zero-input limit cycles, cost)
   --format F       table (default) | json | csv
   --out FILE       write to FILE instead of standard output
   -h, --help       this help
@@ -39,6 +42,7 @@ export async function run(argv: string[]): Promise<number> {
       from: { type: 'string' },
       to: { type: 'string' },
       format: { type: 'string' },
+      arithmetic: { type: 'string' },
       out: { type: 'string' },
       help: { type: 'boolean', short: 'h' },
     },
@@ -63,6 +67,7 @@ export async function run(argv: string[]): Promise<number> {
   const toHz = numberOpt('to', v.to) ?? Math.min(2 * net.band[1], nyq * 0.999);
   const points = numberOpt('points', v.points) ?? (format === 'table' ? 25 : 2000);
   const a = analyzeNetwork(net, { points, fromHz, toHz });
+  const arithmetic = arithmeticOpt(v.arithmetic);
   let out: string;
   if (format === 'json') {
     out = `${JSON.stringify(
@@ -73,6 +78,7 @@ export async function run(argv: string[]): Promise<number> {
         maxGainErrorDb: a.maxGainErrorDb,
         groupDelayDifference: a.groupDelayDifference,
         cost: a.cost,
+        ...(arithmetic === 'double' ? {} : { arithmetic: analyzeKitArithmetic(net, arithmetic) }),
         points: Array.from(a.frequencyHz, (f, k) => ({
           frequencyHz: f,
           phaseErrorDeg: a.phaseErrorDeg[k],
@@ -103,6 +109,7 @@ export async function run(argv: string[]): Promise<number> {
       ]);
     }
     out = `${describeNetwork(net)}\n${formatTable(rows)}(* outside the design band)\n`;
+    if (arithmetic !== 'double') out += `\n${describeArithmetic(net, arithmetic)}`;
   } else {
     throw new UsageError(`--format ${JSON.stringify(format)} must be table, json or csv`);
   }

@@ -8,18 +8,19 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { cautionsText } from '../core/cautions.js';
 import { OrthotoneError } from '../core/errors.js';
 import type { Trims } from '../core/trims.js';
-import { validateTrims } from '../core/trims.js';
+import { validateTrims, ZERO_TRIMS } from '../core/trims.js';
 import { ampToDb, dbToAmp, powToDb } from '../core/units.js';
 import { designNetwork } from '../design/design-network.js';
 import type { Network } from '../design/network.js';
 import { parseNetworkJson } from '../export/network-json.js';
+import { renderKit } from '../generate/fixed-point.js';
 import { predictCarrierDbc, predictOutputPeaks, predictSuppressionDb } from '../generate/prediction.js';
 import { createQuadratureGenerator } from '../generate/quadrature-generator.js';
 import { createSignalSource, type SignalLevels, type SignalSpec, signalLevels } from '../generate/sources.js';
 import type { Sideband } from '../generate/trim-stage.js';
 import { readWavFile, toMono, type WavEncoding, writeIqWavFile } from '../node/wav.js';
 import { choiceOpt, numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
-import { DESIGN_OPTIONS, specFromOptions } from './design.js';
+import { arithmeticOpt, DESIGN_OPTIONS, specFromOptions } from './design.js';
 import { fixed, formatPairs } from './table.js';
 
 const HELP = `usage: orthotone render [NETWORK.json] [options] --out FILE.wav
@@ -49,7 +50,14 @@ output:
   --out FILE.wav         the I/Q file to write (required)
   --encoding E           float32 (default) | int24 | int16
   --vectors FILE.csv     also write test vectors for a firmware port: n,input,i,q per sample
-                         (float32 values, 9 significant digits; trims and network as above)
+                         (float32 values, 9 significant digits; trims and network as above;
+                         with --arithmetic, the kit's exact output in round-trip digits)
+arithmetic:
+  --arithmetic A         double (default) | float | q31 | q15: run the firmware kit's arithmetic,
+                         bit-exact with 'orthotone firmware' kits (without a network file, the
+                         design also meets --target with that arithmetic's coefficients)
+  --max-skew N           the kit's skew stage size, whole samples (as 'firmware --max-skew';
+                         default: the skew rounded up)
   --json                 print the report as JSON
 design options (without a network file):
   --rate HZ --band LO:HI --method fir|allpass|auto --target DB --taps N --sections N
@@ -189,6 +197,7 @@ export async function run(argv: string[]): Promise<number> {
       out: { type: 'string' },
       encoding: { type: 'string' },
       vectors: { type: 'string' },
+      'max-skew': { type: 'string' },
       json: { type: 'boolean' },
       help: { type: 'boolean', short: 'h' },
     },
@@ -224,7 +233,7 @@ export async function run(argv: string[]): Promise<number> {
   let net: Network;
   const file = positionals[0];
   if (file !== undefined) {
-    const designGiven = Object.keys(DESIGN_OPTIONS).filter((k) => v[k] !== undefined);
+    const designGiven = Object.keys(DESIGN_OPTIONS).filter((k) => k !== 'arithmetic' && v[k] !== undefined);
     if (designGiven.length > 0) {
       throw new UsageError(
         `a network file was given: drop the design options (--${designGiven.join(', --')})`,
@@ -289,7 +298,12 @@ export async function run(argv: string[]): Promise<number> {
   // Before rendering: will signal plus trims exceed full scale?
   const predictedPeaks = predictOutputPeaks(levels.peak, trims, net);
 
-  const gen = createQuadratureGenerator(net, { trims, sideband });
+  const arithmetic = arithmeticOpt(v.arithmetic);
+  const maxSkew = numberOpt('max-skew', v['max-skew']) ?? Math.ceil(Math.abs(trims.skewSamples ?? 0));
+  const gen = createQuadratureGenerator(
+    net,
+    arithmetic === 'double' ? { trims, sideband } : { trims, sideband, arithmetic, maxSkewSamples: maxSkew },
+  );
   const i = new Float32Array(frames);
   const q = new Float32Array(frames);
   const x = spec ? new Float32Array(frames) : input!;
@@ -306,7 +320,19 @@ export async function run(argv: string[]): Promise<number> {
   }
   const stats = { ...gen.stats };
   const report = await writeIqWavFile(v.out, i, q, fs, encoding);
-  if (typeof v.vectors === 'string') writeVectors(v.vectors, x, i, q);
+  if (typeof v.vectors === 'string') {
+    if (arithmetic === 'double') writeVectors(v.vectors, x, i, q);
+    else {
+      // The kit's own output, exactly (Q31 does not fit the float32 WAV samples), in digits that
+      // round-trip a double, so a host-check or firmware fed the same input can match bit for bit.
+      const k = renderKit(net, arithmetic, { ...ZERO_TRIMS, ...trims }, sideband === 'lower', maxSkew, x);
+      const rows = new Array<string>(x.length + 1);
+      rows[0] = 'n,input,i,q';
+      for (let n = 0; n < x.length; n++)
+        rows[n + 1] = `${n},${String(x[n])},${String(k.i[n])},${String(k.q[n])}`;
+      writeFileSync(v.vectors, `${rows.join('\n')}\n`);
+    }
+  }
 
   // Realised levels, read back from the output.
   let peakI = 0;

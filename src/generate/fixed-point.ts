@@ -12,8 +12,15 @@
  * a binary32 product or sum computed in double and rounded once equals the binary32 result
  * (Figueroa, "When is double rounding innocuous?", SIGNUM Newsletter 30(3), 1995).
  */
+import type { Trims } from '../core/trims.js';
 import type { KitArithmetic, KitPlan, KitTrimWords } from '../design/kit-arithmetic.js';
-import { coefficientFractionBits, KIT_WORD_LENGTHS } from '../design/kit-arithmetic.js';
+import {
+  coefficientFractionBits,
+  KIT_WORD_LENGTHS,
+  kitPlan,
+  kitTrimWords,
+} from '../design/kit-arithmetic.js';
+import type { Network } from '../design/network.js';
 
 const P16 = 65536;
 const MAX32 = 2147483647;
@@ -391,4 +398,43 @@ export class KitModel {
       outQ[j] = sat(vq + t.dcQ, this.sMin, this.sMax);
     }
   }
+}
+
+/**
+ * Runs full-scale input samples through a fresh kit model and returns the kit's output exactly, as
+ * full-scale doubles (Q31 outputs do not fit float32): what the compiled kit writes for this input.
+ * @param net a network document.
+ * @param arithmetic the kit's arithmetic.
+ * @param trims trims in the library's units (DESIGN.md §4).
+ * @param lowerSideband true for the lower sideband.
+ * @param maxSkew the kit's skew stage size, whole samples (0–16).
+ * @param input full-scale input samples.
+ * @returns `{ i, q }`, full-scale units.
+ * @throws {OrthotoneError} INVALID_DOCUMENT / INVALID_ARGUMENT as `kitPlan` and `kitTrimWords`.
+ * Reference: the kit's arithmetic (design/kit-arithmetic.ts).
+ */
+export function renderKit(
+  net: Network,
+  arithmetic: KitArithmetic,
+  trims: Trims,
+  lowerSideband: boolean,
+  maxSkew: number,
+  input: ArrayLike<number>,
+): { i: Float64Array; q: Float64Array } {
+  const m = new KitModel(
+    kitPlan(net, arithmetic),
+    maxSkew,
+    kitTrimWords(trims, lowerSideband, arithmetic, maxSkew),
+  );
+  const n = input.length;
+  const x = new Float64Array(n);
+  for (let k = 0; k < n; k++) x[k] = m.sampleFromFullScale(input[k]!);
+  const i = new Float64Array(n);
+  const q = new Float64Array(n);
+  m.processSamples(x, i, q, n);
+  for (let k = 0; k < n; k++) {
+    i[k] = m.sampleToFullScale(i[k]!);
+    q[k] = m.sampleToFullScale(q[k]!);
+  }
+  return { i, q };
 }

@@ -28,7 +28,10 @@ options:
   -h, --help         this help
 `;
 
-/** The folder holding the kit's C sources: `firmware/` beside `dist/` (built) or `src/` (sources). */
+/**
+ * The folder holding the kit's C sources: `firmware/` beside `dist/` (built) or `src/` (sources).
+ * @throws {Error} when the package has no `firmware/` folder (an incomplete install, a bug).
+ */
 export function firmwareSourceDir(): string {
   const here = dirname(fileURLToPath(import.meta.url));
   for (const up of ['..', join('..', '..')]) {

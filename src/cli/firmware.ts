@@ -97,7 +97,13 @@ export async function run(argv: string[]): Promise<number> {
   const netPath = positionals[0]!;
   const profilePath = typeof v.profile === 'string' ? v.profile : undefined;
   const sourceDir = firmwareSourceDir();
-  const names = [...FIRMWARE_SOURCE_FILES, 'ortho_config.h', 'ortho_coeffs.c', 'README.md'];
+  const names = [
+    ...FIRMWARE_SOURCE_FILES,
+    'ortho_config.h',
+    'ortho_coeffs.c',
+    'ortho_sections.c',
+    'README.md',
+  ];
   assertDistinctFiles(
     [
       ['NET.json', netPath],

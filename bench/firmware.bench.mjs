@@ -14,7 +14,13 @@ import { cpSync, mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { analyzeKitArithmetic, createNetworkRuntime, designNetwork, firmwareKitFiles } from '../dist/index.js';
+import {
+  analyzeKitArithmetic,
+  createNetworkRuntime,
+  createQuadratureGenerator,
+  designNetwork,
+  firmwareKitFiles,
+} from '../dist/index.js';
 import { timeIt } from './util.mjs';
 
 const here = dirname(fileURLToPath(import.meta.url));
@@ -31,18 +37,24 @@ function cBench(net, arithmetic) {
   const dir = mkdtempSync(join(tmpdir(), 'ortho-bench-'));
   try {
     const kit = firmwareKitFiles(net, { arithmetic });
-    for (const f of readdirSync(firmware)) if (/^ortho_.*\.[ch]$/.test(f)) cpSync(join(firmware, f), join(dir, f));
+    for (const f of readdirSync(firmware))
+      if (/^ortho_.*\.[ch]$/.test(f)) cpSync(join(firmware, f), join(dir, f));
     for (const [f, text] of Object.entries(kit.files)) writeFileSync(join(dir, f), text);
     cpSync(join(here, 'firmware_bench.c'), join(dir, 'firmware_bench.c'));
     const exe = join(dir, 'bench');
-    execFileSync('cc', [...FLAGS, '-o', exe, 'firmware_bench.c', 'ortho_kit.c', 'ortho_coeffs.c', 'ortho_sections.c'], { cwd: dir });
+    execFileSync(
+      'cc',
+      [...FLAGS, '-o', exe, 'firmware_bench.c', 'ortho_kit.c', 'ortho_coeffs.c', 'ortho_sections.c'],
+      { cwd: dir },
+    );
     const r = JSON.parse(execFileSync(exe, { encoding: 'utf8' }));
     const a = analyzeKitArithmetic(net, arithmetic);
     return {
       kitNsPerSample: r.kitNsPerSample,
       plainCascadeNsPerSample: r.plainNsPerSample,
       speedupVsPlainCascade: r.plainNsPerSample / r.kitNsPerSample,
-      outputsIdentical: arithmetic === 'float' ? 'n/a (the kit adds the anti-denormal offset)' : r.mismatches === 0,
+      outputsIdentical:
+        arithmetic === 'float' ? 'n/a (the kit adds the anti-denormal offset)' : r.mismatches === 0,
       operationsPerSample: a.operationsPerSample,
       cyclesPerSampleEstimateMcu: a.cyclesPerSampleEstimate,
       mcuMHzAtSampleRate: (a.cyclesPerSampleEstimate * net.sampleRate) / 1e6,
@@ -92,7 +104,52 @@ function plainCascade(net) {
   };
 }
 
-function jsBench(net) {
+/**
+ * A second plain cascade, the way one writes it with objects: each section an object with its
+ * coefficient and states as fields (monomorphic, so V8 keeps them in fast properties).
+ */
+function objectCascade(net) {
+  const mk = (br) => {
+    const secs = br.sections.map((s) => ({ a: s.a, m: s.order, x1: 0, x2: 0, y1: 0, y2: 0 }));
+    const line = new Float64Array(Math.max(1, br.delay));
+    let p = 0;
+    const d = br.delay;
+    return (x) => {
+      let v = x;
+      if (d > 0) {
+        v = line[p];
+        line[p] = x;
+        p = p + 1 === d ? 0 : p + 1;
+      }
+      for (const s of secs) {
+        if (s.m === 1) {
+          const y = s.a * (v - s.y1) + s.x1;
+          s.x1 = v;
+          s.y1 = y;
+          v = y;
+        } else {
+          const y = s.a * (v - s.y2) + s.x2;
+          s.x2 = s.x1;
+          s.x1 = v;
+          s.y2 = s.y1;
+          s.y1 = y;
+          v = y;
+        }
+      }
+      return v;
+    };
+  };
+  const fi = mk(net.branches.i);
+  const fq = mk(net.branches.q);
+  return (x, n, oi, oq) => {
+    for (let j = 0; j < n; j++) {
+      oi[j] = fi(x[j]);
+      oq[j] = fq(x[j]);
+    }
+  };
+}
+
+export function jsBench(net) {
   const N = 48000;
   const x = new Float64Array(N);
   for (let k = 0; k < N; k++) x[k] = Math.sin(k * 0.05) * 0.5 + Math.sin(k * 0.31) * 0.3;
@@ -106,17 +163,37 @@ function jsBench(net) {
   const runPlain = () => {
     for (let o = 0; o < N; o += 128) plain(x.subarray(o, o + 128), 128, oi, oq);
   };
+  const objects = objectCascade(net);
+  const runObjects = () => {
+    for (let o = 0; o < N; o += 128) objects(x.subarray(o, o + 128), 128, oi, oq);
+  };
+  // The generator with default options (network + trim stage), Float32 blocks of 128 as a worklet runs it.
+  const gen = createQuadratureGenerator(net);
+  const x32 = Float32Array.from(x);
+  const gi = new Float32Array(128);
+  const gq = new Float32Array(128);
+  const runGen = () => {
+    for (let o = 0; o < N; o += 128) gen.process(x32.subarray(o, o + 128), gi, gq);
+  };
   // Interleave the two several times and keep each one's best median, against drift on a shared machine.
   let tr = Number.POSITIVE_INFINITY;
   let tp = Number.POSITIVE_INFINITY;
+  let to = Number.POSITIVE_INFINITY;
+  let tg = Number.POSITIVE_INFINITY;
   for (let r = 0; r < 5; r++) {
     tr = Math.min(tr, timeIt(runRt, { minMs: 150 }));
     tp = Math.min(tp, timeIt(runPlain, { minMs: 150 }));
+    to = Math.min(to, timeIt(runObjects, { minMs: 150 }));
+    tg = Math.min(tg, timeIt(runGen, { minMs: 150 }));
   }
+  const base = Math.min(tp, to); // the faster plain cascade is the baseline
   return {
     runtimeNsPerSample: (tr * 1e6) / N,
-    plainCascadeNsPerSample: (tp * 1e6) / N,
-    speedupVsPlainCascade: tp / tr,
+    generatorDefaultNsPerSample: (tg * 1e6) / N,
+    plainCascadeArraysNsPerSample: (tp * 1e6) / N,
+    plainCascadeObjectsNsPerSample: (to * 1e6) / N,
+    runtimeVsPlainCascade: base / tr,
+    generatorDefaultVsPlainCascade: base / tg,
   };
 }
 

@@ -562,6 +562,9 @@ export class TrimStage {
       const dq = cur[4]!;
       const ioff = this.kc + this.bulk;
       const sBase = this.kc + this.steadyInt;
+      // The peak is clamped to OUTPUT_LIMIT once after the loop (min of a max = max of mins), and
+      // the guard is entered only when either sample needs it: the same output and counts as the
+      // general path, with fewer branches per sample.
       let peak = stats.peak;
       for (let j = 0; j < n; j++) {
         const p = wp + j;
@@ -572,15 +575,17 @@ export class TrimStage {
         let vq = hQ[p - sBase]! + dq;
         const ai = Math.abs(vi);
         const aq = Math.abs(vq);
-        if (!(ai >= OUTPUT_FLUSH && ai <= 1)) vi = guard(vi, stats);
-        if (!(aq >= OUTPUT_FLUSH && aq <= 1)) vq = guard(vq, stats);
-        if (ai > peak) peak = Math.min(ai, OUTPUT_LIMIT);
-        if (aq > peak) peak = Math.min(aq, OUTPUT_LIMIT);
+        const m = ai > aq ? ai : aq;
+        if (m > peak) peak = m;
+        if (!(ai >= OUTPUT_FLUSH && aq >= OUTPUT_FLUSH && m <= 1)) {
+          if (!(ai >= OUTPUT_FLUSH && ai <= 1)) vi = guard(vi, stats);
+          if (!(aq >= OUTPUT_FLUSH && aq <= 1)) vq = guard(vq, stats);
+        }
         outI[o + j] = vi;
         outQ[o + j] = vq;
       }
       this.wp = wp + n;
-      stats.peak = peak;
+      stats.peak = Math.min(peak, OUTPUT_LIMIT);
       stats.samplesOut += 2 * n;
       return;
     }

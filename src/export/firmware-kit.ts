@@ -327,7 +327,9 @@ function kitReadme(
     'Make trims on the host with `ortho_trims_from_units(&trims, gain_db, phase_deg, skew_samples,',
     'dc_i, dc_q, lower_sideband)` (`ortho_host.h`), or take them from a profile header. Order of the',
     "trims (orthotone DESIGN §4): Q' = G·(s·Q·cos φ + I·sin φ) with s = −1 for the lower sideband;",
-    `then Q' delayed by the skew (fractional, |skew| ≤ ${maxSkew} samples${maxSkew === 0 ? ': this kit has no skew stage, regenerate with --max-skew N' : ''}); then DC added last.`,
+    maxSkew === 0
+      ? 'then the skew (this kit has none: regenerate with --max-skew N for a fractional skew stage); then DC added last.'
+      : `then Q' delayed by the skew (fractional, |skew| ≤ ${maxSkew} samples, 4-point Lagrange; I' delayed by ${maxSkew + 1}); then DC added last.`,
     profile
       ? `\`ortho_init\` starts with the trims of the profile made ${profile.created} (\`${name}_profile_trims\`).${profile.correction ? " The profile's frequency-dependent correction is not part of the kit." : ''}`
       : '`ortho_init` starts with neutral trims.',

@@ -7,6 +7,7 @@
 // descent about 16 readings and Nelder–Mead about 28 for the same 90% at −60 dBc.
 import { performance } from 'node:perf_hooks';
 import {
+  applyTrimMismatch,
   calibrateCarrier,
   calibrateMultitone,
   calibrateSideband,
@@ -16,6 +17,8 @@ import {
   createRng,
   createVirtualExciter,
   drawDevice,
+  drawTrimMismatch,
+  EXACT_TRIMS,
   equivalentTrims,
   sidebandPoint,
   sidebandTrims,
@@ -91,10 +94,22 @@ const QUANTITIES = {
   },
 };
 
-/** Runs one method on one device; returns true suppression at the end and after each reading. */
-async function runMethod(method, qty, dev, budget, seed, readerOpts) {
-  const Q = QUANTITIES[qty];
-  const measure = Q.read(reader(dev, seed, readerOpts));
+/**
+ * Runs one method on one device; returns true suppression at the end and after each reading.
+ * `readerOpts.mismatch` (a TrimMismatch) sits between the trims asked for and those acting, its
+ * phase drift counted in readings; truth is then taken with the drift as at the end.
+ */
+async function runMethod(method, qty, dev, budget, seed, readerOpts = {}) {
+  const Q0 = QUANTITIES[qty];
+  const m = readerOpts.mismatch ?? EXACT_TRIMS;
+  let k = 0;
+  const Q = { ...Q0, truth: (d, t) => Q0.truth(d, applyTrimMismatch(m, t, k)) };
+  const raw = Q.read(reader(dev, seed, readerOpts));
+  const measure = (t) => {
+    const a = applyTrimMismatch(m, t, k);
+    k++;
+    return raw(a);
+  };
   const curve = [];
   if (method === 'seeker') {
     const r = await Q.seeker({
@@ -102,7 +117,14 @@ async function runMethod(method, qty, dev, budget, seed, readerOpts) {
       maxReadings: budget,
       onReading: (s) => curve.push(Q.truth(dev, s.bestTrims)),
     });
-    return { final: Q.truth(dev, r.trims), used: r.readings, curve, startTrue: Q.truth(dev, ZERO_TRIMS) };
+    return {
+      final: Q.truth(dev, r.trims),
+      used: r.readings,
+      curve,
+      startTrue: Q0.truth(dev, applyTrimMismatch(m, ZERO_TRIMS, 0)),
+      stopReason: r.stopReason,
+      lastReadDb: [...r.history].reverse().find((h) => Number.isFinite(h.levelDb))?.levelDb ?? Number.NaN,
+    };
   }
   const make = method === 'coordinate-descent' ? createCoordinateDescent : createNelderMead;
   const s = make({ start: [0, 0], curvature: Q.curvature, maxReadings: budget, maxStep: Q.maxStep });
@@ -114,8 +136,57 @@ async function runMethod(method, qty, dev, budget, seed, readerOpts) {
     final: Q.truth(dev, Q.toTrims(s.best().point)),
     used: s.count,
     curve,
-    startTrue: Q.truth(dev, ZERO_TRIMS),
+    startTrue: Q0.truth(dev, applyTrimMismatch(m, ZERO_TRIMS, 0)),
   };
+}
+
+/**
+ * Issue 9's mismatch bench: each device gets trims drawn from gain and phase scale 0.65–1.45×,
+ * phase→gain leak up to 0.03 dB/°, gain→phase up to 0.4 °/dB, DC scaled 0.7–1.4× and rotated
+ * ±0.15 rad, phase drift up to ±0.004°/reading (drawTrimMismatch defaults); 16 readings; the same
+ * devices, seeds and drawn trims for every method. Several mismatch seeds, pooled and per seed.
+ */
+async function mismatch(devs, seeds) {
+  const methods = ['seeker', 'coordinate-descent', 'nelder-mead'];
+  const out = {};
+  for (const qty of ['sideband', 'carrier']) {
+    out[qty] = {};
+    for (const meth of methods) {
+      const all = [];
+      const perSeed = [];
+      let worse = 0;
+      let earlyFloor = 0;
+      for (const seed of seeds) {
+        const rng = createRng(seed);
+        const finals = [];
+        for (const [i, dev] of devs.entries()) {
+          const mm = drawTrimMismatch(rng);
+          const r = await runMethod(meth, qty, dev, 16, seed * 1000 + i, { mismatch: mm });
+          finals.push(r.final);
+          all.push(r.final);
+          if (r.final < r.startTrue - 0.01) worse++;
+          if (r.stopReason === 'floor' && FLOOR <= r.lastReadDb - 10) earlyFloor++;
+        }
+        perSeed.push({ seed, medianDb: round(q(finals, 0.5)), p90Db: round(q(finals, 0.1)) });
+      }
+      out[qty][meth] = {
+        runs: all.length,
+        medianDbAt16: round(q(all, 0.5)),
+        p90DbAt16: round(q(all, 0.1)),
+        worstDbAt16: round(q(all, 0)),
+        worseThanStart: worse,
+        ...(meth === 'seeker' ? { floorStopsWithFloor10DbBelowLastReading: earlyFloor, perSeed } : {}),
+      };
+    }
+    const s = out[qty].seeker;
+    out[qty].pass =
+      s.medianDbAt16 >= 78 &&
+      s.p90DbAt16 >= 70 &&
+      s.worseThanStart === 0 &&
+      s.floorStopsWithFloor10DbBelowLastReading === 0 &&
+      s.perSeed.every((x) => x.medianDb >= 78 && x.p90Db >= 70);
+  }
+  return out;
 }
 
 const readingsTo = (curve, db) => {
@@ -169,7 +240,8 @@ async function compare(devs) {
       medianDbAt10_seekerMinusCd: round(s.medianDbAt10 - out[qty]['coordinate-descent'].medianDbAt10),
       medianDbAt10_seekerMinusNm: round(s.medianDbAt10 - out[qty]['nelder-mead'].medianDbAt10),
     };
-    out[qty].pass = s.medianDbAt10 >= 70 && s.p90DbAt16 >= 65 && s.worseThanStartAt16 === 0;
+    // Issue 9 (exact-scale trims): median ≥ 80 dB within 10 readings, p90 ≥ 70 dB within 16.
+    out[qty].pass = s.medianDbAt10 >= 80 && s.p90DbAt16 >= 70 && s.worseThanStartAt16 === 0;
   }
   return out;
 }
@@ -186,10 +258,10 @@ async function outliers(devs, opts) {
     }
     res[qty] = { medianDbAt16: round(q(at16, 0.5)), p90DbAt16: round(q(at16, 0.1)), worseThanStart };
   }
-  // Issue 5: still ≥ 60 dB in the median within 16 readings, and never worse than the start.
+  // Issue 9: with 5% of readings 10 dB off, median ≥ 75 dB within 16, never worse than the start.
   res.pass =
-    res.sideband.medianDbAt16 >= 60 &&
-    res.carrier.medianDbAt16 >= 60 &&
+    res.sideband.medianDbAt16 >= 75 &&
+    res.carrier.medianDbAt16 >= 75 &&
     res.sideband.worseThanStart === 0 &&
     res.carrier.worseThanStart === 0;
   return res;
@@ -294,6 +366,7 @@ export async function run() {
       published: 'REFERENCES.md §6 [C]: 6–7 readings to 60 dB in 90%, median 80 dB after 10; CD ~16, NM ~28',
     },
     comparison: await compare(devs),
+    mismatch16Readings: await mismatch(devs.slice(0, 60), [1, 2, 3]),
     outliers5pctHigh10Db: await outliers(devs, { outliersHigh: 0.05 }),
     outliers5pctEitherSign10Db: await outliers(devs, { outliersBoth: 0.05 }),
     multitone: await multitone(),

@@ -7,6 +7,7 @@ export * from './calibrate/index.js';
 export * from './core/index.js';
 export * from './design/index.js';
 export * from './device/index.js';
+export * from './emissions/index.js';
 export * from './export/index.js';
 export * from './generate/index.js';
 export * from './measure/index.js';

@@ -1,25 +1,32 @@
-// The README's TypeScript example is part of the documentation users copy: it must type-check under
-// the project's strict settings and run. (STYLE.md habit 12: a small example that is type-checked.)
-import { execFileSync } from 'node:child_process';
+// The README's TypeScript examples are the documentation users copy: they must type-check under the
+// project's strict settings against the BUILT package's types, run against the BUILT package (dist/,
+// imported as 'orthotone' exactly as written, resolved by Node's package self-reference through
+// package.json `exports`), and print what the README says they print.
+// dist/ is rebuilt first when older than src/ (tests/support/dist-setup.ts).
+import { spawnSync } from 'node:child_process';
 import { mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { join, resolve } from 'node:path';
+import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
+import { ROOT as root } from './support/built.js';
 
-const root = resolve(__dirname, '..');
+// Inside the repository, so that `import … from 'orthotone'` resolves to this package's dist/.
 const dir = join(root, 'tests', 'artifacts', 'readme');
-const blocks = [...readFileSync(join(root, 'README.md'), 'utf8').matchAll(/```ts\n([\s\S]*?)```/g)].map((m) =>
-  m[1]!.replaceAll("from 'orthotone'", `from '${join(root, 'src', 'index.js')}'`),
+const out = join(dir, 'js');
+const blocks = [...readFileSync(join(root, 'README.md'), 'utf8').matchAll(/```ts\n([\s\S]*?)```/g)].map(
+  (m) => m[1]!,
 );
 
-describe('README examples', () => {
+describe('README examples, against the built package', () => {
   mkdirSync(dir, { recursive: true });
   afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-  it('has at least one TypeScript example', () => {
+  it('has at least one TypeScript example, importing the package by name', () => {
     expect(blocks.length).toBeGreaterThan(0);
+    for (const b of blocks) expect(b).toMatch(/from 'orthotone(\/node)?'/);
+    expect(blocks.join('\n')).not.toMatch(/from '\.\.?\//);
   });
 
-  it('type-checks every example with the project settings', () => {
+  it('type-checks every example against dist/*.d.ts and compiles it to JavaScript', () => {
     const files = blocks.map((code, k) => {
       const f = join(dir, `example-${k}.ts`);
       writeFileSync(f, `${code}\nexport {};\n`);
@@ -30,23 +37,32 @@ describe('README examples', () => {
       JSON.stringify({
         extends: join(root, 'tsconfig.json'),
         include: files,
-        compilerOptions: { noEmit: true },
+        compilerOptions: { noEmit: false, outDir: out, rootDir: dir, declaration: false, sourceMap: false },
       }),
     );
-    execFileSync(join(root, 'node_modules', '.bin', 'tsc'), ['-p', join(dir, 'tsconfig.json')], {
+    const tsc = spawnSync(join(root, 'node_modules', '.bin', 'tsc'), ['-p', join(dir, 'tsconfig.json')], {
       encoding: 'utf8',
     });
+    expect(tsc.status, tsc.stdout + tsc.stderr).toBe(0);
+    // The compiled import still names the package, not a source path.
+    expect(readFileSync(join(out, 'example-0.js'), 'utf8')).toMatch(/from 'orthotone'/);
   });
 
-  it('runs every example without throwing', async () => {
-    const log = console.log;
-    const printed: unknown[][] = [];
-    console.log = (...a: unknown[]) => printed.push(a);
-    try {
-      for (let k = 0; k < blocks.length; k++) await import(join(dir, `example-${k}.ts`));
-    } finally {
-      console.log = log;
+  it('the library example runs on dist/ and prints a network meeting 60 dB and finite trims', () => {
+    const r = spawnSync('node', [join(out, 'example-0.js')], { cwd: dir, encoding: 'utf8' });
+    expect(r.stderr).toBe('');
+    expect(r.status).toBe(0);
+    // Line 1: `console.log(net.kind, worst.toFixed(1), 'dB')` for a design asked for 60 dB.
+    const lines = r.stdout.trim().split('\n');
+    const m = /^(fir|allpass) (\d+\.\d) dB$/.exec(lines[0]!);
+    expect(m, r.stdout).not.toBeNull();
+    expect(Number(m![2])).toBeGreaterThanOrEqual(60);
+    // Then the trims object: the four trims, each a finite number (Node's inspect format).
+    const rest = lines.slice(1).join('\n');
+    for (const k of ['gainDb', 'phaseDeg', 'dcI', 'dcQ']) {
+      const v = new RegExp(`${k}: (-?[0-9.e+-]+)`).exec(rest);
+      expect(v, `${k} in ${rest}`).not.toBeNull();
+      expect(Number.isFinite(Number(v![1]))).toBe(true);
     }
-    expect(printed.length).toBeGreaterThan(0);
   });
 });

@@ -27,7 +27,6 @@ import {
   measureTones,
   type SidebandReading,
   TOLERANCE_PRESETS,
-  type TolerancePreset,
   type Trims,
 } from 'orthotone';
 import { type Running, workletUrl } from './engine.js';
@@ -42,38 +41,25 @@ export interface Levels {
 const READ_SAMPLES = 6144;
 
 /**
- * An invented bench of our own whose imbalance changes across the band: the hand-built bench's
- * parts plus up to ±2 µs of codec skew between the channels and ±10% spread on 20 Hz coupling and
- * 20 kHz anti-imaging corners. Skew τ gives a phase error of 2πfτ (REFERENCES.md §6), so one pair
- * of trims cannot null the whole band: the multi-tone correction filter can.
+ * The invented benches the virtual exciter can stand for: the command line's preset name (its
+ * `--preset`, simulate/ TOLERANCE_PRESETS), the option text (that name and plain words), a
+ * description. `skew-bench` changes its imbalance across the band (skew τ gives a phase error of
+ * 2πfτ, REFERENCES.md §6): one pair of trims cannot null the whole band; the correction filter can.
  */
-const SKEW_BENCH: Readonly<TolerancePreset> = Object.freeze({
-  ...TOLERANCE_PRESETS['homebrew-bench']!,
-  skewSeconds: 2e-6,
-  couplingHighPassHz: 20,
-  antiImagingLowPassHz: 20000,
-  cornerPct: 10,
-});
-
-/** The invented benches the virtual exciter can stand for: value, short name, description. */
 export const VIRTUAL_BENCHES: [string, string, string][] = [
-  ['homebrew-bench', 'Hand-built bench', '0.5% resistors, 6 mV offsets, 16-bit codec, DC-coupled.'],
-  ['one-percent', 'Kit build', '1% resistors, 2 mV offsets, 16-bit codec.'],
-  ['precision', 'Precision build', '0.1% resistors, 0.5 mV offsets, 24-bit codec.'],
+  ['homebrew-bench', 'homebrew-bench: hand-built', '0.5% resistors, 6 mV offsets, 16-bit codec, DC-coupled.'],
+  ['one-percent', 'one-percent: kit build', '1% resistors, 2 mV offsets, 16-bit codec.'],
+  ['precision', 'precision: careful build', '0.1% resistors, 0.5 mV offsets, 24-bit codec.'],
   [
     'skew-bench',
-    'Hand-built, skewed codec',
+    'skew-bench: skewed codec',
     'The hand-built bench plus up to 2 µs between the codec channels and ±10% on its filter corners: its imbalance changes across the band.',
   ],
 ];
 
 /** A device drawn from a preset and a seed. */
 export function virtualDevice(preset: string, seed: number): ExciterModel {
-  const t =
-    preset === 'skew-bench'
-      ? SKEW_BENCH
-      : (TOLERANCE_PRESETS[preset] ?? TOLERANCE_PRESETS['homebrew-bench']!);
-  return drawDevice(t, seed);
+  return drawDevice(TOLERANCE_PRESETS[preset] ?? TOLERANCE_PRESETS['homebrew-bench']!, seed);
 }
 
 /**

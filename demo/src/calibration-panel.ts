@@ -19,23 +19,29 @@ import {
   virtualDevice,
   virtualReader,
 } from './bench.js';
-import { download, field, figure, fmt, h, numberInput, select } from './dom.js';
-import type { Engine } from './engine.js';
+import { download, type Figure, field, figure, fmt, h, numberInput, select, statusLine } from './dom.js';
+import { DEFAULT_TONE_HZ, type Engine } from './engine.js';
 import { linePlot } from './plot.js';
 
 /** Tones of the multi-tone calibration, and of the denser check of the band. */
 const CAL_TONES = 5;
 /** Nine tones over a decade lie a third of an octave apart: 100 Hz at 300 Hz, resolved by 4096-sample frames. */
 const CHECK_TONES = 9;
+/**
+ * The analyzer floor the virtual bench's figures are compared with, dBc: the command line's default
+ * `--floor` for a simulated analyzer. The virtual exciter's own figures are the model's true levels;
+ * a real analyzer reads no deeper than its floor.
+ */
+const ANALYZER_FLOOR_DBC = -70;
 
 export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): { el: HTMLElement } {
   const mode = select(
     [
       ['virtual', 'Virtual exciter (in this page)'],
-      ['live', 'Live: my exciter, via sound card'],
+      ['live', 'Live: my exciter'],
     ],
     'virtual',
-    { id: 'cal-mode' },
+    { id: 'cal-mode', 'aria-describedby': 'cal-mode-hint' },
   );
   const kind = select(
     [
@@ -57,7 +63,8 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
   bench.addEventListener('change', showBench);
   showBench();
   const seed = numberInput(711, { min: 0, step: 1, id: 'cal-seed' });
-  const tone = numberInput(1800, { min: 50, step: 10, id: 'cal-tone' });
+  // The command line's default test tone (`calibrate --tone`, 1000 Hz).
+  const tone = numberInput(DEFAULT_TONE_HZ, { min: 50, step: 10, id: 'cal-tone' });
   const budget = numberInput(10, { min: 4, max: 60, step: 1, id: 'cal-budget' });
   const taps = select(
     [
@@ -79,6 +86,7 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
   );
   const settle = numberInput(400, { min: 20, step: 10, id: 'cal-settle' });
   const readBtn = h('button', { class: 'secondary', id: 'cal-read' }, 'Read the receiver once');
+  const readStatus = statusLine('cal-read-status');
   const liveBox = h(
     'div',
     { hidden: true },
@@ -97,13 +105,14 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
       '(wanted and unwanted at 800 and 2200 Hz). Check the hookup with one reading first.',
     ),
     readBtn,
+    readStatus.el,
   );
   const virtBox = h(
     'div',
     {},
     field('Bench', bench),
     benchHint,
-    field('Unit (seed)', seed, 'each seed draws a different unit from the tolerances'),
+    field('Unit number', seed, 'each number draws another unit within the bench’s tolerances'),
   );
   const toneRow = field('Test tone, Hz', tone);
   const multiBox = h(
@@ -117,9 +126,9 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
       'reads every tone’s unwanted sideband. The per-tone nulls become a short filter pair on Q.',
     ),
   );
-  const runBtn = h('button', { id: 'cal-run' }, 'Calibrate sideband and carrier');
+  const runBtn = h('button', { id: 'cal-run' }, 'Calibrate');
   const stopBtn = h('button', { class: 'stop', disabled: true }, 'Stop');
-  const status = h('div', { class: 'status', id: 'cal-status' });
+  const status = statusLine('cal-status');
   const notes = h('ul', { class: 'notes', id: 'cal-notes' });
   const saveBox = h(
     'div',
@@ -131,8 +140,8 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
 
   // Live: one reading of the receiver.
   const rxFigs = {
-    sideband: figure('Sideband now'),
-    carrier: figure('Carrier now'),
+    sideband: figure('Sideband now', 'below the tone'),
+    carrier: figure('Carrier now', 'below the tone'),
     wanted: figure('Wanted tone'),
     tuning: figure('Tuning error'),
   };
@@ -145,13 +154,15 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
 
   // One tone: trims.
   const figs = {
-    sbStart: figure('Sideband before'),
-    sbEnd: figure('Sideband after'),
-    crStart: figure('Carrier before'),
-    crEnd: figure('Carrier after'),
+    sbStart: figure('Sideband before', 'below the tone'),
+    sbEnd: figure('Sideband after', 'below the tone'),
+    crStart: figure('Carrier before', 'below the tone'),
+    crEnd: figure('Carrier after', 'below the tone'),
     readings: figure('Readings'),
   };
   const trimsOut = h('pre', { class: 'hint', id: 'cal-trims' });
+  // What the figures are: the model's true levels (virtual) or what the receiver read (live).
+  const figNote = h('p', { class: 'hint', id: 'cal-fig-note' });
   const tableHead = h('thead');
   const tableBody = h('tbody');
   const plots = h('div');
@@ -159,6 +170,7 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
     'div',
     {},
     h('div', { class: 'figures' }, ...Object.values(figs).map((f) => f.el)),
+    figNote,
     plots,
     h('h3', {}, 'Trims found'),
     trimsOut,
@@ -166,9 +178,9 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
 
   // Across the band: correction filter.
   const mfigs = {
-    before: figure('Worst over the band, before'),
-    single: figure('Best single trims'),
-    after: figure('With the correction filter'),
+    before: figure('Worst in the band, before'),
+    single: figure('Best single trims', 'worst in the band'),
+    after: figure('With the correction filter', 'worst in the band'),
     readings: figure('Readings'),
   };
   const mplots = h('div');
@@ -176,6 +188,12 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
     'div',
     { hidden: true, id: 'cal-multi' },
     h('div', { class: 'figures' }, ...Object.values(mfigs).map((f) => f.el)),
+    h(
+      'p',
+      { class: 'hint' },
+      'Model figures: the virtual exciter’s true levels. A real analyzer reads no deeper than its floor ',
+      `(${-ANALYZER_FLOOR_DBC} dB below the tone for a ${ANALYZER_FLOOR_DBC} dBc floor).`,
+    ),
     mplots,
   );
 
@@ -197,14 +215,13 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
   );
   const el = h(
     'section',
-    { class: 'panel', id: 'panel-calibrate' },
-    h('h2', {}, 'Null the carrier and the unwanted sideband'),
+    { class: 'panel', id: 'panel-calibrate', 'aria-labelledby': 'cal-title' },
+    h('h2', { id: 'cal-title' }, 'Null the carrier and the unwanted sideband'),
     h(
       'p',
       { class: 'lead' },
-      'Each reading sets the trims, waits for the path to settle, listens, and reads how far the unwanted ',
-      'sideband and the carrier lie below the wanted tone. The seeker fits the shape of the null from a ',
-      'handful of readings and jumps to its bottom, instead of turning knobs one at a time.',
+      'Each reading sets the trims, lets the sound settle and reads how far the unwanted sideband and the ',
+      'carrier lie below the wanted tone; from a handful of readings the page works out where the null is.',
     ),
     h(
       'div',
@@ -212,21 +229,32 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
       h(
         'div',
         {},
-        h('fieldset', {}, h('legend', {}, 'Bench'), field('Readings from', mode), virtBox, liveBox),
         h(
           'fieldset',
           {},
           h('legend', {}, 'Run'),
-          field('Calibrate', kind),
-          toneRow,
+          field('What to calibrate', kind),
+          h('div', { class: 'row' }, toneRow, field('Most readings', budget)),
           multiBox,
-          field('Most readings', budget),
           runBtn,
           stopBtn,
+          status.el,
+          notes,
+          saveBox,
         ),
-        status,
-        notes,
-        saveBox,
+        h(
+          'fieldset',
+          {},
+          h('legend', {}, 'Bench'),
+          field('Readings from', mode),
+          h(
+            'small',
+            { class: 'hint', id: 'cal-mode-hint' },
+            'live: through the sound card and your receiver',
+          ),
+          virtBox,
+          liveBox,
+        ),
       ),
       h(
         'div',
@@ -239,14 +267,21 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
           singleBox,
           multiOut,
           h('h3', {}, 'Readings'),
-          h('table', { id: 'cal-table' }, tableHead, tableBody),
+          h(
+            'table',
+            { id: 'cal-table' },
+            h('caption', { class: 'hint' }, 'Each reading: the trims it was taken at and the levels read'),
+            tableHead,
+            tableBody,
+          ),
         ),
       ),
     ),
   );
   const conv = linePlot(plots, {
-    title: 'Convergence',
+    title: 'Readings: sideband and carrier below the wanted tone',
     xLabel: 'reading',
+    xUnit: '',
     integerX: true,
     yLabel: 'dBc',
     series: [
@@ -282,7 +317,7 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
     multiBox.hidden = !multi;
     singleBox.hidden = multi;
     multiOut.hidden = !multi;
-    runBtn.textContent = multi ? 'Calibrate across the band' : 'Calibrate sideband and carrier';
+    runBtn.textContent = multi ? 'Calibrate the band' : 'Calibrate';
     budget.value = multi ? '24' : '10';
     if (multi && bench.value === 'homebrew-bench') bench.value = 'skew-bench';
     showBench();
@@ -321,8 +356,8 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
     document.getElementById('cal-results')!.hidden = false;
   }
   function say(text: string, error = false): void {
-    status.className = error ? 'status error' : 'status';
-    status.textContent = text;
+    if (error) status.fail(text);
+    else status.say(text);
   }
   function showNotes(list: Diagnosis[], extra: string | null = null): void {
     notes.replaceChildren(...list.map((d) => h('li', {}, d.message)), ...(extra ? [h('li', {}, extra)] : []));
@@ -333,10 +368,15 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
     if (sb.length < 4 || spread(sb) > 1 || spread(cr) > 1) return null;
     return `The readings hardly changed while the trims moved (sideband within ${fmt(spread(sb), 2)} dB, carrier within ${fmt(spread(cr), 2)} dB): check that the generator's I and Q reach the exciter, that the receiver hears this transmission, and that its audio comes back into the input you allowed.`;
   }
+  /** A model figure as an analyzer with the CLI's default floor would read it. */
+  function readable(db: number): string {
+    return db > -ANALYZER_FLOOR_DBC ? `≥ ${-ANALYZER_FLOOR_DBC} dB` : `${fmt(db)} dB`;
+  }
   function busy(on: boolean): void {
     runBtn.disabled = on;
     readBtn.disabled = on;
     stopBtn.disabled = !on;
+    status.el.setAttribute('aria-busy', String(on));
   }
 
   /** Live settings, checked; throws an Error naming the fix. */
@@ -361,17 +401,26 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
       const running = engine.running ?? (await engine.start());
       const rx = await receiverCapture(running);
       stop = rx.stop;
-      say('Reading the receiver…');
+      readStatus.busy('Reading the receiver…');
       const fs = running.ctx.sampleRate;
       const cap = await rx.capture.capture(Math.round(0.25 * fs), {
         skipFrames: Math.round((Number(settle.value) / 1000) * fs),
       });
       const r = readReceiverAudio(cap.channels[0]!, fs, opts);
       rxBox.hidden = false;
-      rxFigs.sideband.set(`${fmt(r.sidebandSuppressionDb)} dB`);
-      rxFigs.carrier.set(`${fmt(r.carrierSuppressionDb)} dB`);
-      rxFigs.wanted.set(`${fmt(r.wanted.levelDbfs)} dBFS`, r.wanted.levelDbfs < -60 ? 'bad' : '');
-      rxFigs.tuning.set(`${fmt(r.frequencyErrorHz)} Hz`, Math.abs(r.frequencyErrorHz) > 20 ? 'bad' : '');
+      const rxTone = `tone read at ${fmt(r.wanted.levelDbfs)} dBFS`;
+      rxFigs.sideband.set(`${fmt(r.sidebandSuppressionDb)} dB`, '', rxTone);
+      rxFigs.carrier.set(`${fmt(r.carrierSuppressionDb)} dB`, '', rxTone);
+      rxFigs.wanted.set(
+        `${fmt(r.wanted.levelDbfs)} dBFS`,
+        r.wanted.levelDbfs < -60 ? 'bad' : '',
+        r.wanted.levelDbfs < -60 ? 'too weak: raise the receiver audio' : undefined,
+      );
+      rxFigs.tuning.set(
+        `${fmt(r.frequencyErrorHz)} Hz`,
+        Math.abs(r.frequencyErrorHz) > 20 ? 'bad' : '',
+        Math.abs(r.frequencyErrorHz) > 20 ? 'retune the receiver' : undefined,
+      );
       el.dataset['reading'] = JSON.stringify({
         sidebandDb: r.sidebandSuppressionDb,
         carrierDb: r.carrierSuppressionDb,
@@ -379,11 +428,11 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
         frequencyErrorHz: r.frequencyErrorHz,
         sidebandMeasurableDb: r.sidebandMeasurableDb,
       });
-      say(
+      readStatus.say(
         `Receiver: wanted tone ${fmt(r.wanted.levelDbfs)} dBFS at ${fmt(r.wanted.frequencyHz)} Hz; unwanted sideband ${fmt(r.sidebandSuppressionDb)} dB and carrier ${fmt(r.carrierSuppressionDb)} dB below it (this capture could show up to ${fmt(r.sidebandMeasurableDb)} dB).`,
       );
     } catch (e) {
-      say(e instanceof Error ? e.message : String(e), true);
+      readStatus.fail(e instanceof Error ? e.message : String(e));
     } finally {
       stop?.();
       busy(false);
@@ -399,6 +448,11 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
     tableBody.replaceChildren();
     notes.replaceChildren();
     saveBox.hidden = true;
+    // Nothing from an earlier run stays up while (or if) this one fails.
+    for (const f of [...Object.values(figs), ...Object.values(mfigs)] as Figure[]) f.clear();
+    figNote.textContent = '';
+    trimsOut.textContent = '';
+    status.busy('Starting…');
     return ac;
   }
 
@@ -481,10 +535,18 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
       });
       const t = r.result.trims;
       onTrims(t);
-      figs.sbStart.set(`${fmt(-r.start.sidebandDb)} dB`);
-      figs.crStart.set(`${fmt(-r.start.carrierDb)} dB`);
-      figs.sbEnd.set(`${fmt(-r.verified.sidebandDb)} dB`, -r.verified.sidebandDb >= 60 ? 'good' : 'bad');
-      figs.crEnd.set(`${fmt(-r.verified.carrierDb)} dB`, -r.verified.carrierDb >= 60 ? 'good' : 'bad');
+      // Every suppression figure says the tone level it is read against (it moves the carrier figure).
+      const toneAt = `tone ${fmt(engine.levelDb)} dBFS`;
+      const end = (db: number) =>
+        [db >= 60 ? 'good' : 'bad', `${db >= 60 ? '60 dB or more' : 'under 60 dB'}, ${toneAt}`] as const;
+      figs.sbStart.set(`${fmt(-r.start.sidebandDb)} dB`, '', toneAt);
+      figs.crStart.set(`${fmt(-r.start.carrierDb)} dB`, '', toneAt);
+      figs.sbEnd.set(`${fmt(-r.verified.sidebandDb)} dB`, ...end(-r.verified.sidebandDb));
+      figs.crEnd.set(`${fmt(-r.verified.carrierDb)} dB`, ...end(-r.verified.carrierDb));
+      const kindOfFigures = liveOpts
+        ? `Read by your receiver through the sound card, ${toneAt} at ${toneHz} Hz: real readings, no deeper than the receiver's own floor.`
+        : `Virtual bench, ${toneAt} at ${toneHz} Hz. True figures of the model; an analyzer with a ${ANALYZER_FLOOR_DBC} dBc floor would read after: sideband ${readable(-r.verified.sidebandDb)}, carrier ${readable(-r.verified.carrierDb)}.`;
+      figNote.textContent = kindOfFigures;
       figs.readings.set(String(r.result.readings));
       trimsOut.textContent = `gainDb ${fmt(t.gainDb, 4)}   phaseDeg ${fmt(t.phaseDeg, 4)}   dcI ${fmt(t.dcI, 6)}   dcQ ${fmt(t.dcQ, 6)}\n(applied to the generator; see panel 2)`;
       const found = [...r.result.sideband.diagnosis, ...r.result.carrier.diagnosis];
@@ -508,7 +570,7 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
       };
       saveBox.hidden = false;
       say(
-        `Done after ${r.result.readings} readings: sideband ${fmt(-r.verified.sidebandDb)} dB and carrier ${fmt(-r.verified.carrierDb)} dB below the wanted tone (fresh reading).`,
+        `Done after ${r.result.readings} readings: sideband ${fmt(-r.verified.sidebandDb)} dB and carrier ${fmt(-r.verified.carrierDb)} dB below the wanted tone (fresh reading; ${liveOpts ? 'as read' : `model figures, readable ${readable(-r.verified.sidebandDb)} / ${readable(-r.verified.carrierDb)} on a ${ANALYZER_FLOOR_DBC} dBc analyzer`}).`,
       );
       return r;
     } catch (e) {
@@ -523,7 +585,6 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
   async function runMulti(): Promise<MultitoneRun | undefined> {
     const ac = beginRun();
     band.setData([], [[], [], []]);
-    for (const f of Object.values(mfigs)) f.set('—');
     try {
       const net = engine.network;
       const tonesHz = logTones(net.band, CAL_TONES);
@@ -562,7 +623,11 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
       const worst = (x: number[]) => Math.min(...x);
       mfigs.before.set(`${fmt(worst(r.before))} dB`);
       mfigs.single.set(`${fmt(worst(r.single))} dB`);
-      mfigs.after.set(`${fmt(worst(r.after))} dB`, worst(r.after) > worst(r.single) ? 'good' : 'bad');
+      mfigs.after.set(
+        `${fmt(worst(r.after))} dB`,
+        worst(r.after) > worst(r.single) ? 'good' : 'bad',
+        worst(r.after) > worst(r.single) ? 'beats single trims' : 'no better than single trims',
+      );
       mfigs.readings.set(String(r.result.readings));
       band.setData(r.verifyHz, [r.before, r.single, r.after]);
       onTrims(r.result.trims);

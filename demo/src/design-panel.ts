@@ -160,10 +160,11 @@ export function designPanel(onUse: (net: Network) => void): DesignPanel {
     ),
   );
   // Plots span the band and a little beyond it (shaded), so the edges show where the error turns up.
-  let view: { range: [number, number]; band: [number, number]; phaseSpan: number } = {
+  let view: { range: [number, number]; band: [number, number]; phaseSpan: number; worst: string } = {
     range: [270, 3300],
     band: [300, 3000],
     phaseSpan: 0.1,
+    worst: '',
   };
   const phasePlot = linePlot(plots, {
     title: 'Phase error across the band (I − Q − 90°; shaded: outside the band)',
@@ -189,6 +190,8 @@ export function designPanel(onUse: (net: Network) => void): DesignPanel {
     ],
     xRange: () => view.range,
     shadeOutside: () => view.band,
+    describe: () =>
+      `Predicted opposite-sideband suppression. Worst in the band ${view.worst} (beyond the band edges, shaded, it falls off).`,
   });
 
   // Designs run in a worker; a new request replaces one still running.
@@ -299,6 +302,7 @@ export function designPanel(onUse: (net: Network) => void): DesignPanel {
       range: r.range,
       band: [net.band[0], net.band[1]],
       phaseSpan: Math.max(1e-6, 1.6 * a.maxPhaseErrorDeg),
+      worst: `${fmt(a.worst.suppressionDb)} dB at ${fmt(a.worst.atHz, 0)} Hz`,
     };
     const w = r.wide;
     phasePlot.setData(w.frequencyHz, [w.phaseErrorDeg]);
@@ -320,7 +324,9 @@ export function designPanel(onUse: (net: Network) => void): DesignPanel {
       if (!r.ok) {
         clearFigures(`No design: ${r.message}`);
         setAvailable(false);
-        line.fail(`${prefix}${r.message} The figures and downloads are cleared until a design succeeds.`);
+        line.fail(
+          `${prefix}${r.message.replace(/[.\s]*$/, '.')} Figures and downloads are cleared until a design succeeds.`,
+        );
         return false;
       }
       panel.network = r.network;

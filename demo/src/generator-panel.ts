@@ -76,7 +76,7 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
       ['multitone', 'Tones across the band'],
       ['sweep', 'Sweep'],
       ['noise', 'Noise (band-limited)'],
-      ['input', 'Sound card input (microphone or line)'],
+      ['input', 'Sound card input'],
       ['silence', 'Silence (carrier only)'],
     ],
     'tone',
@@ -346,11 +346,16 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
     startBtn.className = r ? 'stop' : '';
     if (r)
       ok(
-        `Running at ${r.ctx.sampleRate} Hz, ${engine.network.kind} network, ${engine.network.band[0]}–${engine.network.band[1]} Hz.`,
+        `Running at ${r.ctx.sampleRate} Hz, ${engine.network.kind === 'fir' ? 'Hilbert FIR' : 'all-pass'} network, ${engine.network.band[0]}–${engine.network.band[1]} Hz.`,
       );
     else {
       ok('Stopped.');
       scope.clear();
+      // The monitor reads a running generator only: no figure from the last run stays up.
+      for (const f of [...Object.values(figs), ...Object.values(two), ...Object.values(multi)]) f.clear();
+      spec.clear('Audio stopped: start it to see the spectrum.');
+      delete twoBox.dataset['reading'];
+      delete multiBox.dataset['reading'];
     }
   });
   engine.onCorrection((c) => {

@@ -5,9 +5,11 @@
 import { TRANSMIT_CAUTIONS, type Trims } from 'orthotone';
 import { calibrationPanel } from './calibration-panel.js';
 import { designPanel } from './design-panel.js';
+import { devicePanel } from './device-panel.js';
 import { download, h, pickTextFile, statusLine } from './dom.js';
 import { Engine } from './engine.js';
 import { generatorPanel } from './generator-panel.js';
+import { reportControls } from './report-download.js';
 import { controlsState, openDocument, restoreControls, type SessionParts, sessionToJson } from './session.js';
 import './style.css';
 
@@ -71,6 +73,7 @@ const design = designPanel((net) => {
 const engine = new Engine(design.network);
 const gen = generatorPanel(engine);
 const cal = calibrationPanel(engine, (t: Trims) => gen.showTrims(t));
+gen.el.append(devicePanel(engine, gen).el); // issue 11: the device link block
 app.append(design.el, gen.el, cal.el);
 
 const panels: Record<string, HTMLElement> = { design: design.el, generate: gen.el, calibrate: cal.el };
@@ -95,7 +98,7 @@ const parts: SessionParts = {
 const fileStatus = statusLine('file-status');
 const openBtn = h(
   'button',
-  { class: 'secondary', id: 'file-open', 'aria-label': 'Open a network, profile or session (JSON)' },
+  { class: 'secondary', id: 'file-open', 'aria-label': 'Open file… (a network, profile or session, JSON)' },
   'Open file…',
 );
 const saveBtn = h('button', { class: 'secondary', id: 'file-save' }, 'Save session');
@@ -120,6 +123,9 @@ saveBtn.addEventListener('click', () => {
   }
 });
 document.getElementById('file-bar')!.append(openBtn, saveBtn, fileStatus.el);
+document
+  .getElementById('file-bar')!
+  .append(reportControls({ session: () => sessionToJson(parts), calibration: () => controlsState(cal.el) }));
 
 window.addEventListener('hashchange', () => show(location.hash.slice(1)));
 show(location.hash.slice(1));

@@ -73,7 +73,11 @@ export function linePlot(parent: HTMLElement, opts: PlotOptions): LinePlot {
       'div',
       { class: 'plot-head' },
       h('h3', { class: 'plot-title', id: titleId }, opts.title),
-      h('span', { class: 'hint' }, 'Point to read values; drag across to zoom'),
+      h(
+        'span',
+        { class: 'hint' },
+        'Point (or Tab and arrow keys) to read values; drag across (or +/−) to zoom',
+      ),
       reset,
     ),
     holder,
@@ -142,6 +146,7 @@ export function linePlot(parent: HTMLElement, opts: PlotOptions): LinePlot {
             zoom = [Math.min(a, b), Math.max(a, b)];
             p.setSelect({ left: 0, top: 0, width: 0, height: 0 }, false);
             p.setScale('x', { min: zoom[0], max: zoom[1] });
+            el.dataset['zoom'] = JSON.stringify(zoom);
             reset.hidden = false;
           },
         ],
@@ -182,11 +187,13 @@ export function linePlot(parent: HTMLElement, opts: PlotOptions): LinePlot {
   u.ctx.canvas.setAttribute('aria-describedby', altId);
   const resetZoom = () => {
     zoom = null;
+    delete el.dataset['zoom'];
     reset.hidden = true;
     u.setData(data as unknown as uPlot.AlignedData, true);
   };
   reset.addEventListener('click', resetZoom);
   u.over.addEventListener('dblclick', resetZoom);
+  keyboardCursor();
   // Follow the parent's width; a hidden panel reports 0 and is skipped until it is shown.
   let lastWidth = width();
   new ResizeObserver(() => {
@@ -198,12 +205,89 @@ export function linePlot(parent: HTMLElement, opts: PlotOptions): LinePlot {
     }
   }).observe(parent);
 
+  /**
+   * The keyboard's way to read the plot: the overlay is a slider over the data points (arrow keys,
+   * Page Up/Down by ten, Home/End); its value text is the readout, so a screen reader speaks it.
+   * + and − zoom in and out around the cursor, 0 resets the zoom.
+   */
+  function keyboardCursor(): void {
+    const over = u.over;
+    let idx = -1;
+    over.tabIndex = 0;
+    over.setAttribute('role', 'slider');
+    over.setAttribute('aria-label', `Read-out cursor: ${opts.title}`);
+    over.setAttribute('aria-keyshortcuts', 'ArrowLeft ArrowRight PageUp PageDown Home End + - 0');
+    // A slider always carries a value: before any data, an empty range.
+    over.setAttribute('aria-valuemin', '0');
+    over.setAttribute('aria-valuemax', '0');
+    over.setAttribute('aria-valuenow', '0');
+    over.setAttribute('aria-valuetext', 'no data yet');
+    const readout = (k: number) => {
+      const [x, ...ys] = data;
+      const parts = opts.series.map((s, j) => {
+        const v = ys[j]?.[k];
+        return `${s.label} ${v == null || !Number.isFinite(v) ? '—' : fy(v)}`;
+      });
+      return `${fx(x[k]!)}: ${parts.join(', ')}`;
+    };
+    const place = (k: number) => {
+      const x = data[0];
+      if (x.length === 0) return;
+      idx = Math.max(0, Math.min(x.length - 1, k));
+      const y = data[1]?.[idx];
+      const top =
+        y == null || !Number.isFinite(y) ? u.bbox.height / devicePixelRatio / 2 : u.valToPos(y, 'y');
+      u.setCursor({ left: u.valToPos(x[idx]!, 'x'), top });
+      over.setAttribute('aria-valuemin', '0');
+      over.setAttribute('aria-valuemax', String(x.length - 1));
+      over.setAttribute('aria-valuenow', String(idx));
+      over.setAttribute('aria-valuetext', readout(idx));
+    };
+    const zoomBy = (factor: number) => {
+      const x = data[0];
+      const min = u.scales['x']?.min;
+      const max = u.scales['x']?.max;
+      if (x.length === 0 || min == null || max == null) return;
+      const c = x[Math.max(0, idx)] ?? (min + max) / 2;
+      const [a, b] = opts.logX
+        ? [c * (min / c) ** factor, c * (max / c) ** factor]
+        : [c + (min - c) * factor, c + (max - c) * factor];
+      zoom = [a, b];
+      u.setScale('x', { min: a, max: b });
+      el.dataset['zoom'] = JSON.stringify(zoom);
+      reset.hidden = false;
+      if (idx >= 0) place(idx);
+    };
+    over.addEventListener('keydown', (e: KeyboardEvent) => {
+      const n = data[0].length;
+      const step: Record<string, number> = {
+        ArrowLeft: -1,
+        ArrowRight: 1,
+        ArrowDown: -1,
+        ArrowUp: 1,
+        PageDown: -10,
+        PageUp: 10,
+      };
+      if (e.key in step) place((idx < 0 ? Math.floor(n / 2) : idx) + step[e.key]!);
+      else if (e.key === 'Home') place(0);
+      else if (e.key === 'End') place(n - 1);
+      else if (e.key === '+' || e.key === '=') zoomBy(0.5);
+      else if (e.key === '-') zoomBy(2);
+      else if (e.key === '0') resetZoom();
+      else return;
+      e.preventDefault();
+    });
+    over.addEventListener('focus', () => {
+      if (idx < 0) place(Math.floor(data[0].length / 2));
+    });
+  }
+
   /** The text alternative: each series' lowest and highest value and where, over the x span. */
   function describe(): string {
     const [x, ...ys] = data;
     if (x.length === 0) return 'No data yet.';
     const parts: string[] = [opts.describe ? opts.describe(x, ys) : `${opts.title}.`];
-    parts.push(`${opts.xLabel} from ${fx(x[0]!)} to ${fx(x[x.length - 1]!)}.`);
+    parts.push(`Shown from ${fx(x[0]!)} to ${fx(x[x.length - 1]!)}.`);
     opts.series.forEach((s, k) => {
       const y = ys[k] ?? [];
       let lo = -1;
@@ -230,24 +314,37 @@ export function linePlot(parent: HTMLElement, opts: PlotOptions): LinePlot {
       data = [Array.from(x), ...ys.map((y) => Array.from(y))];
       u.setData(data as unknown as uPlot.AlignedData, true);
       alt.textContent = describe();
+      u.over.setAttribute('aria-valuemax', String(Math.max(0, data[0].length - 1)));
     },
     clear(why) {
       data = [[], ...opts.series.map(() => [])];
       u.setData(data as unknown as uPlot.AlignedData, true);
       alt.textContent = why;
+      u.over.setAttribute('aria-valuemax', '0');
+      u.over.setAttribute('aria-valuenow', '0');
+      u.over.setAttribute('aria-valuetext', 'no data');
     },
   };
 }
 
-/** Ticks at 1, 2, 3 and 5 times powers of ten within [min, max] (a log axis shorter than a decade). */
+/**
+ * Ticks for a log axis shorter than a decade: 1, 2, 3 and 5 times powers of ten, or, when that
+ * leaves fewer than four (a zoomed span), every 1…9 and half-step in between.
+ */
 function logTicks(min: number, max: number): number[] {
-  const out: number[] = [];
-  if (!(min > 0 && max > min)) return out;
-  for (let e = Math.floor(Math.log10(min)); e <= Math.ceil(Math.log10(max)); e++) {
-    for (const m of [1, 2, 3, 5]) {
-      const v = m * 10 ** e;
-      if (v >= min && v <= max) out.push(v);
+  if (!(min > 0 && max > min)) return [];
+  const at = (mantissas: number[]) => {
+    const out: number[] = [];
+    for (let e = Math.floor(Math.log10(min)); e <= Math.ceil(Math.log10(max)); e++) {
+      for (const m of mantissas) {
+        const v = m * 10 ** e;
+        if (v >= min && v <= max) out.push(v);
+      }
     }
-  }
-  return out;
+    return out;
+  };
+  const coarse = at([1, 2, 3, 5]);
+  if (coarse.length >= 4) return coarse;
+  const fine = at([1, 1.5, 2, 3, 4, 5, 6, 7, 8, 9]);
+  return fine.length >= 4 ? fine : at([1, 1.5, 2, 2.5, 3, 3.5, 4, 4.5, 5, 6, 7, 8, 9]);
 }

@@ -66,7 +66,16 @@ export function iqFigures(i: Float32Array, q: Float32Array): IqFigures {
 
 /** Creates the scope (a square canvas and a caption). */
 export function iqScope(): IqScope {
-  const canvas = h('canvas', { class: 'scope', id: 'gen-scope', width: 560, height: 560 });
+  // An image named by its purpose and described by the caption's figures (the text alternative).
+  const canvas = h('canvas', {
+    class: 'scope',
+    id: 'gen-scope',
+    width: 560,
+    height: 560,
+    role: 'img',
+    'aria-label': 'I/Q scope: Q against I; a circle means equal gain and 90° between them',
+    'aria-describedby': 'gen-scope-caption',
+  });
   const caption = h('div', { class: 'hint', id: 'gen-scope-caption' }, 'Start audio to see Q against I.');
   const el = h('div', { class: 'scope-box' }, canvas, caption);
   const g = canvas.getContext('2d');

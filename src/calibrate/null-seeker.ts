@@ -9,8 +9,14 @@
  * The seeker reads the start, probes each axis (which also shows whether the trim acts at all),
  * then alternates a jump to the fitted null with a probe on a ring around it whose radius shrinks
  * with the fit's own uncertainty toward the floor radius √(N/c); every fit uses every reading
- * (robustly weighted). It stops when the fit says the target is met, when the null is located
- * well inside the floor radius (no further reading could show an improvement), at the resolution
+ * (robustly weighted). The seeker tests its model against the readings: it starts from the nominal
+ * bowl (known or isotropic curvature), and once five readings are in, every fit is repeated with
+ * scale, anisotropy and coupling free to move (`adaptive`); when that fit explains the readings
+ * clearly better (a cost drop of about χ²₂ at 2%), the looser bowl is kept (trims whose real
+ * effect differs from their nominal units, or that disturb each other). It stops when the fit says
+ * the target is met, when the null is located well inside the floor radius and at least three
+ * distinct settings read the floor's level within the noise (no further reading could show an
+ * improvement; a bowl misread as flat leaves its readings scattered instead), at the resolution
  * of quantised trims, or at the reading budget. The best setting so far is always available, and
  * is never a setting that the evidence does not show to beat the start: a candidate must beat the
  * start in the robust fit and in readings the fit kept (see `best()`); when that evidence is
@@ -80,6 +86,11 @@ export interface NullSeekerOptions {
   axisNames: [string, string];
   /** Down-weight outlying readings. Default true. */
   robust: boolean;
+  /**
+   * Test the bowl's nominal shape against the readings and loosen it (scale, anisotropy and
+   * coupling estimated) when a looser fit explains them clearly better. Default true.
+   */
+  adaptive: boolean;
 }
 
 const DEFAULTS: Readonly<NullSeekerOptions> = Object.freeze({
@@ -99,6 +110,7 @@ const DEFAULTS: Readonly<NullSeekerOptions> = Object.freeze({
   maxStep: [0.1, 0.1] as [number, number],
   axisNames: ['x', 'y'] as [string, string],
   robust: true,
+  adaptive: true,
 });
 
 /** What a reading was taken for. */
@@ -218,6 +230,15 @@ export interface NullSeeker {
 }
 
 const LN10_10 = Math.LN10 / 10;
+/**
+ * Priors of the loosened bowl (see `adaptive`): ln c may move by ±0.5 (trims acting 0.6–1.6× their
+ * nominal units), the aspect ln-ratio by ±0.45 and the cross term by ±0.3 (one standard deviation).
+ */
+const LOOSE = Object.freeze({ logC: 0.5, s: 0.45, k: 0.3 });
+/** Cost drop (robust loss in σ² units) that makes the seeker keep the loosened bowl: about χ²₂ at p = 0.02. */
+const LOOSEN_COST = 4;
+/** Readings before the nominal bowl is first tested. */
+const LOOSEN_MIN_READINGS = 5;
 
 /**
  * Validates null-seeker options merged over the defaults.
@@ -294,6 +315,7 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
   let wideProbes = 0;
   let probeIndex = 0;
   let failures = 0;
+  let loose = false;
   let stopReason: StopReason | undefined;
   let pending: [number, number] | undefined;
   let pendingRole: ReadingRole = 'start';
@@ -336,10 +358,18 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
     return {
       cx: status[0] === 'inactive' ? { mean: o.start[0], sd: 0 } : { mean: o.start[0], sd: span },
       cy: status[1] === 'inactive' ? { mean: o.start[1], sd: 0 } : { mean: o.start[1], sd: span },
-      logC: { mean: lc, sd: o.model === 'known-curvature' ? o.curvatureSpread : 5 },
+      logC: {
+        mean: lc,
+        sd:
+          o.model === 'known-curvature'
+            ? loose
+              ? Math.max(o.curvatureSpread, LOOSE.logC)
+              : o.curvatureSpread
+            : 5,
+      },
       logN: floorPrior(),
-      s: oneD ? { mean: 0, sd: 0 } : { mean: 0, sd: free ? 3 : o.model === 'known-curvature' ? 0.05 : 0.2 },
-      k: oneD ? { mean: 0, sd: 0 } : { mean: 0, sd: free ? 1 : o.model === 'known-curvature' ? 0.05 : 0.2 },
+      s: oneD ? { mean: 0, sd: 0 } : { mean: 0, sd: free ? 3 : loose ? LOOSE.s : 0.05 },
+      k: oneD ? { mean: 0, sd: 0 } : { mean: 0, sd: free ? 1 : loose ? LOOSE.k : 0.05 },
     };
   };
 
@@ -388,6 +418,19 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
       if (status[1] === 'inactive') s.cy = o.start[1];
     }
     fit = fitNullSurface(pts, { noiseDb: sigma, priors: pr, robust: o.robust, starts });
+    if (!loose && o.model !== 'quadratic' && o.adaptive && pts.length >= LOOSEN_MIN_READINGS) {
+      // Test the model against the readings: refit with the shape and scale free to move off the
+      // nominal bowl; when that explains the readings clearly better, keep the looser model.
+      loose = true;
+      const wide = fitNullSurface(pts, {
+        noiseDb: sigma,
+        priors: priors(),
+        robust: o.robust,
+        starts: [fit.surface, ...starts],
+      });
+      if (fit.cost - wide.cost > LOOSEN_COST) fit = wide;
+      else loose = false;
+    }
     src.forEach((r, i) => {
       r.weight = fit!.weights[i];
       r.residualDb = fit!.residualsDb[i];
@@ -585,6 +628,53 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
     );
   };
 
+  /**
+   * Evidence of a floor: several distinct settings, kept by the fit, reading the fitted floor's level
+   * within the noise (a bowl misread as flat puts its readings at scattered levels instead).
+   */
+  const floorEvidence = (floorDb: number): boolean => {
+    const e = estimate();
+    if (!e) return false;
+    const tol = Math.max(2 * sigma, 1);
+    const at: [number, number][] = [];
+    for (const r of okReadings()) {
+      if ((r.weight ?? 1) < 0.5 || Math.abs(r.db - floorDb) > tol) continue;
+      if (!at.some((p) => samePoint(p, r.point))) at.push(r.point);
+    }
+    if (at.length < 3) return false;
+    // The wall must have been read around the null in two independent directions: probes on one
+    // line leave a null off that line unseen (a skewed bowl then looks like a floor).
+    const reach = 2.5 * Math.max(e.floorRadius, Math.sqrt(e.centreCov[0] + e.centreCov[2]));
+    const dirs: [number, number][] = [];
+    for (const r of okReadings()) {
+      if ((r.weight ?? 1) < 0.5) continue;
+      const dx = r.point[0] - e.centre[0];
+      const dy = r.point[1] - e.centre[1];
+      const d = Math.hypot(dx, dy);
+      if (d > 0.2 * e.floorRadius && d <= reach) dirs.push([dx / d, dy / d]);
+    }
+    let spread2d = false;
+    for (let i = 0; i < dirs.length && !spread2d; i++)
+      for (let j = i + 1; j < dirs.length; j++)
+        if (Math.abs(dirs[i]![0] * dirs[j]![1] - dirs[i]![1] * dirs[j]![0]) >= 0.5) spread2d = true;
+    if (!spread2d || !fit) return false;
+    // No fit with the bowl's shape and scale left free may put the floor 6 dB deeper.
+    const { pts } = fitPoints();
+    const pr = priors();
+    const free = fitNullSurface(pts, {
+      noiseDb: sigma,
+      robust: o.robust,
+      starts: [fit.surface],
+      priors: {
+        ...pr,
+        logC: { mean: pr.logC.mean, sd: Math.max(pr.logC.sd, 5) },
+        s: pr.s.sd === 0 ? pr.s : { mean: 0, sd: 3 },
+        k: pr.k.sd === 0 ? pr.k : { mean: 0, sd: 1 },
+      },
+    });
+    return !(free.surface.logN / LN10_10 <= floorDb - 6 && free.rmsDb <= Math.max(3 * sigma, 1.5));
+  };
+
   const checkStop = (): void => {
     if (stopReason) return;
     if (readings.length >= o.maxReadings) {
@@ -615,7 +705,8 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
       e.expectedTrueDb <= e.floorDb - 10 &&
       sinceJump === 0 &&
       e.floorDb <= startDb - 10 &&
-      recentFitConsistent()
+      recentFitConsistent() &&
+      floorEvidence(e.floorDb)
     ) {
       stopReason = 'floor';
       return;
@@ -888,6 +979,7 @@ export function createNullSeeker(options: Partial<NullSeekerOptions> = {}): Null
     wideProbes = 0;
     probeIndex = 0;
     failures = 0;
+    loose = false;
     stopReason = undefined;
     pending = undefined;
     pendingProbe = undefined;

@@ -2,18 +2,20 @@
  * `orthotone analyze FILE`: independent evaluation of a network document: phase and gain error,
  * suppression and group delay versus frequency, worst case, cost and quantisation.
  */
-import { readFileSync, writeFileSync } from 'node:fs';
 import { analyzeNetwork } from '../design/analysis.js';
 import { analyzeKitArithmetic } from '../design/arithmetic-analysis.js';
 import { analysisToCsv } from '../export/csv.js';
-import { parseNetworkJson } from '../export/network-json.js';
-import { numberOpt, parseCommand, UsageError } from './args.js';
+import { assertDistinctFiles, writeFileAtomic } from '../node/files.js';
+import { choiceOpt, inCliWords, numberOpt, parseCommand, UsageError } from './args.js';
 import { arithmeticOpt, describeArithmetic, describeNetwork } from './design.js';
+import { disagreementWarning, loadNetworkFile } from './network-file.js';
 import { fixed, formatTable } from './table.js';
 
 const HELP = `usage: orthotone analyze FILE [options]
 
 Evaluates a network document (from 'orthotone design --format json') from its coefficients alone.
+Every figure shown is computed; where the file's stored figures (predicted, cost) disagree with
+them, the output says so.
 
 options:
   --points N       frequencies evaluated (default 25 for table, 2000 for json/csv)
@@ -54,24 +56,26 @@ export async function run(argv: string[]): Promise<number> {
   }
   const file = positionals[0];
   if (file === undefined || positionals.length > 1) throw new UsageError('give exactly one network FILE');
-  let text: string;
-  try {
-    text = readFileSync(file, 'utf8');
-  } catch (e) {
-    throw new UsageError(`cannot read ${file}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
-  }
-  const net = parseNetworkJson(text);
-  const format = (v.format as string | undefined) ?? 'table';
+  const format = choiceOpt('format', v.format, ['table', 'json', 'csv'], 'table');
+  const outFile = typeof v.out === 'string' ? v.out : undefined;
+  assertDistinctFiles([['FILE', file]], [['--out', outFile]]);
+  const { net, disagreements } = loadNetworkFile(file);
   const nyq = net.sampleRate / 2;
   const fromHz = numberOpt('from', v.from) ?? net.band[0] / 2;
   const toHz = numberOpt('to', v.to) ?? Math.min(2 * net.band[1], nyq * 0.999);
   const points = numberOpt('points', v.points) ?? (format === 'table' ? 25 : 2000);
-  const a = analyzeNetwork(net, { points, fromHz, toHz });
+  const a = inCliWords(() => analyzeNetwork(net, { points, fromHz, toHz }), {
+    fromHz: '--from',
+    toHz: '--to',
+    points: '--points',
+  });
   const arithmetic = arithmeticOpt(v.arithmetic);
   let out: string;
   if (format === 'json') {
     out = `${JSON.stringify(
       {
+        storedFiguresAgree: disagreements.length === 0,
+        disagreements,
         band: a.band,
         worst: a.worst,
         maxPhaseErrorDeg: a.maxPhaseErrorDeg,
@@ -93,7 +97,7 @@ export async function run(argv: string[]): Promise<number> {
     )}\n`;
   } else if (format === 'csv') {
     out = analysisToCsv(a);
-  } else if (format === 'table') {
+  } else {
     const rows = [['frequency Hz', 'phase err °', 'gain err dB', 'suppression dB', 'delay I', 'delay Q', '']];
     for (let k = 0; k < a.frequencyHz.length; k++) {
       const f = a.frequencyHz[k]!;
@@ -108,12 +112,16 @@ export async function run(argv: string[]): Promise<number> {
         inBand ? '' : '*',
       ]);
     }
-    out = `${describeNetwork(net)}\n${formatTable(rows)}(* outside the design band)\n`;
+    const note =
+      disagreements.length === 0
+        ? ''
+        : `\nWARNING: the file's stored figures disagree with its coefficients (the figures above are computed):\n${disagreements.map((d) => `  ${d}\n`).join('')}`;
+    out = `${describeNetwork(net)}${note}\n${formatTable(rows)}(* outside the design band)\n`;
     if (arithmetic !== 'double') out += `\n${describeArithmetic(net, arithmetic)}`;
-  } else {
-    throw new UsageError(`--format ${JSON.stringify(format)} must be table, json or csv`);
   }
-  if (typeof v.out === 'string') writeFileSync(v.out, out);
+  if (format !== 'table' && disagreements.length > 0)
+    process.stderr.write(`${disagreementWarning(file, disagreements)}\n`);
+  if (outFile !== undefined) writeFileAtomic(outFile, out);
   else process.stdout.write(out);
   return 0;
 }

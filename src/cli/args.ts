@@ -226,7 +226,7 @@ export const CLI_NAMES: Readonly<Record<string, string>> = Object.freeze({
  */
 export function toCliWords(message: string, names: Readonly<Record<string, string>> = CLI_NAMES): string {
   let m = message;
-  for (const [key, opt] of Object.entries(names)) {
+  for (const [key, opt] of Object.entries({ ...CLI_NAMES, ...names })) {
     m = m.replace(new RegExp(`(?<![\\w-])${key}(?![\\w])`, 'g'), opt);
   }
   return m

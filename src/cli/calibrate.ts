@@ -70,6 +70,13 @@ where the readings come from:
                          number, 'dB' after it allowed) and exits 0. It runs in its own process
                          group, killed whole on --timeout and on Ctrl-C
 
+  --device PATH          set each reading's trims on a device over the link protocol (a serial
+                         port, or firmware/virtual-device's pty), confirm them by read-back and
+                         wait --settle MS (default 200, at least the device's ramp) before the
+                         reading; the best trims are left on the device at the end. The levels
+                         still come from one of the three above. --device-timeout MS: one answer
+                         (default 1000)
+
 options:
   --what W               sideband | carrier | both (default both: sideband first, then carrier)
   --together             with --what both: read the sideband and the carrier at every step (one
@@ -218,6 +225,11 @@ export interface CalibrateExtras {
   applier?: TrimApplier;
   /** One line saying what applies the trims, printed before the first reading. */
   applierNote?: string;
+  /**
+   * Called with the final trims (the best so far when cut short) before the command returns.
+   * @throws should not: an error ends the command after the profile is written.
+   */
+  onFinish?: (trims: Trims) => void;
 }
 
 /** What `--session` writes and `--resume` reads. */
@@ -308,6 +320,10 @@ interface RunOut {
  *   (through `runGuarded`) turns UsageError and OrthotoneError into one line on stderr and exit 2.
  */
 export async function run(argv: string[], extras: CalibrateExtras = {}): Promise<number> {
+  // --device PATH (issue 11): src/cli/device.ts opens the link and calls back here with its applier.
+  if (!extras.applier && argv.some((a) => a === '--device' || a.startsWith('--device='))) {
+    return (await import('./device.js')).calibrateOnDevice(argv, run);
+  }
   const { values: v } = parseCommand(argv, OPTIONS);
   if (v.help) {
     process.stdout.write(HELP);
@@ -744,6 +760,7 @@ export async function run(argv: string[], extras: CalibrateExtras = {}): Promise
       )}\n`,
     );
   }
+  extras.onFinish?.(current);
   out(`\n${cautionsText()}\n`);
   if (interrupted) return 130;
   return cutShort ? 3 : 0;

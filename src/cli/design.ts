@@ -2,7 +2,6 @@
  * `orthotone design`: design a 90° network for a sample rate and band and print or write it as a
  * readable table, the JSON network document, a C header or CSV.
  */
-import { writeFileSync } from 'node:fs';
 import { analyzeNetwork } from '../design/analysis.js';
 import { analyzeKitArithmetic } from '../design/arithmetic-analysis.js';
 import { designNetwork, type NetworkSpec } from '../design/design-network.js';
@@ -13,6 +12,7 @@ import { networkToCHeader } from '../export/c-header.js';
 import { networkToCsv } from '../export/csv.js';
 import { networkToJson } from '../export/network-json.js';
 import type { GeneratorArithmetic } from '../generate/quadrature-generator.js';
+import { writeFileAtomic } from '../node/files.js';
 import { choiceOpt, inCliWords, numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
 import { fixed, formatPairs } from './table.js';
 
@@ -182,7 +182,8 @@ export function describeNetwork(net: Network): string {
       : `${net.branches.i.sections.length} + ${net.branches.q.sections.length} sections ` +
         `(orders ${[...new Set([...net.branches.i.sections, ...net.branches.q.sections].map((s) => s.order))].join('/')}), ` +
         `delays ${net.branches.i.delay}/${net.branches.q.delay}`;
-  const lat = net.cost.latencySamples;
+  // Every figure from the coefficients (a.predicted, a.cost), never from the document's stored fields.
+  const lat = a.cost.latencySamples;
   const pairs: [string, string][] = [
     ['network', net.kind === 'fir' ? 'Hilbert FIR (type III)' : 'all-pass pair'],
     ['size', size],
@@ -190,15 +191,15 @@ export function describeNetwork(net: Network): string {
     ['band', `${net.band[0]}–${net.band[1]} Hz`],
     [
       'worst suppression',
-      `${net.predicted.worstSuppressionDb.toFixed(2)} dB at ${a.worst.atHz.toFixed(1)} Hz (opposite sideband, dBc)`,
+      `${a.predicted.worstSuppressionDb.toFixed(2)} dB at ${a.predicted.worstSuppressionAtHz.toFixed(1)} Hz (opposite sideband, dBc)`,
     ],
-    ['max phase error', `${net.predicted.maxPhaseErrorDeg.toPrecision(4)}°`],
-    ['max gain error', `${net.predicted.maxGainErrorDb.toPrecision(4)} dB`],
+    ['max phase error', `${a.predicted.maxPhaseErrorDeg.toPrecision(4)}°`],
+    ['max gain error', `${a.predicted.maxGainErrorDb.toPrecision(4)} dB`],
     [
       'group delay I/Q',
       `difference ${fixed(a.groupDelayDifference.min, 2)} to ${fixed(a.groupDelayDifference.max, 2)} samples over the band`,
     ],
-    ['cost', `${net.cost.multipliesPerSample} multiplies/sample`],
+    ['cost', `${a.cost.multipliesPerSample} multiplies/sample`],
     ['latency', `${lat.toFixed(2)} samples (${((lat / net.sampleRate) * 1000).toFixed(3)} ms)`],
     [
       'after rounding',
@@ -291,7 +292,7 @@ export async function run(argv: string[]): Promise<number> {
   let text = renderNetwork(net, format, v.name as string | undefined);
   if (format === 'table' && arithmetic !== 'double') text += `\n${describeArithmetic(net, arithmetic)}`;
   if (typeof v.out === 'string') {
-    writeFileSync(v.out, text);
+    writeFileAtomic(v.out, text);
     process.stderr.write(
       `orthotone: wrote ${v.out} (${net.kind}, worst suppression ${net.predicted.worstSuppressionDb.toFixed(2)} dB)${
         format === 'c' ? roundingWarning(net, spec) : ''

@@ -12,6 +12,14 @@ interface Command {
 
 const COMMANDS: Record<string, Command> = {
   // Each command registers here: name → module.
+  device: {
+    summary: 'talk to a microcontroller over the link protocol: identify, trims, set, load, store',
+    load: () => import('./device.js'),
+  },
+  bridge: {
+    summary: 'serve a serial device to a browser page over a local WebSocket',
+    load: () => import('./bridge.js'),
+  },
   start: {
     summary: 'a first run: design, render a two-tone, calibrate a virtual exciter, write ./out',
     load: () => import('./start.js'),
@@ -43,6 +51,19 @@ const COMMANDS: Record<string, Command> = {
   'port-check': {
     summary: "compare a firmware port's captured output with 'render --vectors' test vectors",
     load: () => import('./port-check.js'),
+  },
+  emissions: {
+    summary:
+      'check every emission (carrier, sideband, IMD, mixer harmonics) against limits; exit 1 if any fails',
+    load: () => import('./emissions.js'),
+  },
+  verify: {
+    summary: "a few readings at a saved profile's trims: has the exciter drifted, re-calibrate?",
+    load: () => import('./verify.js'),
+  },
+  'output-filter': {
+    summary: 'design the RF output low-pass ladder (Butterworth/Chebyshev, E12/E24 capacitors)',
+    load: () => import('./output-filter.js'),
   },
   render: {
     summary: 'run a test signal or recording through a network and trims into an I/Q WAV',

@@ -3,7 +3,6 @@
  * products from a WAV capture (receiver audio, or I/Q with I left and Q right).
  * WAV files are read with the shared reader in src/node/wav.ts.
  */
-import { writeFileSync } from 'node:fs';
 import { cautionsText } from '../core/cautions.js';
 import { isOrthotoneError } from '../core/errors.js';
 import type { WindowName } from '../core/windows.js';
@@ -11,9 +10,18 @@ import { measureSideband } from '../measure/sideband.js';
 import type { ToneReading } from '../measure/tones.js';
 import { measureTones } from '../measure/tones.js';
 import { measureTwoTone } from '../measure/two-tone.js';
-import { readWavFile, type WavData, writeWavFile } from '../node/wav.js';
-import { choiceOpt, numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
+import { assertDistinctFiles, writeFileAtomic } from '../node/files.js';
+import { openWavReader, type WavReader } from '../node/wav.js';
+import { choiceOpt, inCliWords, numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
 import { fixed, formatPairs, formatTable } from './table.js';
+
+/**
+ * Most frames read from a capture: 2^22 (87 s at 48 kHz, 22 s at 192 kHz). The measurement averages
+ * frames over what it reads; beyond this, more averaging changes the readings by far less than their
+ * own spread, while memory would grow with the file. Longer captures are read in part (the output
+ * says which part; --start and --length choose it).
+ */
+export const MAX_FRAMES = 1 << 22;
 
 const HELP = `usage: orthotone measure FILE.wav (--tone HZ (--iq | --offset HZ) | --two-tone HZ,HZ | --tones HZ,...) [options]
 
@@ -30,6 +38,9 @@ Reads a capture of your exciter's output and prints the levels in it.
   --channel N            audio channel to read (default 0, the left)
   --window W             blackman-harris (default) | hann | flattop
   --resolution HZ        frame resolution (bin width) in Hz; default: from the capture length
+  --start S              where to start reading, seconds into the file (default 0)
+  --length S             how much to read, seconds (default: the rest, at most ${MAX_FRAMES} frames,
+                         about 87 s at 48 kHz: longer captures are read in part, and the output says so)
   --format F             table (default) | json
   --out FILE             write to FILE instead of standard output
   -h, --help             this help
@@ -46,32 +57,40 @@ const OPTIONS = {
   channel: { type: 'string' },
   window: { type: 'string' },
   resolution: { type: 'string' },
+  start: { type: 'string' },
+  length: { type: 'string' },
   format: { type: 'string' },
   out: { type: 'string' },
   help: { type: 'boolean', short: 'h' },
 } as const;
 
 /**
- * Reads a WAV file into full-scale channels through the shared reader (src/node/wav.ts).
- * @throws {UsageError} when the file cannot be opened; OrthotoneError when it is not a WAV file.
+ * Reads frames `[start, start + length)` of channels `want` from an open WAV file, in blocks,
+ * refusing non-finite samples.
+ * @throws {UsageError} naming the sample index (frame and channel) of a NaN or infinite sample.
  */
-export async function readWav(path: string): Promise<WavData> {
-  try {
-    return await readWavFile(path);
-  } catch (e) {
-    if (isOrthotoneError(e)) throw e;
-    throw new UsageError(`cannot read WAV file ${path}: ${(e as Error).message}`);
+function readSpan(
+  r: WavReader,
+  file: string,
+  start: number,
+  length: number,
+  want: readonly number[],
+): Float32Array[] {
+  const out: (Float32Array | undefined)[] = [];
+  for (const c of want) out[c] = new Float32Array(length);
+  r.seek(start);
+  const got = r.read(out, length);
+  for (const c of want) {
+    const x = out[c]!;
+    for (let k = 0; k < got; k++) {
+      if (!Number.isFinite(x[k]!)) {
+        throw new UsageError(
+          `${file} holds a non-finite sample (${x[k]}) at frame ${start + k}, channel ${c}: the capture is damaged; record it again`,
+        );
+      }
+    }
   }
-}
-
-/**
- * Writes channels (full-scale units) as a 32-bit float WAV file through the shared writer;
- * `sampleRate` in Hz.
- * @throws {OrthotoneError} INVALID_ARGUMENT as `encodeWav` (no channels, channels of different
- *   lengths, a bad sample rate); a Node file-system error when the file cannot be written.
- */
-export async function writeWav(path: string, sampleRate: number, channels: Float32Array[]): Promise<void> {
-  await writeWavFile(path, channels, sampleRate, 'float32');
+  return want.map((c) => out[c]!.subarray(0, got));
 }
 
 const round = (x: number, d: number): number => (Number.isFinite(x) ? Number(x.toFixed(d)) : x);
@@ -110,30 +129,84 @@ export async function run(argv: string[]): Promise<number> {
     throw new UsageError('give exactly one of --tone HZ, --two-tone HZ,HZ or --tones HZ,...');
   if (v.iq && v.offset !== undefined)
     throw new UsageError('--iq and --offset exclude each other: an I/Q file has no audio offset');
-  const wav = await readWav(positionals[0]!);
-  const fs = wav.sampleRate;
+  const file = positionals[0]!;
+  const outFile = v.out as string | undefined;
+  assertDistinctFiles([['FILE', file]], [['--out', outFile]]);
+  const windowName = choiceOpt<WindowName>(
+    'window',
+    v.window,
+    ['blackman-harris', 'hann', 'flattop'],
+    'blackman-harris',
+  );
   const opts = {
-    window: v.window as WindowName | undefined,
+    window: windowName,
     resolutionHz: numberOpt('resolution', v.resolution),
   };
-  const sideband = (v.sideband ?? 'upper') as 'upper' | 'lower';
-  const rxSideband = (v['receiver-sideband'] ?? 'upper') as 'upper' | 'lower';
+  const sideband = choiceOpt('sideband', v.sideband, ['upper', 'lower'] as const, 'upper');
+  const rxSideband = choiceOpt(
+    'receiver-sideband',
+    v['receiver-sideband'],
+    ['upper', 'lower'] as const,
+    'upper',
+  );
+  let wav: WavReader;
+  try {
+    wav = openWavReader(file);
+  } catch (e) {
+    if (isOrthotoneError(e)) throw e;
+    throw new UsageError(
+      `cannot read WAV file ${file}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`,
+    );
+  }
+  const fs = wav.info.sampleRate;
+  const nc = wav.info.channels;
+  const total = wav.info.frames;
+  const startS = numberOpt('start', v.start) ?? 0;
+  const startFrame = Math.round(startS * fs);
+  if (!(startS >= 0) || startFrame >= total) {
+    wav.close();
+    throw new UsageError(
+      `--start ${startS} s must lie inside the capture: from 0 to ${(total / fs).toFixed(3)} s`,
+    );
+  }
+  const lengthS = numberOpt('length', v.length);
+  if (lengthS !== undefined && !(lengthS > 0)) {
+    wav.close();
+    throw new UsageError(`--length ${lengthS} s must be more than 0 s`);
+  }
+  const wantFrames = Math.min(total - startFrame, lengthS === undefined ? total : Math.round(lengthS * fs));
+  if (lengthS !== undefined && Math.round(lengthS * fs) > MAX_FRAMES) {
+    wav.close();
+    throw new UsageError(
+      `--length ${lengthS} s is ${Math.round(lengthS * fs)} frames, more than the ${MAX_FRAMES} read at once: give at most ${(MAX_FRAMES / fs).toFixed(1)} s`,
+    );
+  }
+  const frames = Math.min(wantFrames, MAX_FRAMES);
   let i: Float32Array;
   let q: Float32Array | null = null;
-  if (v.iq) {
-    if (wav.channels.length < 2)
-      throw new UsageError(`--iq needs a stereo file (I left, Q right); ${positionals[0]} has 1 channel`);
-    i = wav.channels[0]!;
-    q = wav.channels[1]!;
-  } else {
-    const ch = numberOpt('channel', v.channel ?? '0')!;
-    if (!Number.isInteger(ch) || ch < 0 || ch >= wav.channels.length) {
-      throw new UsageError(
-        `--channel ${ch} does not exist: the file has ${wav.channels.length} channel(s), numbered from 0`,
-      );
+  try {
+    if (v.iq) {
+      if (nc !== 2)
+        throw new UsageError(
+          `--iq needs an I/Q file of exactly two channels (I left, Q right); ${file} has ${nc} channel${nc === 1 ? '' : 's'}`,
+        );
+      [i, q] = readSpan(wav, file, startFrame, frames, [0, 1]) as [Float32Array, Float32Array];
+    } else {
+      const ch = numberOpt('channel', v.channel ?? '0')!;
+      if (!Number.isInteger(ch) || ch < 0 || ch >= nc) {
+        throw new UsageError(
+          `--channel ${ch} does not exist: the file has ${nc} channel${nc === 1 ? '' : 's'}, numbered from 0`,
+        );
+      }
+      [i] = readSpan(wav, file, startFrame, frames, [ch]) as [Float32Array];
     }
-    i = wav.channels[ch]!;
+  } finally {
+    wav.close();
   }
+  const partial =
+    frames < total
+      ? `read ${(frames / fs).toFixed(3)} s from ${(startFrame / fs).toFixed(3)} s of a ${(total / fs).toFixed(3)} s capture (--start, --length choose the part)`
+      : undefined;
   const offset = numberOpt('offset', v.offset);
   let text = '';
   let json: unknown;
@@ -142,13 +215,15 @@ export async function run(argv: string[]): Promise<number> {
     if (!v.iq && offset === undefined) {
       throw new UsageError('--tone needs --iq (I/Q capture) or --offset HZ (receiver audio, carrier at HZ)');
     }
-    const r = measureSideband(i, q, fs, {
-      toneHz,
-      sideband,
-      offsetHz: offset,
-      receiverSideband: rxSideband,
-      ...opts,
-    });
+    const r = inCliWords(() =>
+      measureSideband(i, q, fs, {
+        toneHz,
+        sideband,
+        offsetHz: offset,
+        receiverSideband: rxSideband,
+        ...opts,
+      }),
+    );
     json = {
       file: positionals[0],
       sampleRate: fs,
@@ -185,7 +260,9 @@ export async function run(argv: string[]): Promise<number> {
       return f;
     };
     const capture = q ? { i, q } : i;
-    const r = measureTwoTone(capture, fs, [place(a), place(b)], opts);
+    if (a === b)
+      throw new UsageError(`--two-tone ${a},${b} is one tone twice: give two different frequencies`);
+    const r = inCliWords(() => measureTwoTone(capture, fs, [place(a), place(b)], opts));
     json = { file: positionals[0], sampleRate: fs, capture: v.iq ? 'iq' : 'audio', ...r };
     const ref = r.toneDbfs;
     text =
@@ -203,17 +280,29 @@ export async function run(argv: string[]): Promise<number> {
         ['tone imbalance', `${fixed(r.toneImbalanceDb, 2)} dB`],
       ]);
   } else {
+    if (typeof v.tones !== 'string' || v.tones.trim() === '')
+      throw new UsageError('--tones needs frequencies in Hz, e.g. --tones 700,1900');
     const freqs = numberListOpt('tones', v.tones, ',')!;
+    for (const f of freqs) {
+      const lim = fs / 2;
+      if (q ? !(f !== 0 && Math.abs(f) < lim) : !(f > 0 && f < lim)) {
+        throw new UsageError(
+          `--tones ${f} Hz must lie ${q ? `between -${lim} and ${lim} Hz, not at 0 Hz (the carrier)` : `above 0 Hz and below Nyquist ${lim} Hz`}`,
+        );
+      }
+    }
     const capture = q ? { i, q } : i;
-    const r = measureTones(capture, fs, freqs, opts);
+    const r = inCliWords(() => measureTones(capture, fs, freqs, opts));
     json = { file: positionals[0], sampleRate: fs, capture: q ? 'iq' : 'audio', tones: r };
     text = formatTable([HEAD, ...r.map((t) => toneRow(`${t.nominalHz} Hz`, t))]);
   }
+  Object.assign(json as object, { startFrame, framesRead: frames, totalFrames: total });
   const out =
     format === 'json'
       ? `${JSON.stringify(json, (_k, x) => (typeof x === 'number' ? round(x, 6) : x), 2)}\n`
       : `${text}\n${cautionsText()}\n`;
-  if (v.out !== undefined) writeFileSync(v.out as string, out);
+  if (partial !== undefined) process.stderr.write(`note: ${partial}\n`);
+  if (outFile !== undefined) writeFileAtomic(outFile, out);
   else process.stdout.write(out);
   return 0;
 }

@@ -4,23 +4,31 @@
  * output levels read back from what was written, the predicted suppression, and the transmitting
  * cautions.
  */
-import { readFileSync, writeFileSync } from 'node:fs';
 import { cautionsText } from '../core/cautions.js';
-import { OrthotoneError } from '../core/errors.js';
+import { isOrthotoneError } from '../core/errors.js';
 import type { Trims } from '../core/trims.js';
 import { validateTrims, ZERO_TRIMS } from '../core/trims.js';
 import { ampToDb, dbToAmp, powToDb } from '../core/units.js';
 import { designNetwork } from '../design/design-network.js';
+import { kitPlan, kitTrimWords } from '../design/kit-arithmetic.js';
 import type { Network } from '../design/network.js';
-import { parseNetworkJson } from '../export/network-json.js';
-import { renderKit } from '../generate/fixed-point.js';
+import { KitModel } from '../generate/fixed-point.js';
 import { predictCarrierDbc, predictOutputPeaks, predictSuppressionDb } from '../generate/prediction.js';
 import { createQuadratureGenerator } from '../generate/quadrature-generator.js';
 import { createSignalSource, type SignalLevels, type SignalSpec, signalLevels } from '../generate/sources.js';
 import type { Sideband } from '../generate/trim-stage.js';
-import { readWavFile, toMono, type WavEncoding, writeIqWavFile } from '../node/wav.js';
-import { choiceOpt, numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
+import { assertDistinctFiles, checkFreeSpace, createTextWriter } from '../node/files.js';
+import {
+  createWavWriter,
+  openWavReader,
+  WAV_ENCODINGS,
+  type WavEncoding,
+  type WavReader,
+  type WavWriteReport,
+} from '../node/wav.js';
+import { choiceOpt, inCliWords, numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
 import { arithmeticOpt, DESIGN_OPTIONS, specFromOptions } from './design.js';
+import { disagreementWarning, loadNetworkFile } from './network-file.js';
 import { fixed, formatPairs } from './table.js';
 
 const HELP = `usage: orthotone render [NETWORK.json] [options] --out FILE.wav
@@ -48,14 +56,15 @@ trims and sideband:
   --dc-i X, --dc-q X     DC added to I and Q, full-scale units (|x| <= 1)
 output:
   --out FILE.wav         the I/Q file to write (required)
-  --encoding E           float32 (default) | int24 | int16
+  --encoding E           float32 (default) | float64 | int32 | int24 | int16 | uint8
+                         (RF64 when the data passes the 4 GiB limit of a plain WAV)
   --vectors FILE.csv     also write test vectors for a firmware port: n,input,i,q per sample
-                         (float32 values, 9 significant digits; trims and network as above;
-                         with --arithmetic, the kit's exact output in round-trip digits)
+                         (float32 values, 9 significant digits; trims and network as above)
 arithmetic:
   --arithmetic A         double (default) | float | q31 | q15: run the firmware kit's arithmetic,
                          bit-exact with 'orthotone firmware' kits (without a network file, the
-                         design also meets --target with that arithmetic's coefficients)
+                         design also meets --target with that arithmetic's coefficients); --vectors
+                         then holds the kit's exact output in round-trip digits
   --max-skew N           the kit's skew stage size, whole samples (as 'firmware --max-skew';
                          default: the skew rounded up)
   --json                 print the report as JSON
@@ -91,6 +100,22 @@ function complexToneAmplitude(
   }
   return Math.hypot(re, im) / sw;
 }
+
+/** Frames generated and written per block: memory stays bounded whatever the duration. */
+const BLOCK = 16384;
+/** Longest signal rendered, s. */
+const MAX_DURATION_S = 3600;
+/** Library keys of a signal spec and the options that set them. */
+const SIGNAL_NAMES: Readonly<Record<string, string>> = Object.freeze({
+  levelDbfs: '--level',
+  'frequenciesHz\\[\\d\\]': '--two-tone',
+  frequenciesHz: '--two-tone',
+  frequencyHz: '--tone',
+  durationSeconds: '--duration',
+  startHz: '--sweep-band',
+  endHz: '--sweep-band',
+  seed: '--seed',
+});
 
 const dbText = (x: number, digits = 2): string =>
   Number.isFinite(x) ? fixed(x, digits) : x > 0 ? 'inf' : '-inf';
@@ -152,19 +177,6 @@ function trimsFromOptions(v: Record<string, unknown>): Partial<Trims> {
 }
 
 /**
- * Writes firmware test vectors as CSV: `n,input,i,q`, one row per sample, float32 values at 9
- * significant digits (enough to round-trip binary32), RFC 4180 layout.
- * @throws Node file-system errors when FILE cannot be written (reported as one line by the CLI).
- */
-function writeVectors(file: string, x: Float32Array, i: Float32Array, q: Float32Array): void {
-  const g = (v: number): string => String(Number(v.toPrecision(9)));
-  const rows = new Array<string>(x.length + 1);
-  rows[0] = 'n,input,i,q';
-  for (let k = 0; k < x.length; k++) rows[k + 1] = `${k},${g(x[k]!)},${g(i[k]!)},${g(q[k]!)}`;
-  writeFileSync(file, `${rows.join('\n')}\n`);
-}
-
-/**
  * Runs `orthotone render`; returns the exit status (0).
  * @throws {UsageError} for bad options, an unreadable or silent input, or an unreadable network
  *   file; OrthotoneError (INVALID_DOCUMENT for a bad network document, INVALID_ARGUMENT for trims,
@@ -209,28 +221,58 @@ export async function run(argv: string[]): Promise<number> {
   }
   if (positionals.length > 1) throw new UsageError('give at most one network FILE');
   if (typeof v.out !== 'string') throw new UsageError('give the output file: --out FILE.wav');
-  const encoding = choiceOpt<WavEncoding>('encoding', v.encoding, ['float32', 'int24', 'int16'], 'float32');
-  const sideband = choiceOpt<Sideband>('sideband', v.sideband, ['upper', 'lower'], 'upper');
-  const trims = trimsFromOptions(v);
 
-  // Input recording first: without a network file its rate sets the design rate.
-  let input: Float32Array | null = null;
-  let inputRate = 0;
-  if (typeof v.input === 'string') {
-    let d: Awaited<ReturnType<typeof readWavFile>>;
+  const outFile = v.out;
+  const vectorsFile = typeof v.vectors === 'string' ? v.vectors : undefined;
+  const inputFile = typeof v.input === 'string' ? v.input : undefined;
+  const netFile = positionals[0];
+  // Before any work: no output may be an input or another output.
+  assertDistinctFiles(
+    [
+      ['NETWORK', netFile],
+      ['--input', inputFile],
+    ],
+    [
+      ['--out', outFile],
+      ['--vectors', vectorsFile],
+    ],
+  );
+
+  // Input recording first: without a network file its rate sets the design rate. It is read in
+  // blocks, twice (levels first, then the render), never held whole.
+  let input: WavReader | null = null;
+  if (inputFile !== undefined) {
     try {
-      d = await readWavFile(v.input);
+      input = openWavReader(inputFile);
     } catch (e) {
-      if (e instanceof OrthotoneError) throw e;
+      if (isOrthotoneError(e)) throw new UsageError(`--input ${e.message}`);
       throw new UsageError(
-        `cannot read ${v.input}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`,
+        `cannot read --input ${inputFile}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`,
       );
     }
-    input = toMono(d);
-    inputRate = d.sampleRate;
   }
+  try {
+    return await renderWith(v, positionals, input, outFile, vectorsFile);
+  } finally {
+    input?.close();
+  }
+}
+
+async function renderWith(
+  v: Record<string, unknown>,
+  positionals: string[],
+  input: WavReader | null,
+  outFile: string,
+  vectorsFile: string | undefined,
+): Promise<number> {
+  const encoding = choiceOpt<WavEncoding>('encoding', v.encoding, WAV_ENCODINGS, 'float32');
+  const sideband = choiceOpt<Sideband>('sideband', v.sideband, ['upper', 'lower'], 'upper');
+  const trims = inCliWords(() => trimsFromOptions(v));
+  const inputRate = input?.info.sampleRate ?? 0;
+  const inputFile = v.input as string | undefined;
 
   let net: Network;
+  let disagreements: string[] = [];
   const file = positionals[0];
   if (file !== undefined) {
     const designGiven = Object.keys(DESIGN_OPTIONS).filter((k) => k !== 'arithmetic' && v[k] !== undefined);
@@ -239,64 +281,103 @@ export async function run(argv: string[]): Promise<number> {
         `a network file was given: drop the design options (--${designGiven.join(', --')})`,
       );
     }
-    let text: string;
-    try {
-      text = readFileSync(file, 'utf8');
-    } catch (e) {
-      throw new UsageError(
-        `cannot read ${file}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`,
-      );
-    }
-    net = parseNetworkJson(text);
+    const checked = loadNetworkFile(file);
+    net = checked.net;
+    disagreements = checked.disagreements;
   } else {
     const opts = { ...v };
     if (input && opts.rate === undefined) opts.rate = String(inputRate);
-    net = designNetwork(specFromOptions(opts));
+    net = inCliWords(() => designNetwork(specFromOptions(opts)));
   }
   const fs = net.sampleRate;
+  if (!Number.isInteger(fs)) {
+    throw new UsageError(
+      `the network runs at ${fs} Hz, which a WAV file cannot hold: design it for a whole number of Hz`,
+    );
+  }
   if (input && inputRate !== fs) {
     throw new UsageError(
-      `${v.input as string} is at ${inputRate} Hz but the network runs at ${fs} Hz: resample the input or design for ${inputRate} Hz`,
+      `${inputFile} is at ${inputRate} Hz but the network runs at ${fs} Hz: resample the input or design for ${inputRate} Hz`,
     );
   }
 
   const spec = signalFromOptions(v, net);
   let levels: SignalLevels;
   let frames: number;
+  let inputGain = 1;
   if (spec) {
-    levels = signalLevels(spec, fs);
+    if (spec.kind === 'tone' || spec.kind === 'two-tone') {
+      const tones = spec.kind === 'tone' ? [spec.frequencyHz] : spec.frequenciesHz;
+      const opt = spec.kind === 'tone' ? 'tone' : 'two-tone';
+      for (const f of tones) {
+        if (!(f > 0 && f < fs / 2))
+          throw new UsageError(`--${opt} ${f} Hz must lie above 0 Hz and below Nyquist ${fs / 2} Hz`);
+      }
+      if (tones.length === 2 && tones[0] === tones[1])
+        throw new UsageError(
+          `--two-tone ${tones[0]},${tones[1]} is one tone twice: give two different frequencies`,
+        );
+    }
+    levels = inCliWords(() => signalLevels(spec, fs), SIGNAL_NAMES);
     const duration = numberOpt('duration', v.duration) ?? 5;
-    if (!(duration > 0 && duration <= 3600))
-      throw new UsageError(`--duration ${duration} must be from 0 to 3600 s`);
+    if (!(duration > 0 && duration <= MAX_DURATION_S))
+      throw new UsageError(`--duration ${duration} s must be more than 0 and at most ${MAX_DURATION_S} s`);
     frames = Math.round(duration * fs);
+    if (frames < 1)
+      throw new UsageError(
+        `--duration ${duration} s is shorter than one sample at ${fs} Hz: give at least ${1 / fs} s`,
+      );
   } else {
-    const x = input!;
+    // Pass 1 over the input: levels, and no damaged (non-finite) samples.
+    const r = input!;
+    frames = r.info.frames;
+    if (frames === 0) throw new UsageError(`--input ${inputFile} holds no samples`);
+    const nc = r.info.channels;
+    const bufs = Array.from({ length: nc }, () => new Float32Array(BLOCK));
+    const mono = new Float32Array(BLOCK);
     let peak = 0;
     let pow = 0;
-    for (let k = 0; k < x.length; k++) {
-      const a = Math.abs(x[k]!);
-      if (a > peak) peak = a;
-      pow += x[k]! * x[k]!;
+    for (let o = 0; o < frames; o += BLOCK) {
+      const n = r.read(bufs, Math.min(BLOCK, frames - o));
+      for (let c = 0; c < nc; c++) {
+        const b = bufs[c]!;
+        for (let k = 0; k < n; k++) {
+          if (!Number.isFinite(b[k]!)) {
+            throw new UsageError(
+              `--input ${inputFile} holds a non-finite sample (${b[k]}) at frame ${o + k}, channel ${c}: the file is damaged`,
+            );
+          }
+        }
+      }
+      toMonoBlock(bufs, n, mono);
+      for (let k = 0; k < n; k++) {
+        const a = Math.abs(mono[k]!);
+        if (a > peak) peak = a;
+        pow += mono[k]! * mono[k]!;
+      }
+      if (n === 0) break;
     }
     const level = numberOpt('level', v.level);
     if (level !== undefined) {
-      if (peak === 0) throw new UsageError(`${v.input as string} is silent: --level cannot scale it`);
-      const g = dbToAmp(level) / peak;
-      for (let k = 0; k < x.length; k++) x[k]! *= g;
-      pow *= g * g;
-      peak *= g;
+      if (peak === 0) throw new UsageError(`${inputFile} is silent: --level cannot scale it`);
+      inputGain = dbToAmp(level) / peak;
+      pow *= inputGain * inputGain;
+      peak *= inputGain;
     }
     levels = {
       toneDbfs: [],
       pepDbfs: Number.NaN,
-      rmsDbfs: powToDb((2 * pow) / Math.max(1, x.length)),
+      rmsDbfs: powToDb((2 * pow) / Math.max(1, frames)),
       peak,
     };
-    frames = x.length;
+    r.seek(0);
   }
 
-  // Before rendering: will signal plus trims exceed full scale?
+  // Before rendering: will signal plus trims exceed full scale? Will the file fit on the disk?
   const predictedPeaks = predictOutputPeaks(levels.peak, trims, net);
+  const width = { uint8: 1, int16: 2, int24: 3, int32: 4, float32: 4, float64: 8 }[encoding];
+  const dataBytes = frames * 2 * width;
+  checkFreeSpace(outFile, dataBytes + 1024, '--out');
 
   const arithmetic = arithmeticOpt(v.arithmetic);
   const maxSkew = numberOpt('max-skew', v['max-skew']) ?? Math.ceil(Math.abs(trims.skewSamples ?? 0));
@@ -304,61 +385,101 @@ export async function run(argv: string[]): Promise<number> {
     net,
     arithmetic === 'double' ? { trims, sideband } : { trims, sideband, arithmetic, maxSkewSamples: maxSkew },
   );
-  const i = new Float32Array(frames);
-  const q = new Float32Array(frames);
-  const x = spec ? new Float32Array(frames) : input!;
-  if (spec) {
-    const src = createSignalSource(spec, fs);
-    for (let o = 0; o < frames; o += 4096) {
-      const n = Math.min(4096, frames - o);
-      const b = x.subarray(o, o + n);
-      src.fill(b);
-      gen.process(b, i.subarray(o, o + n), q.subarray(o, o + n));
-    }
-  } else {
-    gen.process(x, i, q);
-  }
-  const stats = { ...gen.stats };
-  const report = await writeIqWavFile(v.out, i, q, fs, encoding);
-  if (typeof v.vectors === 'string') {
-    if (arithmetic === 'double') writeVectors(v.vectors, x, i, q);
-    else {
-      // The kit's own output, exactly (Q31 does not fit the float32 WAV samples), in digits that
-      // round-trip a double, so a host-check or firmware fed the same input can match bit for bit.
-      const k = renderKit(net, arithmetic, { ...ZERO_TRIMS, ...trims }, sideband === 'lower', maxSkew, x);
-      const rows = new Array<string>(x.length + 1);
-      rows[0] = 'n,input,i,q';
-      for (let n = 0; n < x.length; n++)
-        rows[n + 1] = `${n},${String(x[n])},${String(k.i[n])},${String(k.q[n])}`;
-      writeFileSync(v.vectors, `${rows.join('\n')}\n`);
-    }
-  }
-
-  // Realised levels, read back from the output.
+  // With a kit arithmetic the vectors hold the kit's own output exactly (Q31 does not fit the
+  // float32 samples the generator returns), in digits that round-trip a double.
+  const kit =
+    arithmetic === 'double' || vectorsFile === undefined
+      ? null
+      : new KitModel(
+          kitPlan(net, arithmetic),
+          maxSkew,
+          kitTrimWords({ ...ZERO_TRIMS, ...trims }, sideband === 'lower', arithmetic, maxSkew),
+        );
+  const kx = new Float64Array(kit ? BLOCK : 0);
+  const ki = new Float64Array(kit ? BLOCK : 0);
+  const kq = new Float64Array(kit ? BLOCK : 0);
+  // Realised levels are read back from what is written; the tone readback keeps one window of it.
+  const settle = Math.min(Math.floor(frames / 2), Math.round(0.05 * fs) + 4 * gen.trimLatencySamples);
+  const nRead = Math.min(frames - settle, 1 << 17);
+  const winI = new Float32Array(Math.max(0, nRead));
+  const winQ = new Float32Array(Math.max(0, nRead));
+  const x = new Float32Array(BLOCK);
+  const i = new Float32Array(BLOCK);
+  const q = new Float32Array(BLOCK);
+  const inBufs = input ? Array.from({ length: input.info.channels }, () => new Float32Array(BLOCK)) : [];
+  const src = spec ? createSignalSource(spec, fs) : null;
+  const writer = createWavWriter(outFile, { channels: 2, sampleRate: fs, encoding });
+  const vectors = vectorsFile === undefined ? null : createTextWriter(vectorsFile);
   let peakI = 0;
   let peakQ = 0;
   let peakEnv = 0;
   let powI = 0;
   let powQ = 0;
-  for (let k = 0; k < frames; k++) {
-    const a = i[k]!;
-    const b = q[k]!;
-    peakI = Math.max(peakI, Math.abs(a));
-    peakQ = Math.max(peakQ, Math.abs(b));
-    peakEnv = Math.max(peakEnv, Math.hypot(a, b));
-    powI += a * a;
-    powQ += b * b;
+  let report: WavWriteReport;
+  try {
+    vectors?.write('n,input,i,q\n');
+    const g = (val: number): string => String(Number(val.toPrecision(9)));
+    for (let o = 0; o < frames; o += BLOCK) {
+      const n = Math.min(BLOCK, frames - o);
+      const xb = x.subarray(0, n);
+      if (src) src.fill(xb);
+      else {
+        const got = input!.read(inBufs, n);
+        toMonoBlock(inBufs, got, x);
+        for (let k = 0; k < n; k++) x[k] = k < got ? x[k]! * inputGain : 0;
+      }
+      gen.process(xb, i.subarray(0, n), q.subarray(0, n));
+      writer.write([i, q], n);
+      for (let k = 0; k < n; k++) {
+        const a = i[k]!;
+        const b = q[k]!;
+        const aa = Math.abs(a);
+        const ab = Math.abs(b);
+        if (aa > peakI) peakI = aa;
+        if (ab > peakQ) peakQ = ab;
+        const e = a * a + b * b;
+        if (e > peakEnv) peakEnv = e;
+        powI += a * a;
+        powQ += b * b;
+      }
+      // Copy the part of this block that falls in the readback window.
+      const from = Math.max(o, settle);
+      const to = Math.min(o + n, settle + nRead);
+      if (to > from) {
+        winI.set(i.subarray(from - o, to - o), from - settle);
+        winQ.set(q.subarray(from - o, to - o), from - settle);
+      }
+      if (vectors && kit) {
+        for (let k = 0; k < n; k++) kx[k] = kit.sampleFromFullScale(x[k]!);
+        kit.processSamples(kx, ki, kq, n);
+        let text = '';
+        for (let k = 0; k < n; k++) {
+          text += `${o + k},${String(x[k]!)},${String(kit.sampleToFullScale(ki[k]!))},${String(kit.sampleToFullScale(kq[k]!))}\n`;
+        }
+        vectors.write(text);
+      } else if (vectors) {
+        let text = '';
+        for (let k = 0; k < n; k++) text += `${o + k},${g(x[k]!)},${g(i[k]!)},${g(q[k]!)}\n`;
+        vectors.write(text);
+      }
+    }
+    report = writer.close();
+    vectors?.close();
+  } catch (e) {
+    writer.abort();
+    vectors?.abort();
+    throw e;
   }
+  peakEnv = Math.sqrt(peakEnv);
+  const stats = { ...gen.stats };
+
   const rmsDbfs = (p: number) => powToDb((2 * p) / Math.max(1, frames));
   const tones =
     spec?.kind === 'tone' ? [spec.frequencyHz] : spec?.kind === 'two-tone' ? spec.frequenciesHz : [];
-  // Skip the switch-on transient (network and trim delays, several times over).
-  const settle = Math.min(Math.floor(frames / 2), Math.round(0.05 * fs) + 4 * gen.trimLatencySamples);
-  const nRead = Math.min(frames - settle, 1 << 17);
   const sign = sideband === 'lower' ? -1 : 1;
   const toneRows = tones.map((f) => {
-    const wanted = nRead > 256 ? complexToneAmplitude(i, q, settle, nRead, sign * f, fs) : Number.NaN;
-    const image = nRead > 256 ? complexToneAmplitude(i, q, settle, nRead, -sign * f, fs) : Number.NaN;
+    const wanted = nRead > 256 ? complexToneAmplitude(winI, winQ, 0, nRead, sign * f, fs) : Number.NaN;
+    const image = nRead > 256 ? complexToneAmplitude(winI, winQ, 0, nRead, -sign * f, fs) : Number.NaN;
     return {
       frequencyHz: f,
       wantedDbfs: ampToDb(wanted),
@@ -367,24 +488,27 @@ export async function run(argv: string[]): Promise<number> {
       predictedCarrierDbc: predictCarrierDbc(trims, dbToAmp(levels.toneDbfs[tones.indexOf(f)] ?? 0)),
     };
   });
-  const carrierDbfs = nRead > 256 ? ampToDb(complexToneAmplitude(i, q, settle, nRead, 0, fs)) : Number.NaN;
+  const carrierDbfs = nRead > 256 ? ampToDb(complexToneAmplitude(winI, winQ, 0, nRead, 0, fs)) : Number.NaN;
 
   const warnings: string[] = [];
+  if (disagreements.length > 0) warnings.push(disagreementWarning(positionals[0]!, disagreements));
   if (predictedPeaks.overFullScale || stats.overFullScale > 0) {
     warnings.push(
       `WARNING: signal plus trims exceed full scale: predicted peak ${dbText(predictedPeaks.peakDbfs)} dBFS, ` +
         `${stats.overFullScale} output samples over full scale (peak ${dbText(ampToDb(stats.peak))} dBFS). ` +
-        (encoding === 'float32'
+        (encoding.startsWith('float')
           ? 'The float file keeps them, but a DAC or player will clip: lower --level or the gain trim.'
           : `${report.clippedSamples} samples were clipped in the ${encoding} file: lower --level or the gain trim.`),
     );
   }
   if (stats.nonFiniteInputs > 0)
     warnings.push(`WARNING: ${stats.nonFiniteInputs} non-finite input samples were replaced by 0.`);
+  const rf64 = 44 + dataBytes > 0xffffffff;
 
   const result = {
-    out: v.out,
+    out: outFile,
     encoding,
+    container: rf64 ? 'RF64' : 'RIFF',
     sampleRate: fs,
     frames,
     network: {
@@ -392,8 +516,9 @@ export async function run(argv: string[]): Promise<number> {
       band: net.band,
       predicted: net.predicted,
       latencySamples: net.cost.latencySamples,
+      storedFiguresAgree: disagreements.length === 0,
     },
-    signal: spec ?? { kind: 'input', file: v.input },
+    signal: spec ?? { kind: 'input', file: inputFile },
     signalLevels: levels,
     trims: { gainDb: 0, phaseDeg: 0, skewSamples: 0, dcI: 0, dcQ: 0, ...trims },
     sideband,
@@ -418,9 +543,9 @@ export async function run(argv: string[]): Promise<number> {
     const pairs: [string, string][] = [
       [
         'network',
-        `${net.kind}, band ${net.band[0]}-${net.band[1]} Hz at ${fs} Hz; predicted worst suppression ${dbText(net.predicted.worstSuppressionDb)} dB over the band`,
+        `${net.kind}, band ${net.band[0]}-${net.band[1]} Hz at ${fs} Hz; worst suppression ${dbText(net.predicted.worstSuppressionDb)} dB over the band (computed from the coefficients)`,
       ],
-      ['signal', describeSignal(spec, levels, v.input as string | undefined)],
+      ['signal', describeSignal(spec, levels, inputFile)],
       [
         'trims',
         `gain ${fixed(result.trims.gainDb, 3)} dB, phase ${fixed(result.trims.phaseDeg, 3)} deg, skew ${fixed(result.trims.skewSamples, 3)} samples, DC I ${result.trims.dcI}, DC Q ${result.trims.dcQ}; ${sideband} sideband`,
@@ -444,14 +569,25 @@ export async function run(argv: string[]): Promise<number> {
     }
     pairs.push([
       'wrote',
-      `${v.out} (${encoding}, stereo: left I, right Q, ${fs} Hz, ${frames} frames, ${fixed(frames / fs, 3)} s; I/Q delay through the trims ${gen.trimLatencySamples} samples)`,
+      `${outFile} (${encoding}${rf64 ? ', RF64: the data passes the 4 GiB limit of a plain WAV' : ''}, stereo: left I, right Q, ${fs} Hz, ${frames} frames, ${fixed(frames / fs, 3)} s; I/Q delay through the trims ${gen.trimLatencySamples} samples)`,
     ]);
-    if (typeof v.vectors === 'string') pairs.push(['vectors', `${v.vectors} (${frames} rows: n,input,i,q)`]);
+    if (vectorsFile !== undefined) pairs.push(['vectors', `${vectorsFile} (${frames} rows: n,input,i,q)`]);
     process.stdout.write(formatPairs(pairs));
   }
   for (const w of warnings) process.stderr.write(`${w}\n`);
   process.stdout.write(`\n${cautionsText()}\n`);
   return 0;
+}
+
+/** Mean of the channels into `out` (the first `n` frames). */
+function toMonoBlock(chans: Float32Array[], n: number, out: Float32Array): void {
+  const nc = chans.length;
+  if (nc === 1) {
+    out.set(chans[0]!.subarray(0, n));
+    return;
+  }
+  out.fill(0, 0, n);
+  for (const c of chans) for (let k = 0; k < n; k++) out[k]! += c[k]! / nc;
 }
 
 function describeSignal(spec: SignalSpec | null, l: SignalLevels, input?: string): string {

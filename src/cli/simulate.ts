@@ -4,11 +4,13 @@
  * the carrier at a chosen offset. Prints the drawn device and its predicted suppression.
  */
 import { cautionsText } from '../core/cautions.js';
+import { isOrthotoneError } from '../core/errors.js';
+import { assertDistinctFiles } from '../node/files.js';
+import { createWavWriter, openWavReader, type WavReader } from '../node/wav.js';
 import { createVirtualExciter } from '../simulate/exciter.js';
 import { drawDevice, HOMEBREW_BENCH_SEED, TOLERANCE_PRESETS } from '../simulate/model.js';
 import { predictedSuppression } from '../simulate/response.js';
-import { choiceOpt, lookupOpt, numberOpt, parseCommand, UsageError } from './args.js';
-import { readWav, writeWav } from './measure.js';
+import { choiceOpt, inCliWords, lookupOpt, numberOpt, parseCommand, UsageError } from './args.js';
 import { fixed, formatPairs, formatTable } from './table.js';
 
 const HELP = `usage: orthotone simulate IN.wav --out OUT.wav [options]
@@ -65,33 +67,80 @@ export async function run(argv: string[]): Promise<number> {
   const floorDbc = numberOpt('floor', v.floor ?? '-130')!;
   const harmonic = numberOpt('harmonic', v.harmonic ?? '1')!;
   const offset = numberOpt('offset', v.offset);
-  const wav = await readWav(positionals[0]!);
-  if (wav.channels.length < 2)
-    throw new UsageError(`${positionals[0]} has 1 channel: simulate needs I/Q (I left, Q right)`);
-  const fs = wav.sampleRate;
-  if (offset !== undefined && !(offset > 0 && offset < fs / 2)) {
-    throw new UsageError(`--offset ${offset} Hz must lie between 0 and ${fs / 2} Hz (Nyquist)`);
+  const inFile = positionals[0]!;
+  const outFile = v.out as string;
+  assertDistinctFiles([['IN.wav', inFile]], [['--out', outFile]]);
+  let wav: WavReader;
+  try {
+    wav = openWavReader(inFile);
+  } catch (e) {
+    if (isOrthotoneError(e)) throw e;
+    throw new UsageError(
+      `cannot read ${inFile}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`,
+    );
   }
-  const model = drawDevice(preset, deviceSeed);
-  const ex = createVirtualExciter(model, { sampleRate: fs, seed, floorDbc, harmonic });
-  const n = wav.channels[0]!.length;
-  const i = wav.channels[0]!;
-  const q = wav.channels[1]!;
-  const re = new Float32Array(n);
-  const im = new Float32Array(n);
-  const block = 4096;
-  for (let s = 0; s < n; s += block) {
-    const e = Math.min(n, s + block);
-    ex.process(i.subarray(s, e), q.subarray(s, e), re.subarray(s, e), im.subarray(s, e));
-  }
-  if (offset !== undefined) {
-    // A receiver on its upper sideband tuned `offset` below the carrier: audio = Re{z·e^{j2π·offset·t}}.
-    const audio = new Float32Array(n);
-    const w = (2 * Math.PI * offset) / fs;
-    for (let k = 0; k < n; k++) audio[k] = re[k]! * Math.cos(w * k) - im[k]! * Math.sin(w * k);
-    await writeWav(v.out as string, fs, [audio]);
-  } else {
-    await writeWav(v.out as string, fs, [re, im]);
+  let n: number;
+  let fs: number;
+  let ex: ReturnType<typeof createVirtualExciter>;
+  let model: ReturnType<typeof drawDevice>;
+  try {
+    const nc = wav.info.channels;
+    if (nc !== 2) {
+      throw new UsageError(
+        `${inFile} has ${nc} channel${nc === 1 ? '' : 's'}: simulate needs an I/Q file of exactly two (I left, Q right)`,
+      );
+    }
+    fs = wav.info.sampleRate;
+    if (offset !== undefined && !(offset > 0 && offset < fs / 2)) {
+      throw new UsageError(`--offset ${offset} Hz must lie between 0 and ${fs / 2} Hz (Nyquist)`);
+    }
+    model = inCliWords(() => drawDevice(preset, deviceSeed), { seed: '--device-seed' });
+    ex = inCliWords(() => createVirtualExciter(model, { sampleRate: fs, seed, floorDbc, harmonic }), {
+      seed: '--seed',
+      harmonic: '--harmonic',
+    });
+    n = wav.info.frames;
+    // In blocks from the file, through the exciter, into the file: bounded memory for any length.
+    const block = 16384;
+    const i = new Float32Array(block);
+    const q = new Float32Array(block);
+    const re = new Float32Array(block);
+    const im = new Float32Array(block);
+    const audio = new Float32Array(block);
+    const w = offset === undefined ? 0 : (2 * Math.PI * offset) / fs;
+    const writer = createWavWriter(outFile, {
+      channels: offset === undefined ? 2 : 1,
+      sampleRate: fs,
+      encoding: 'float32',
+    });
+    try {
+      for (let s = 0; s < n; s += block) {
+        const m = wav.read([i, q], Math.min(block, n - s));
+        for (let k = 0; k < m; k++) {
+          if (!Number.isFinite(i[k]!) || !Number.isFinite(q[k]!)) {
+            throw new UsageError(
+              `${inFile} holds a non-finite sample (${Number.isFinite(i[k]!) ? q[k] : i[k]}) at frame ${s + k}: the file is damaged`,
+            );
+          }
+        }
+        ex.process(i.subarray(0, m), q.subarray(0, m), re.subarray(0, m), im.subarray(0, m));
+        if (offset !== undefined) {
+          // A receiver on its upper sideband tuned `offset` below the carrier: audio = Re{z·e^{j2π·offset·t}}.
+          for (let k = 0; k < m; k++) {
+            const t = w * (s + k);
+            audio[k] = re[k]! * Math.cos(t) - im[k]! * Math.sin(t);
+          }
+          writer.write([audio], m);
+        } else writer.write([re, im], m);
+        if (m === 0) break;
+      }
+      writer.close();
+    } catch (e) {
+      writer.abort();
+      throw e;
+    }
+  } finally {
+    wav.close();
   }
   const freqs = [300, 700, 1000, 1800, 1900, 3000].filter((f) => f < 0.45 * fs);
   const pred = predictedSuppression(model, freqs);

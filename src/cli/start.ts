@@ -6,7 +6,7 @@
  * and writes the network, the profile, C headers and the I/Q WAV into ./out; ends with the
  * transmitting cautions.
  */
-import { mkdir, writeFile } from 'node:fs/promises';
+import { mkdir } from 'node:fs/promises';
 import { join, resolve } from 'node:path';
 import { calibrateSidebandAndCarrier } from '../calibrate/combined.js';
 import { createProfile, type ProfileReading, profileToJson } from '../calibrate/profile.js';
@@ -18,7 +18,8 @@ import { networkToJson } from '../export/network-json.js';
 import { profileToCHeader } from '../export/profile-header.js';
 import { createQuadratureGenerator } from '../generate/quadrature-generator.js';
 import { createSignalSource } from '../generate/sources.js';
-import { writeIqWavFile } from '../node/wav.js';
+import { writeFileSet } from '../node/files.js';
+import { encodeWav } from '../node/wav.js';
 import { createAnalyzer } from '../simulate/analyzer.js';
 import { createVirtualExciter } from '../simulate/exciter.js';
 import { HOMEBREW_BENCH_SEED, homebrewBenchDevice } from '../simulate/model.js';
@@ -173,8 +174,10 @@ export async function run(argv: string[]): Promise<number> {
     ['profile.json', profileToJson(profile)],
     ['calibration.h', profileToCHeader(profile)],
   ];
-  for (const [name, text] of files) await writeFile(join(outDir, name), text);
-  await writeIqWavFile(join(outDir, 'two-tone-iq.wav'), i, q, FS, 'float32');
+  writeFileSet(outDir, [
+    ...files.map(([name, text]) => [name, Buffer.from(text, 'utf8')] as [string, Uint8Array]),
+    ['two-tone-iq.wav', encodeWav([i, q], FS, 'float32').bytes],
+  ]);
   say(`\n4. wrote ${outDir}: ${[...files.map(([f]) => f), 'two-tone-iq.wav'].join(', ')}\n`);
   say(
     "   next: 'orthotone calibrate --prompt' to calibrate a real exciter from your analyzer readings,\n   'orthotone calibrate --simulate' to rehearse on other virtual devices.\n\n",

@@ -202,7 +202,10 @@ export function validateNetwork(doc: unknown): Network {
     bad(`format ${JSON.stringify(d.format)} is not 'orthotone-network': is this a network file?`, d.format);
   }
   if (d.version !== 1)
-    bad(`version ${String(d.version)} is not supported: this library reads version 1`, d.version);
+    bad(
+      `version ${JSON.stringify(d.version) ?? 'missing'} is not supported: this library reads version 1 (the number 1)`,
+      d.version,
+    );
   if (typeof d.sampleRate !== 'number' || !Number.isFinite(d.sampleRate) || d.sampleRate <= 0) {
     bad(`sampleRate ${String(d.sampleRate)} must be a positive number of Hz`, d.sampleRate);
   }

@@ -26,19 +26,34 @@ import {
 
 /** What a transport delivers to the link. */
 export interface ByteSink {
-  /** A chunk of bytes from the device. */
+  /**
+   * A chunk of bytes from the device.
+   * @throws never
+   */
   data(chunk: Uint8Array): void;
-  /** The stream closed (error set when it failed, e.g. the device was unplugged). */
+  /**
+   * The stream closed (error set when it failed, e.g. the device was unplugged).
+   * @throws never
+   */
   closed(error?: Error): void;
 }
 
 /** A duplex byte stream to a device: the only thing a transport has to provide. */
 export interface ByteChannel {
-  /** Starts delivery of incoming bytes to `sink` (called once). */
+  /**
+   * Starts delivery of incoming bytes to `sink` (called once).
+   * @throws never
+   */
   start(sink: ByteSink): void;
-  /** Sends bytes; resolves when handed to the operating system or browser. */
+  /**
+   * Sends bytes; resolves when handed to the operating system or browser.
+   * @throws rejects when the stream is closed or the write fails (the link treats it as a reset).
+   */
   write(bytes: Uint8Array): Promise<void>;
-  /** Closes the stream; never rejects. */
+  /**
+   * Closes the stream.
+   * @throws never (never rejects)
+   */
   close(): Promise<void>;
   /** A short description for messages, e.g. the port's path. */
   readonly label: string;
@@ -77,11 +92,20 @@ export interface DeviceLinkOptions {
   reconnectMs: number;
   /** Pause between reconnection attempts, ms (default 200). */
   reconnectIntervalMs: number;
-  /** Trims to re-apply after a reset; default the last trims set. A calibration passes its best. */
+  /**
+   * Trims to re-apply after a reset (dB, degrees, full scale); default the last trims set.
+   * @throws should not; an error fails the recovery.
+   */
   restoreTrims?: () => Partial<DeviceTrims> | undefined;
-  /** Called for each event. */
+  /**
+   * Called for each event.
+   * @throws ignored: a listener's error is swallowed.
+   */
   onEvent?: (e: LinkEvent) => void;
-  /** Clock, ms (default Date.now); for tests. */
+  /**
+   * Clock, ms (default Date.now); for tests.
+   * @throws should not.
+   */
   now?: () => number;
 }
 
@@ -154,17 +178,26 @@ export class DeviceLink {
     this.t0 = (this.opts.now ?? Date.now)();
   }
 
-  /** Every applied setting, greeting, reset and re-application, in order (a copy). */
+  /**
+   * Every applied setting, greeting, reset and re-application, in order (a copy).
+   * @throws never
+   */
   get history(): LinkRecord[] {
     return this.records.map((r) => ({ ...r }));
   }
 
-  /** The trims last confirmed by the device, if any. */
+  /**
+   * The trims last confirmed by the device, if any (dB, degrees, full scale).
+   * @throws never
+   */
   get appliedTrims(): DeviceTrims | undefined {
     return this.last.trims ? { ...this.last.trims } : undefined;
   }
 
-  /** A short description of the stream, e.g. the port path. */
+  /**
+   * A short description of the stream, e.g. the port path.
+   * @throws never
+   */
   get label(): string {
     return this.channel?.label ?? '(closed)';
   }
@@ -318,7 +351,10 @@ export class DeviceLink {
     return undefined;
   }
 
-  /** Opens the stream and greets; used by {@link openDeviceLink}. @internal */
+  /**
+   * Opens the stream and greets; used by {@link openDeviceLink}. @internal
+   * @throws {OrthotoneError} as {@link openDeviceLink}.
+   */
   async start(): Promise<DeviceInfo> {
     this.attach(await this.connect());
     try {

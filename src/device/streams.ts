@@ -10,6 +10,10 @@ import type { ByteChannel, ByteSink, Connector } from './link.js';
 
 /** The part of a `ReadableStream<Uint8Array>` the adapter uses. */
 export interface ReadableLike {
+  /**
+   * A reader that locks the stream.
+   * @throws when the stream is already locked.
+   */
   getReader(): {
     read(): Promise<{ done: boolean; value?: Uint8Array | undefined }>;
     cancel(reason?: unknown): Promise<void>;
@@ -19,6 +23,10 @@ export interface ReadableLike {
 
 /** The part of a `WritableStream<Uint8Array>` the adapter uses. */
 export interface WritableLike {
+  /**
+   * A writer that locks the stream.
+   * @throws when the stream is already locked.
+   */
   getWriter(): {
     write(chunk: Uint8Array): Promise<void>;
     close(): Promise<void>;
@@ -93,7 +101,15 @@ export function streamChannel(
 
 /** The part of a Web Serial `SerialPort` the adapter uses. */
 export interface SerialPortLike {
+  /**
+   * Opens the port at a line rate, bit/s.
+   * @throws rejects when the port cannot be opened (in use, gone).
+   */
   open(options: { baudRate: number }): Promise<void>;
+  /**
+   * Closes the port.
+   * @throws rejects when the streams are still locked.
+   */
   close(): Promise<void>;
   readonly readable: ReadableLike | null;
   readonly writable: WritableLike | null;
@@ -125,11 +141,35 @@ export function webSerialConnector(port: SerialPortLike, baudRate = 115200): Con
 export interface WebSocketLike {
   binaryType: string;
   readonly readyState: number;
+  /**
+   * Sends one binary message.
+   * @throws when the socket is not open.
+   */
   send(data: Uint8Array): void;
+  /**
+   * Closes the socket with a code and reason.
+   * @throws never in normal use.
+   */
   close(code?: number, reason?: string): void;
+  /**
+   * Set by the adapter: the socket opened.
+   * @throws never
+   */
   onopen: ((ev: unknown) => void) | null;
+  /**
+   * Set by the adapter: a message arrived.
+   * @throws never
+   */
   onmessage: ((ev: { data: unknown }) => void) | null;
+  /**
+   * Set by the adapter: the socket closed.
+   * @throws never
+   */
   onclose: ((ev: { code?: number; reason?: string }) => void) | null;
+  /**
+   * Set by the adapter: an error (a close follows).
+   * @throws never
+   */
   onerror: ((ev: unknown) => void) | null;
 }
 

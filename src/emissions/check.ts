@@ -21,6 +21,7 @@ import {
   type LimitReference,
   type ResolvedLimit,
   RULE_SETS,
+  ruleSetName,
 } from './limits.js';
 import { type LadderElement, ladderAttenuationDb } from './output-filter.js';
 
@@ -57,7 +58,7 @@ export interface EmissionItem {
   pass: boolean;
   reference: LimitReference;
   domain: EmissionDomain;
-  /** Rule set the limit comes from. */
+  /** Rule set the limit comes from, or 'practice' for the out-of-band practice figure. */
   rule: string;
   /** Whether the limit is the rule set's own ('rule') or the out-of-band practice figure ('practice'). */
   limitKind: 'rule' | 'practice';
@@ -102,7 +103,8 @@ export interface EmissionCheck {
 /**
  * Checks every product against every chosen rule set.
  * @param options see {@link EmissionCheckOptions}; frequencies in Hz, levels in dB.
- * @returns items (one per product and rule set), overall pass, domain bands, resolved limits, notes.
+ * @returns items (one per product and rule set covering it; one practice row for a product no rule
+ *   set covers), overall pass, domain bands, resolved limits, notes.
  * @throws {OrthotoneError} INVALID_ARGUMENT for an unknown rule set, a rule set that does not cover
  *   the carrier frequency, or a non-finite level or frequency.
  * Reference: limits.ts (47 CFR §97.307; Rec. ITU-R SM.329; RR Art. 1 domains); PEP and mean power
@@ -117,15 +119,19 @@ export function checkEmissions(options: EmissionCheckOptions): EmissionCheck {
   if (names.length === 0) {
     throw new OrthotoneError('INVALID_ARGUMENT', 'no rule set chosen: give --rules or --limit-dbc');
   }
-  const limits = names.map((n) => {
-    const rs = Object.hasOwn(RULE_SETS, n) ? RULE_SETS[n] : undefined;
-    if (!rs) {
+  const keys = names.map((n) => {
+    const key = ruleSetName(n);
+    if (key === undefined) {
       throw new OrthotoneError(
         'INVALID_ARGUMENT',
         `rule set ${JSON.stringify(n)} is not known: use ${Object.keys(RULE_SETS).join(', ')}`,
         n,
       );
     }
+    return key;
+  });
+  const limits = [...new Set(keys)].map((key) => {
+    const rs = RULE_SETS[key]!;
     return rs.resolve({
       carrierHz: fc,
       ...(options.powerW !== undefined ? { powerW: requirePositive('powerW', options.powerW, 'W') } : {}),
@@ -147,8 +153,12 @@ export function checkEmissions(options: EmissionCheckOptions): EmissionCheck {
       : 0;
     const pep = p.levelDbPep - filterDb;
     const domain = domainOf(bands, p.frequencyHz);
+    let practiceShown = false;
     for (const lim of limits) {
       const ruleApplies = lim.domains.includes(domain);
+      // One practice row per product, however many rule sets leave it uncovered.
+      if (!ruleApplies && practiceShown) continue;
+      if (!ruleApplies) practiceShown = true;
       const reference: LimitReference = ruleApplies ? lim.reference : 'pep';
       const levelDbc = reference === 'mean' ? pep + p.pepToMeanDb : pep;
       const limitDbc = ruleApplies ? lim.limitDbc : practice;
@@ -163,7 +173,7 @@ export function checkEmissions(options: EmissionCheckOptions): EmissionCheck {
         pass: marginDb >= 0,
         reference,
         domain,
-        rule: lim.rule,
+        rule: ruleApplies ? lim.rule : 'practice',
         limitKind: ruleApplies ? 'rule' : 'practice',
         filterDb,
         source: p.source,

@@ -182,6 +182,31 @@ export const RULE_SETS: Readonly<Record<string, RuleSet>> = Object.freeze({
   },
 });
 
+/** Other names accepted for the rule sets (lower case). */
+export const RULE_ALIASES: Readonly<Record<string, string>> = Object.freeze({
+  fcc: 'fcc-97.307',
+  'fcc-97.307d': 'fcc-97.307',
+  'fcc-97.307(d)': 'fcc-97.307',
+  '97.307': 'fcc-97.307',
+  '47cfr97.307': 'fcc-97.307',
+  itu: 'itu-sm329-amateur',
+  'itu-sm329': 'itu-sm329-amateur',
+  sm329: 'itu-sm329-amateur',
+  'itu-sm329-a': 'itu-sm329-amateur',
+  'itu-amateur': 'itu-sm329-amateur',
+  'itu-general': 'itu-sm329-general',
+});
+
+/**
+ * The rule-set name for a name or alias (case-insensitive), or undefined when unknown.
+ * @throws never
+ */
+export function ruleSetName(name: string): string | undefined {
+  const k = String(name).trim().toLowerCase();
+  if (Object.hasOwn(RULE_SETS, k)) return k;
+  return Object.hasOwn(RULE_ALIASES, k) ? RULE_ALIASES[k] : undefined;
+}
+
 /** Default out-of-band practice figure, dB below PEP (common practice, no source). */
 export const DEFAULT_OOB_PRACTICE_DBC = -40;
 

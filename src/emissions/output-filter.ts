@@ -319,7 +319,8 @@ export function designOutputFilter(spec: OutputFilterSpec): OutputFilter {
 }
 
 /**
- * Validates a parsed output-filter document (as written by `orthotone output-filter --out`).
+ * Validates a parsed output-filter document (as written by `orthotone output-filter --out`; a
+ * document with only `elements` and optionally `impedanceOhms`, default 50 Ω, is accepted too).
  * @returns the document, typed.
  * @throws {OrthotoneError} INVALID_DOCUMENT naming the first bad field.
  */
@@ -328,17 +329,20 @@ export function validateOutputFilter(doc: unknown): OutputFilter {
     throw new OrthotoneError('INVALID_DOCUMENT', `output filter: ${m}`, doc);
   };
   if (typeof doc !== 'object' || doc === null) bad('must be a JSON object');
-  const d = doc as Record<string, unknown>;
-  if (d.format !== 'orthotone-output-filter') {
+  const d = { ...(doc as Record<string, unknown>) };
+  // A hand-written document may give only `elements` (and `impedanceOhms`, default 50 Ω).
+  if (d.format !== undefined && d.format !== 'orthotone-output-filter') {
     bad(
       `format ${JSON.stringify(d.format)} must be "orthotone-output-filter": write one with 'orthotone output-filter --out'`,
     );
   }
-  if (d.version !== 1)
+  if (d.version !== undefined && d.version !== 1) {
     bad(`version ${JSON.stringify(d.version)} is not supported: this library reads version 1`);
+  }
+  d.impedanceOhms ??= 50;
   const imp = d.impedanceOhms;
   if (typeof imp !== 'number' || !(imp > 0) || !Number.isFinite(imp))
-    bad('impedanceOhms must be a positive number');
+    bad('impedanceOhms must be a positive number of ohms');
   if (!Array.isArray(d.elements) || d.elements.length === 0) bad('elements must be a non-empty list');
   (d.elements as unknown[]).forEach((e, k) => {
     const x = e as Record<string, unknown>;

@@ -194,7 +194,9 @@ export function twoToneProducts(
  * @param carrierHz RF carrier, Hz.
  * @param toneHz the test tone, Hz (audio, positive).
  * @param sideband the sideband sent.
- * @throws {OrthotoneError} as {@link createToneReader} (tone beyond Nyquist, capture too short).
+ * @throws {OrthotoneError} as {@link createToneReader} (tone beyond Nyquist, capture too short);
+ *   INVALID_ARGUMENT when no tone stands above the floor at the wanted frequency, or the opposite
+ *   one is stronger (the other sideband was sent).
  * Reference: file header; switching-function Fourier series (simulate/response.ts).
  */
 export function captureProducts(
@@ -209,6 +211,20 @@ export function captureProducts(
   const w = r.read(s * toneHz);
   const o = r.read(-s * toneHz);
   const c = r.read(0);
+  if (w.atFloor) {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      `no tone stands above the floor at ${s * toneHz} Hz in the capture: give the test tone with --tone (and --sideband)`,
+      toneHz,
+    );
+  }
+  if (o.levelDbfs > w.levelDbfs) {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      `the tone at ${-s * toneHz} Hz is stronger than the wanted one at ${s * toneHz} Hz: is this the ${sideband === 'upper' ? 'lower' : 'upper'} sideband? give --sideband ${sideband === 'upper' ? 'lower' : 'upper'}`,
+      toneHz,
+    );
+  }
   const rel = (x: { levelDbfs: number }) => x.levelDbfs - w.levelDbfs;
   const out: EmissionProduct[] = [
     {

@@ -3,3 +3,4 @@ export * from './csv.js';
 export * from './firmware-kit.js';
 export * from './network-json.js';
 export * from './profile-header.js';
+export * from './report.js';

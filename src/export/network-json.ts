@@ -4,6 +4,7 @@
  * parsed back with validation.
  */
 import { OrthotoneError } from '../core/errors.js';
+import { requireBand } from '../core/validate.js';
 import { type Network, validateNetwork } from '../design/network.js';
 
 /**
@@ -28,8 +29,38 @@ export function parseNetworkJson(text: string): Network {
   } catch (e) {
     throw new OrthotoneError(
       'INVALID_DOCUMENT',
-      `network file is not valid JSON (${(e as Error).message}): give a file written by 'orthotone design --format json'`,
+      `network file is not valid JSON (${printable((e as Error).message)}): give a file written by 'orthotone design --format json'`,
     );
   }
-  return validateNetwork(doc);
+  const d = doc as Record<string, unknown> | null;
+  if (typeof d === 'object' && d !== null && d.format === 'orthotone-network' && d.version !== 1) {
+    throw new OrthotoneError(
+      'INVALID_DOCUMENT',
+      `version ${printable(JSON.stringify(d.version) ?? 'missing')} is not supported: this library reads version 1 (the number 1)`,
+      d.version,
+    );
+  }
+  const net = validateNetwork(doc);
+  // The band must be a real band of this sample rate: a reversed or out-of-range band would be
+  // run and evaluated as nonsense.
+  try {
+    requireBand(net.band, net.sampleRate);
+  } catch (e) {
+    throw new OrthotoneError('INVALID_DOCUMENT', `network file: ${(e as Error).message}`, net.band);
+  }
+  return net;
+}
+
+/**
+ * Text safe to show in a one-line message: control and non-ASCII bytes written as `\xNN` /
+ * `\u{…}`, cut to 120 characters (a binary file given by mistake must not spill into the terminal
+ * or into JSON).
+ * @throws never
+ */
+export function printable(s: string): string {
+  const out = s.replace(/[^\x20-\x7e]/gu, (c) => {
+    const cp = c.codePointAt(0)!;
+    return cp < 0x100 ? `\\x${cp.toString(16).padStart(2, '0')}` : `\\u{${cp.toString(16)}}`;
+  });
+  return out.length > 120 ? `${out.slice(0, 117)}...` : out;
 }

@@ -165,6 +165,13 @@ export function validateSignalSpec(spec: SignalSpec, sampleRate: number): Signal
       }
       checkFrequency('frequenciesHz[0]', spec.frequenciesHz[0], fs);
       checkFrequency('frequenciesHz[1]', spec.frequenciesHz[1], fs);
+      if (spec.frequenciesHz[0] === spec.frequenciesHz[1]) {
+        throw new OrthotoneError(
+          'INVALID_ARGUMENT',
+          `frequenciesHz [${spec.frequenciesHz[0]}, ${spec.frequenciesHz[1]}] is one tone twice: give two different frequencies`,
+          spec.frequenciesHz,
+        );
+      }
       const l = spec.levelDbfs;
       if (Array.isArray(l)) {
         level('levelDbfs[0]', l[0]);

@@ -21,7 +21,10 @@ export interface BridgeOptions {
   host: string;
   /** Serial line rate, bit/s (default 115200). */
   baudRate: number;
-  /** Called with one line per event (client connected, port opened, …). */
+  /**
+   * Called with one line per event (client connected, port opened, …).
+   * @throws should not; an error would end the bridge's event handler.
+   */
   log?: (line: string) => void;
 }
 

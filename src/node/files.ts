@@ -11,6 +11,7 @@ import {
   openSync,
   realpathSync,
   renameSync,
+  statfsSync,
   statSync,
   unlinkSync,
   writeSync,
@@ -18,8 +19,12 @@ import {
 import { basename, dirname, join, resolve } from 'node:path';
 import { OrthotoneError } from '../core/errors.js';
 
-/** Errors Node raises for a write that cannot be done, turned into one readable line. */
-function describeFsError(e: unknown, path: string): string {
+/**
+ * An error Node raised for a write that cannot be done, turned into one readable line naming the
+ * file and the cause.
+ * @throws never
+ */
+export function describeWriteError(e: unknown, path: string): string {
   const err = e as NodeJS.ErrnoException;
   switch (err.code) {
     case 'ENOSPC':
@@ -80,7 +85,7 @@ export function writeFileAtomic(path: string, data: string | Uint8Array): void {
     } catch {
       // the temporary file was never created
     }
-    throw new OrthotoneError('WRITE_FAILED', describeFsError(e, path), path);
+    throw new OrthotoneError('WRITE_FAILED', describeWriteError(e, path), path);
   }
 }
 
@@ -136,5 +141,167 @@ export function assertDistinctFiles(
       );
     }
     seen.push({ name, path, key, isInput: false });
+  }
+}
+
+/**
+ * Refuses, before any work, a write that cannot fit in the free space of the destination's file
+ * system (a long render would otherwise run for minutes and then fail).
+ * @param path destination file.
+ * @param bytes bytes the file will take.
+ * @param option the option that named it, for the message.
+ * @throws {OrthotoneError} WRITE_FAILED naming the option, the size needed and the space free.
+ */
+export function checkFreeSpace(path: string, bytes: number, option: string): void {
+  let free: number;
+  try {
+    const s = statfsSync(dirname(resolve(path)));
+    free = s.bavail * s.bsize;
+  } catch {
+    return; // the folder's own error is reported when the file is opened
+  }
+  if (bytes > free) {
+    const gb = (x: number): string =>
+      x >= 1e9
+        ? `${(x / 1e9).toFixed(2)} GB`
+        : x >= 1e6
+          ? `${(x / 1e6).toFixed(2)} MB`
+          : `${(x / 1e3).toFixed(1)} kB`;
+    throw new OrthotoneError(
+      'WRITE_FAILED',
+      `${option} ${path} needs ${gb(bytes)} but its disk has ${gb(free)} free: shorten the file, choose a smaller encoding, or free space`,
+      path,
+    );
+  }
+}
+
+/** A text file written in pieces through a temporary file (see {@link createTextWriter}). */
+export interface TextWriter {
+  /**
+   * Appends text (UTF-8).
+   * @throws {OrthotoneError} WRITE_FAILED (the temporary file removed) when the disk refuses it.
+   */
+  write(text: string): void;
+  /**
+   * Flushes and renames the file into place.
+   * @throws {OrthotoneError} WRITE_FAILED (an old file at the path is kept).
+   */
+  close(): void;
+  /**
+   * Gives up: removes the temporary file, keeps any old file.
+   * @throws never
+   */
+  abort(): void;
+}
+
+/**
+ * Writes a long text file in pieces, atomically: to a temporary file in the same folder, renamed
+ * over `path` by `close()`. Method: write-then-rename (IEEE Std 1003.1, `rename()`).
+ * @param path destination.
+ * @returns the writer.
+ * @throws {OrthotoneError} WRITE_FAILED when the temporary file cannot be created.
+ */
+export function createTextWriter(path: string): TextWriter {
+  const tmp = temporaryPathFor(path);
+  let fd: number | undefined;
+  try {
+    fd = openSync(tmp, 'wx', 0o644);
+  } catch (e) {
+    throw new OrthotoneError('WRITE_FAILED', describeWriteError(e, path), path);
+  }
+  let done = false;
+  const abort = (): void => {
+    if (done) return;
+    done = true;
+    try {
+      if (fd !== undefined) closeSync(fd);
+    } catch {
+      // already failing
+    }
+    try {
+      unlinkSync(tmp);
+    } catch {
+      // gone
+    }
+  };
+  const guard = (f: () => void): void => {
+    try {
+      f();
+    } catch (e) {
+      abort();
+      throw new OrthotoneError('WRITE_FAILED', describeWriteError(e, path), path);
+    }
+  };
+  return {
+    write(text) {
+      const b = Buffer.from(text, 'utf8');
+      guard(() => {
+        let off = 0;
+        while (off < b.length) off += writeSync(fd!, b, off, b.length - off);
+      });
+    },
+    close() {
+      guard(() => {
+        fsyncSync(fd!);
+        closeSync(fd!);
+        fd = undefined;
+        renameSync(tmp, path);
+        done = true;
+      });
+    },
+    abort,
+  };
+}
+
+/**
+ * Writes a set of files into one folder, all or nothing: each goes to a temporary file first; only
+ * when every one is written and flushed are they renamed into place. On a failure every temporary
+ * file is removed and the previous set is left as it was.
+ * Method: write-then-rename (IEEE Std 1003.1, `rename()`), staged for the whole set.
+ * @param dir the folder (must exist).
+ * @param files `[name, bytes]` pairs.
+ * @throws {OrthotoneError} WRITE_FAILED naming the file that failed and the cause.
+ */
+export function writeFileSet(dir: string, files: ReadonlyArray<readonly [string, Uint8Array]>): void {
+  const staged: [string, string][] = [];
+  const cleanup = (): void => {
+    for (const [tmp] of staged) {
+      try {
+        unlinkSync(tmp);
+      } catch {
+        // already gone
+      }
+    }
+  };
+  for (const [name, bytes] of files) {
+    const path = join(dir, name);
+    const tmp = temporaryPathFor(path);
+    let fd: number | undefined;
+    try {
+      fd = openSync(tmp, 'wx', 0o644);
+      staged.push([tmp, path]);
+      let off = 0;
+      while (off < bytes.length) off += writeSync(fd, bytes, off, bytes.length - off);
+      fsyncSync(fd);
+      closeSync(fd);
+    } catch (e) {
+      try {
+        if (fd !== undefined) closeSync(fd);
+      } catch {
+        // already failing
+      }
+      cleanup();
+      throw new OrthotoneError(
+        'WRITE_FAILED',
+        `${describeWriteError(e, path)}; nothing of the set was replaced`,
+        path,
+      );
+    }
+  }
+  try {
+    for (const [tmp, path] of staged) renameSync(tmp, path);
+  } catch (e) {
+    cleanup();
+    throw new OrthotoneError('WRITE_FAILED', describeWriteError(e, dir), dir);
   }
 }

@@ -2,3 +2,4 @@ export * from './analyzer.js';
 export * from './exciter.js';
 export * from './model.js';
 export * from './response.js';
+export * from './trim-mismatch.js';

@@ -75,6 +75,16 @@ describe('demo page accessibility (axe-core in Chromium)', () => {
     await page.click('#design-run');
     await expect.poll(() => page.textContent('#design-status')).toContain('Designed for');
     expect(serious(await audit())).toEqual([]);
+    // While a long design runs (busy sign shown): Q15 all-pass at 120 dB searches for seconds.
+    await page.selectOption('#design-method', 'allpass');
+    await page.selectOption('#design-format', 'q15');
+    await page.fill('#design-target', '120');
+    await page.click('#design-run');
+    expect(await page.getAttribute('#design-status', 'class')).toContain('busy');
+    expect(serious(await audit())).toEqual([]);
+    await page.waitForSelector('#design-status.error', { timeout: 30_000 });
+    // After a failed design (figures cleared, error shown).
+    expect(serious(await audit())).toEqual([]);
     expect(errors).toEqual([]);
   });
 

@@ -101,7 +101,7 @@ describe('demo page', { retry: 1 }, () => {
       return n;
     });
     expect(tracePixels).toBeGreaterThan(500);
-    // A 1° phase trim: Q' = Q·cos φ + I·sin φ (DESIGN.md §4) takes 1° off the angle between I and Q.
+    // A 1° phase trim: Q' = Q·cos φ + I·sin φ (src/generate/trim-stage.ts) takes 1° off the angle between I and Q.
     await setRange(page, '#panel-generate .trim >> nth=1 >> input', 1);
     await expect
       .poll(async () => plain.angleDeg - (await scopeFigures()).angleDeg, { timeout: 5_000 })
@@ -126,7 +126,7 @@ describe('demo page', { retry: 1 }, () => {
     await page.waitForTimeout(900); // a reading taken after the swap's cross-fade
     const r = (await reading())!;
     // Level −10 dBFS is the PEP; two equal tones are each 20·log10(2) = 6.02 dB below it
-    // (REFERENCES.md §5 [C]; Krauss, Bostian & Raab p. 509: Ppeak = n²·Ptone).
+    // (Krauss, Bostian & Raab, Solid State Radio Engineering p. 509: Ppeak = n²·Ptone).
     expect(r.pepDbfs).toBeCloseTo(-10, 1);
     for (const t of r.tonesDbfs) expect(t).toBeCloseTo(-16.02, 1);
     // The generator is linear: its own products lie far below any exciter's (−30 dBc is a
@@ -196,7 +196,7 @@ describe('demo page', { retry: 1 }, () => {
     expect(r.taps).toBe(31);
     expect(r.verifyHz[0]).toBe(300);
     expect(r.verifyHz[r.verifyHz.length - 1]).toBe(3000);
-    // Skew τ gives a phase error 2πfτ (REFERENCES.md §6 [C]): one pair of trims cannot hold the whole
+    // Skew τ gives a phase error 2πfτ (the phase of a delay, common practice, no source): one pair of trims cannot hold the whole
     // band; the filter follows it. Figures of the multi-tone calibration test (tests/calibrate):
     // ≥ 55 dB with the filter where single trims fall short; here the 60 dB network adds its own error.
     expect(worst(r.after)).toBeGreaterThanOrEqual(50);

@@ -118,8 +118,8 @@ describe('quadrature worklet in Chromium', () => {
     expect(Math.abs(before.sidebandSuppressionDb - predictSuppressionDb(net60, toneHz))).toBeLessThan(0.5);
     const trims = { gainDb: 2, phaseDeg: 5 };
     expect(after.sidebandSuppressionDb).toBeCloseTo(predictSuppressionDb(net60, toneHz, trims), 1);
-    // Carrier: the DC trims appear as a complex DC of magnitude √(dcI² + dcQ²) (DESIGN.md §4, added
-    // last), read relative to the wanted tone (REFERENCES.md §1: dI = 0.001A, dQ = 0.0005A → −59.031 dBc).
+    // Carrier: the DC trims appear as a complex DC of magnitude √(dcI² + dcQ²) (src/generate/trim-stage.ts, added
+    // last), read relative to the wanted tone (computed: dI = 0.001A, dQ = 0.0005A → 20·log10(√(dI² + dQ²)/A) = −59.031 dBc).
     expect(predictCarrierDbc({ dcI: 0.001, dcQ: 0.0005 }, 1)).toBeCloseTo(-59.031, 2);
     expect(20 * Math.log10(after.carrier.amplitude / Math.hypot(0.001, 0.0005))).toBeCloseTo(0, 1);
     expect(after.carrierDbc).toBeCloseTo(

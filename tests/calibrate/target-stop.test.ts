@@ -3,11 +3,11 @@
  * API, so it holds whatever the seeker's inside looks like. The bench is a closed-form model written
  * here, sharing nothing with src:
  * - sideband: a modulator whose Q path has gain h and phase error ψ after the trims, I_hw = I',
- *   Q_hw = h·(Q'·cos ψ + I'·sin ψ), with Q' = g·(Q·cos φ + I·sin φ) (DESIGN.md §4 trims). For
+ *   Q_hw = h·(Q'·cos ψ + I'·sin ψ), with Q' = g·(Q·cos φ + I·sin φ) (the trims of src/generate/trim-stage.ts). For
  *   I = cos ωt, Q = sin ωt the output is Q_hw = A·sin ωt + B·cos ωt, A = h·g·cos ψ·cos φ,
  *   B = h·(g·cos ψ·sin φ + sin ψ), and the image over the wanted tone is
  *   ((1 − A)² + B²)/((1 + A)² + B²) (K. Schmidt, QEX Aug 1994 §2, the IRR of a gain/phase pair);
- * - carrier: a DC offset (dI, dQ) on a complex tone of peak A reads |d|²/A² (REFERENCES.md §1).
+ * - carrier: a DC offset (dI, dQ) on a complex tone of peak A reads |d|²/A² (K. Schmidt, QEX Aug 1994 §2).
  * A reading floor of −90 dB and seeded Gaussian reading noise (dB) are added.
  * The contract checked: a run that stops for the target has reached it, both by the fit it reports
  * and by the model's true level at the trims it returns; a target cuts the run short of the floor;

@@ -4,18 +4,16 @@ import { mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { evaluateBranches, suppressionFromResponse, validateNetwork } from '../../src/design/network.js';
+import { validateNetwork } from '../../src/design/network.js';
 import { cli } from '../support/cli.js';
+import { ownSweep } from '../support/network-response.js';
 
-/** Worst suppression over [lo, hi] by a plain dense sweep of the document's coefficients. */
+/**
+ * Worst suppression over [lo, hi] by a plain dense sweep of the document's coefficients, with the
+ * tests' own evaluator (tests/support/network-response.ts, no code shared with src/design).
+ */
 function sweepWorst(doc: unknown, lo: number, hi: number): number {
-  const net = validateNetwork(doc);
-  let worst = Number.POSITIVE_INFINITY;
-  for (let k = 0; k <= 4000; k++) {
-    const f = lo * (hi / lo) ** (k / 4000);
-    worst = Math.min(worst, suppressionFromResponse(evaluateBranches(net, f)));
-  }
-  return worst;
+  return ownSweep(validateNetwork(doc), 4000, 'log', [lo, hi]).worstSuppressionDb;
 }
 
 describe('orthotone design', () => {
@@ -118,7 +116,7 @@ describe('orthotone design', () => {
     }
     expect(cli(['design', '--band', '300:30000']).stderr).toMatch(/30000 Hz must be below Nyquist 24000 Hz/);
     expect(cli(['design', '--out', '/nonexistent-folder/net.json']).stderr).toMatch(
-      /cannot open \/nonexistent-folder\/net.json: ENOENT/,
+      /cannot write \/nonexistent-folder\/net.json: its folder \/nonexistent-folder does not exist/,
     );
   });
 

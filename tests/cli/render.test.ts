@@ -195,7 +195,7 @@ describe('orthotone render', () => {
       [['--tone', '1000'], /--out FILE.wav/],
       [['--out', 'x.wav'], /choose a signal/],
       [['--tone', '1000', '--noise', '--out', 'x.wav'], /choose one signal/],
-      [['--tone', '1000', '--phase-deg', '50', '--out', 'x.wav'], /phaseDeg 50 degrees is out of range/],
+      [['--tone', '1000', '--phase-deg', '50', '--out', 'x.wav'], /--phase-deg 50 degrees is out of range/],
       [['--tone', '1000', '--gain-db', 'abc', '--out', 'x.wav'], /--gain-db "abc" is not a number/],
       [['--tone', '1000', '--sideband', 'both', '--out', 'x.wav'], /--sideband "both"/],
       [[netFile, '--tone', '1000', '--band', '300:3000', '--out', 'x.wav'], /drop the design options/],

@@ -66,6 +66,6 @@ describe('orthotone simulate', () => {
     expect(cli(['simulate', inp]).stderr).toMatch(/needs --out/);
     const r = cli(['simulate', inp, '--out', join(dir, 'x.wav'), '--floor', '5']);
     expect(r.status).toBe(2);
-    expect(r.stderr).toMatch(/floorDbc 5 dBc\/Hz is out of range/);
+    expect(r.stderr).toMatch(/--floor 5 dBc\/Hz is out of range/);
   });
 });

@@ -1,14 +1,10 @@
+import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { designAllpassPair } from '../../src/design/allpass-pair.js';
 import { analyzeNetwork, networkCost, predictFigures } from '../../src/design/analysis.js';
-import {
-  type AllpassNetwork,
-  evaluateBranches,
-  type FirNetwork,
-  type Network,
-  suppressionFromResponse,
-} from '../../src/design/network.js';
+import type { AllpassNetwork, FirNetwork, Network } from '../../src/design/network.js';
 import { expectOrthotoneError } from '../support/errors.js';
+import { ownResponseAt, ownSweep } from '../support/network-response.js';
 
 const blank = {
   format: 'orthotone-network' as const,
@@ -39,14 +35,14 @@ function windowedHilbert(n: number): number[] {
   });
 }
 
-/** Unwrapped phase of one branch along a frequency grid, from evaluateBranches (network.ts). */
+/** Unwrapped phase of one branch along a frequency grid, from the tests' own evaluator (tests/support). */
 function unwrappedPhase(net: Network, freqs: number[], which: 'i' | 'q'): number[] {
   const out: number[] = [];
   let prev = 0;
   let offset = 0;
   for (const f of freqs) {
-    const r = evaluateBranches(net, f)[which];
-    let p = Math.atan2(r.im, r.re) + offset;
+    const [re, im] = ownResponseAt(net, f)[which];
+    let p = Math.atan2(im, re) + offset;
     while (p - prev > Math.PI) {
       p -= 2 * Math.PI;
       offset -= 2 * Math.PI;
@@ -102,7 +98,7 @@ describe('analyzeNetwork: FIR Hilbert transformer', () => {
   it('analyses a hand-built Hann-windowed ideal Hilbert FIR: exact 90°, gain = amplitude response', () => {
     // Source: ideal response h(n) = 2/(πn), odd n (Reilly, Frazer & Boashash, IEEE Trans. SP 42:3241, 1994);
     // the amplitude of an antisymmetric FIR is A(ω) = 2·Σ h(n)·sin(ωn) (computed here), and
-    // suppression at exact 90° is 20·log10((1+A)/|1−A|) (REFERENCES.md §2, ripple formula).
+    // suppression at exact 90° is 20·log10((1+A)/|1−A|) (Schmidt's formula, QEX Aug 1994 §2, with φ = 0).
     const fs = 48000;
     const taps = windowedHilbert(63);
     const net: FirNetwork = { ...blank, kind: 'fir', sampleRate: fs, band: [2400, 21600], taps };
@@ -132,23 +128,29 @@ describe('analyzeNetwork: FIR Hilbert transformer', () => {
     expect(an.cost).toEqual({ multipliesPerSample: 16, latencySamples: 31 });
   });
 
-  it('reproduces scipy TestRemez.test_hilbert: 11 taps over 0.1–0.4 fs, ripple 0.011212 (45.08 dB)', () => {
-    // Source: scipy signal/tests/test_fir_filter_design.py TestRemez.test_hilbert (REFERENCES.md §2 [P+V]):
-    // remez(11, [0.1, 0.4], [1], type='hilbert') taps ±0.037965444084, ±0.142675532840, ±0.610295121540,
-    // zeros between; scipy's sign is opposite to the textbook, so the positive value goes at offset +1 here.
-    const half = [0.61029512154, 0, 0.14267553284, 0, 0.037965444084];
-    const taps = [...half.map((x) => -x).reverse(), 0, ...half];
+  it('figures of scipy remez(11, [0.1, 0.4], [1], hilbert): the dip below 1 sets the worst suppression', () => {
+    // [C] Computed with scipy 1.10.1 (Debian python3-scipy): tests/fixtures/scipy/hilbert_excursions.json,
+    // made by tests/fixtures/scipy/gen_hilbert_excursions.py with the command
+    //   /usr/bin/python3 tests/fixtures/scipy/gen_hilbert_excursions.py > tests/fixtures/scipy/hilbert_excursions.json
+    // scipy's own TestRemez.test_hilbert makes the same call but checks only the structure and
+    // |H| − 1 < 0.015: it publishes none of these values. Taps in scipy's sign, the opposite of the
+    // textbook 2/(πn) (Reilly, Frazer & Boashash, IEEE Trans. SP 42:3241, 1994), so they are negated here; scipy's round-off at the even
+    // offsets (below 4e-16) is set to the exact zero a half-band design has.
+    const x = JSON.parse(
+      readFileSync(new URL('../fixtures/scipy/hilbert_excursions.json', import.meta.url), 'utf8'),
+    ) as { taps: number[]; aboveOne: number; belowOne: number; ripple: number };
+    const taps = x.taps.map((t) => (Math.abs(t) < 1e-12 ? 0 : -t));
     const net: FirNetwork = { ...blank, kind: 'fir', sampleRate: 1000, band: [100, 400], taps };
     const p = predictFigures(net);
-    // The worst suppression sits at the largest excursion below 1, which this scipy design leaves a
-    // little smaller: min |H| − 1 = −0.011176018 (computed with scipy 1.10.1 on a 200 001-point grid:
-    // /usr/bin/python3 -c "import numpy as np, scipy.signal as s; h=s.remez(11,[0.1,0.4],[1],type='hilbert'); ...").
-    // Suppression at exact 90° and gain A: 20·log10((1+A)/|1−A|) (REFERENCES.md §2).
-    const dip = 0.011176018;
+    // The worst suppression sits at the largest excursion below 1 (scipy: 1 − min |H| = 0.0111760):
+    // at exact 90° and gain A, 20·log10((1+A)/|1−A|) (Schmidt's formula, QEX Aug 1994 §2, with φ = 0).
+    const dip = x.belowOne;
+    expect(dip).toBeCloseTo(0.011176018, 9);
     expect(p.worstSuppressionDb).toBeCloseTo(20 * Math.log10((2 - dip) / dip), 3);
-    expect(p.worstSuppressionDb).toBeLessThan(45.08); // 45.08 dB is the +δ extremum's figure
-    // Gain error: the larger in dB of the published +0.011212 and the −0.011176 excursion.
-    const gainDb = Math.max(20 * Math.log10(1 + 0.011212), -20 * Math.log10(1 - dip));
+    // The +δ extremum (max |H| − 1 = 0.0112119, the ripple) gives the better side, 45.08 dB.
+    expect(p.worstSuppressionDb).toBeLessThan(20 * Math.log10((2 + x.aboveOne) / x.aboveOne));
+    // Gain error: the larger in dB of the two excursions.
+    const gainDb = Math.max(20 * Math.log10(1 + x.aboveOne), -20 * Math.log10(1 - dip));
     expect(p.maxGainErrorDb).toBeCloseTo(gainDb, 5);
     expect(networkCost(net).multipliesPerSample).toBe(3);
   });
@@ -156,20 +158,14 @@ describe('analyzeNetwork: FIR Hilbert transformer', () => {
 
 describe('predictFigures', () => {
   it('finds the true worst case between grid points and at the band edges', () => {
-    // Source: the test's own dense evaluation with network.ts's evaluateBranches (500k points).
+    // Source: the tests' own dense evaluation (tests/support/network-response.ts, no code shared with
+    // src/design), 500k points.
     for (const net of [
       allpassNet(48000, [300, 3000], 60),
       allpassNet(8000, [200, 3800], 45, 'second-order'),
     ]) {
       const p = predictFigures(net);
-      let worst = Number.POSITIVE_INFINITY;
-      const [lo, hi] = net.band;
-      for (let k = 0; k <= 500000; k++) {
-        worst = Math.min(
-          worst,
-          suppressionFromResponse(evaluateBranches(net, lo + ((hi - lo) * k) / 500000)),
-        );
-      }
+      const worst = ownSweep(net, 500000, 'linear').worstSuppressionDb;
       expect(p.worstSuppressionDb).toBeLessThanOrEqual(worst + 1e-9);
       expect(p.worstSuppressionDb).toBeGreaterThan(worst - 0.002);
       // All-pass: gain is exactly 1, so the gain error is rounding noise.
@@ -180,8 +176,8 @@ describe('predictFigures', () => {
 
 describe('networkCost', () => {
   it('counts one multiply per all-pass section and gives the mean group delay over the band', () => {
-    // Source: latency definition in DESIGN.md §3 (mean group delay); group delay from the numerical
-    // derivative of network.ts's phase, averaged here on a uniform grid.
+    // Source: latency defined as the mean group delay over the band (src/design/analysis.ts); group delay from the numerical
+    // derivative of the tests' own phase evaluation (tests/support), averaged here on a uniform grid.
     const net = allpassNet(48000, [300, 3000], 60);
     const c = networkCost(net);
     expect(c.multipliesPerSample).toBe(net.branches.i.sections.length + net.branches.q.sections.length);

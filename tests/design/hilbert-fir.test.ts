@@ -7,21 +7,16 @@ import {
   hilbertSuppressionFromRipple,
   kaiserHilbertTaps,
 } from '../../src/design/hilbert-fir.js';
-import { kaiserWindow } from '../../src/design/kaiser.js';
-import {
-  evaluateBranches,
-  type FirNetwork,
-  phaseErrorDegFromResponse,
-  suppressionFromResponse,
-} from '../../src/design/network.js';
+import type { FirNetwork } from '../../src/design/network.js';
 import { expectOrthotoneError } from '../support/errors.js';
+import { ownSweep } from '../support/network-response.js';
 import { loadRemezFixture } from '../support/remez-fixture.js';
 
 // [C] scipy 1.10.1 scipy.signal.remez, made by tests/fixtures/scipy/gen_remez_hilbert.py (command in
 // tests/fixtures/scipy/README.md). scipy's Hilbert sign is the opposite of the textbook one.
 const fixture = loadRemezFixture();
 
-/** A FirNetwork-shaped document for the independent evaluator of src/design/network.ts. */
+/** A FirNetwork-shaped document for the tests' own evaluator (tests/support/network-response.ts). */
 function asNetwork(taps: number[], sampleRate: number, band: [number, number]): FirNetwork {
   return {
     format: 'orthotone-network',
@@ -36,24 +31,39 @@ function asNetwork(taps: number[], sampleRate: number, band: [number, number]): 
   };
 }
 
-/** Worst suppression and phase error over `points` frequencies by evaluateBranches (network.ts). */
+/**
+ * Kaiser window by its definition w(n) = I0(β·√(1 − (2n/(N−1) − 1)²)) / I0(β), with I0 from its power
+ * series Σ ((x/2)^k / k!)² (Abramowitz & Stegun 9.6.12), summed until the terms vanish.
+ */
+function ownKaiser(n: number, beta: number): number[] {
+  const i0 = (x: number): number => {
+    let sum = 1;
+    let term = 1;
+    for (let k = 1; k < 500 && term > 1e-17 * sum; k++) {
+      term *= (x / (2 * k)) ** 2;
+      sum += term;
+    }
+    return sum;
+  };
+  return Array.from({ length: n }, (_, k) => {
+    const r = (2 * k) / (n - 1) - 1;
+    return i0(beta * Math.sqrt(Math.max(0, 1 - r * r))) / i0(beta);
+  });
+}
+
+/**
+ * Worst suppression and phase error over `points` linearly spaced frequencies, edges included, by the
+ * tests' own evaluator (tests/support/network-response.ts: no code shared with src/design).
+ */
 function independent(taps: number[], fs: number, band: [number, number], points = 1500) {
-  const net = asNetwork(taps, fs, band);
-  let worst = Number.POSITIVE_INFINITY;
-  let phase = 0;
-  for (let k = 0; k < points; k++) {
-    const f = band[0] + ((band[1] - band[0]) * k) / (points - 1);
-    const r = evaluateBranches(net, f);
-    worst = Math.min(worst, suppressionFromResponse(r));
-    phase = Math.max(phase, Math.abs(phaseErrorDegFromResponse(r)));
-  }
-  return { worst, phase };
+  const r = ownSweep(asNetwork(taps, fs, band), points - 1, 'linear');
+  return { worst: r.worstSuppressionDb, phase: r.maxPhaseErrorDeg };
 }
 
 describe('designHilbertFir: sign and structure', () => {
-  it('Q lags I by 90° (DESIGN.md §2): exact phase, suppression positive, textbook sign', () => {
-    // DESIGN.md §2–3: Q is the FIR, I a pure delay of (N−1)/2; ideal h(n) = 2/(πn) for odd n
-    // (Reilly, Frazer & Boashash 1994, REFERENCES.md §2), so the tap just after the centre is positive.
+  it('Q lags I by 90° (README.md conventions: Q lags I by 90°): exact phase, suppression positive, textbook sign', () => {
+    // The project's convention (src/design/hilbert-fir.ts): Q is the FIR, I a pure delay of (N−1)/2; ideal h(n) = 2/(πn) for odd n
+    // (Reilly, Frazer & Boashash, IEEE Trans. SP 42:3241, 1994), so the tap just after the centre is positive.
     const d = designHilbertFir({ sampleRate: 48000, band: [300, 3000], taps: 127 });
     const c = (d.taps.length - 1) / 2;
     expect(d.delaySamples).toBe(c);
@@ -71,7 +81,7 @@ describe('designHilbertFir: sign and structure', () => {
   });
 
   it('band symmetric about fs/4: even-offset taps are exactly zero and counted', () => {
-    // REFERENCES.md §2 [P]: type III, taps at even offsets from the centre vanish when lo + hi = fs/2.
+    // Reilly, Frazer & Boashash, IEEE Trans. SP 42:3241, 1994: type III, taps at even offsets from the centre vanish when lo + hi = fs/2.
     for (const n of [63, 65]) {
       const d = designHilbertFir({ sampleRate: 48000, band: [300, 23700], taps: n });
       const c = (n - 1) / 2;
@@ -106,21 +116,32 @@ describe('designHilbertFir: sign and structure', () => {
   });
 
   it('Kaiser method: the windowed ideal response 2/(πn)·w(n) with the reported β', () => {
-    // Kaiser 1974 / Oppenheim & Schafer §7.5.3 (REFERENCES.md §2): h = w·h_ideal, h_ideal(n) = 2/(πn), odd n.
+    // J. F. Kaiser, "Nonrecursive digital filter design using the I0-sinh window function", Proc. IEEE
+    // ISCAS 1974 (as in Oppenheim & Schafer, Discrete-Time Signal Processing, and scipy's
+    // signal.windows.kaiser): h = w·h_ideal, h_ideal(n) = 2/(πn) for odd n, with the
+    // window computed here from its definition, not with src/design/kaiser.ts.
     const d = designHilbertFir({ sampleRate: 48000, band: [300, 3000], taps: 255, method: 'kaiser' });
-    const w = kaiserWindow(255, d.beta!);
+    const w = ownKaiser(255, d.beta!);
     const c = 127;
-    for (let m = 1; m <= c; m += 2) expect(d.taps[c + m]).toBeCloseTo((2 / (Math.PI * m)) * w[c + m]!, 15);
+    for (let m = 1; m <= c; m += 2) {
+      expect(d.taps[c + m]).toBeCloseTo((2 / (Math.PI * m)) * w[c + m]!, 14);
+      expect(d.taps[c - m]).toBeCloseTo(-(2 / (Math.PI * m)) * w[c - m]!, 14);
+    }
     expect(d.zeroTaps).toBe(127); // centre and offsets ±2 … ±126
     expect(d.iterations).toBeUndefined();
     const ind = independent(d.taps, 48000, [300, 3000]);
     expect(Math.abs(ind.worst - d.worstSuppressionDb)).toBeLessThan(0.05);
-    expect(Array.from(kaiserHilbertTaps(255, d.beta!))).toEqual(d.taps);
+    // The exported tap generator gives the same windowed ideal response for another length and β.
+    const t = kaiserHilbertTaps(63, 5);
+    const w63 = ownKaiser(63, 5);
+    for (let m = -31; m <= 31; m++) {
+      expect(t[31 + m]).toBeCloseTo(m % 2 === 0 ? 0 : (2 / (Math.PI * m)) * w63[31 + m]!, 14);
+    }
   });
 });
 
 describe('evaluateHilbertFir', () => {
-  it('agrees with evaluateBranches (network.ts), also for taps that are not antisymmetric', () => {
+  it("agrees with the tests' own evaluator, also for taps that are not antisymmetric", () => {
     const taps = Array.from(kaiserHilbertTaps(63, 5));
     taps[10] = taps[10]! + 1e-3; // breaks antisymmetry: the response gains a symmetric part S
     const band: [number, number] = [1000, 20000];
@@ -180,9 +201,9 @@ describe('designHilbertFir: target search', () => {
       expect(shorter.worstSuppressionDb).toBeLessThan(target);
     }
   });
-  it('REFERENCES.md §2: ripple δ with exact 90° gives 20·log10((2−δ)/δ) at the worst frequency', () => {
-    // REFERENCES.md §2 quotes (2+δ)/δ, which is the suppression at the ripple peaks above 1; the
-    // worst case is the dips below 1, (2−δ)/δ (REFERENCES.md §1 with φ = 0, g = 1 − δ).
+  it('ripple δ with exact 90° gives 20·log10((2−δ)/δ) at the worst frequency', () => {
+    // (2+δ)/δ, often quoted, which is the suppression at the ripple peaks above 1; the
+    // worst case is the dips below 1, (2−δ)/δ (Schmidt's formula, QEX Aug 1994 §2, with φ = 0, g = 1 − δ).
     expect(hilbertSuppressionFromRipple(0.011212)).toBeCloseTo(44.978, 3);
     expect(20 * Math.log10((2 + 0.011212) / 0.011212)).toBeCloseTo(45.08, 2);
     expect(hilbertRippleFromSuppression(hilbertSuppressionFromRipple(0.003))).toBeCloseTo(0.003, 15);

@@ -9,8 +9,9 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { isOrthotoneError } from '../../src/core/errors.js';
+import { designNetwork } from '../../src/design/design-network.js';
 import { type DeviceLink, openDeviceLink } from '../../src/device/link.js';
-import { serialConnector } from '../../src/node/serial-transport.js';
+import { openSerialChannel, serialConnector } from '../../src/node/serial-transport.js';
 import { buildFirmware, killAllDevices, startDevice } from './virtual-device.js';
 
 let fw: string;
@@ -132,6 +133,45 @@ describe('device link over a real pseudo-terminal', () => {
     expect((e as Error).message).toMatch(/did not come back within 600 ms/);
     expect(link.appliedTrims?.gainDb).toBeCloseTo(0.4, 3);
     expect(link.history.at(-1)?.what).toBe('lost');
+  });
+
+  it('loads a network in the device arithmetic and switches to it without a click', async () => {
+    const iq = join(work, 'iq.f32');
+    const dev = await startDevice(fw, ['--iq', iq]);
+    const link = await open(dev.path);
+    await link.setSource({ kind: 'tone', toneHz: 1000, amplitude: 0.5 });
+    await new Promise((r) => setTimeout(r, 150));
+    const net = designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'allpass', targetDb: 50 });
+    const crc = await link.loadNetwork(net); // the device checks the same CRC over the same codes
+    expect(crc).toBeGreaterThanOrEqual(0);
+    const fir = designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'fir', targetDb: 30 });
+    if (fir.kind === 'fir' && fir.taps.length <= link.info.maxTaps) await link.loadNetwork(fir);
+    await new Promise((r) => setTimeout(r, 150));
+    await dev.kill();
+    const b = readFileSync(iq);
+    const x = new Float32Array(b.buffer, b.byteOffset, b.length / 4);
+    expect(x.length / 2).toBeGreaterThan(48000 * 0.25);
+    // A 1 kHz tone at 0.5 moves at most 2·0.5·sin(π·1000/48000) = 0.0654 per sample; a hard switch
+    // between networks of different phase would jump by up to 1. The cross-fade keeps steps small.
+    let worst = 0;
+    for (let k = 2; k < x.length; k++) worst = Math.max(worst, Math.abs(x[k]! - x[k - 2]!));
+    expect(worst).toBeLessThan(1.25 * 0.0654);
+    expect(link.history.filter((r) => r.what === 'network').length).toBeGreaterThanOrEqual(1);
+  });
+
+  it('a network whose checksum does not match is refused and the old one runs on', async () => {
+    const dev = await startDevice(fw);
+    // raw lines with a wrong checksum, written to the port directly (the link always sends the right one)
+    const ch = await openSerialChannel(dev.path);
+    let text = '';
+    ch.start({ data: (d) => (text += String.fromCharCode(...d)), closed: () => undefined });
+    const bodies = ['net begin allpass i=1 q=1 di=0 dq=0', 'net put at=0 v=100,200', 'net end crc=0000'];
+    for (const [k, body] of bodies.entries()) await ch.write(new TextEncoder().encode(`${k + 1} ${body}\n`));
+    await new Promise((r) => setTimeout(r, 200));
+    await ch.close();
+    expect(text).toMatch(
+      /2 ok net put at=0 n=2\n3 err CHECK checksum does not match; the old network runs on/,
+    );
   });
 
   it('refuses a device that speaks another protocol version', async () => {

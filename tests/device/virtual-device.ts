@@ -15,9 +15,10 @@ export function buildFirmware(defines: string[] = []): string {
   const dir = mkdtempSync(join(tmpdir(), 'ot-fw-'));
   cpSync(resolve('firmware'), dir, { recursive: true, filter: (p) => !/\.o$|virtual-device$/.test(p) });
   const cflags = `-std=c99 -O2 -Wall -Wextra -Werror -pedantic ${defines.join(' ')}`.trim();
-  // The kit's Makefile includes ortho-link.mk and builds every program; without it, the fragment alone.
+  // The kit's Makefile includes ortho-link.mk (its ortho-*.mk rule); without it, the fragment alone.
+  // Only the virtual device is asked for: the kit's other programs need the generated tables.
   const args = existsSync(join(dir, 'Makefile'))
-    ? ['-s', '-C', dir, `CFLAGS=${cflags}`]
+    ? ['-s', '-C', dir, `CFLAGS=${cflags}`, 'virtual-device']
     : ['-s', '-C', dir, '-f', 'ortho-link.mk', `CFLAGS=${cflags}`, 'virtual-device'];
   execFileSync('make', args, { stdio: 'pipe' });
   return dir;

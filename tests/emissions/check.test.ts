@@ -161,6 +161,17 @@ describe('pass and fail around 43 dB (47 CFR §97.307(d), REFERENCES.md §5)', (
     expect(() => RULE_SETS['itu-sm329-amateur']!.resolve({ carrierHz: 50e6 })).toThrow(/below 30 MHz/);
     const c = run([spur(-48)], { rules: ['fcc-97.307', 'itu-sm329-amateur'] });
     expect(c.items.map((i) => i.pass)).toEqual([true, false]);
+    // A product no rule set covers gets one practice row, not one per rule set.
+    const carrier: EmissionProduct = {
+      name: 'carrier',
+      kind: 'carrier',
+      frequencyHz: at14,
+      levelDbPep: -60,
+      pepToMeanDb: 0,
+      source: 'measured',
+    };
+    const d = run([carrier], { rules: ['fcc-97.307', 'itu-sm329-amateur'] });
+    expect(d.items.map((i) => [i.rule, i.limitKind])).toEqual([['practice', 'practice']]);
   });
 
   it('a user limit applies to every product in every domain', () => {

@@ -58,6 +58,7 @@ describe('low-pass prototype values', () => {
     // Table values from memory; each also equals the closed form g_k = 2 sin((2k−1)π/(2n)), MYJ eq. 4.05-1.
     const table: Record<number, number[]> = {
       1: [2.0],
+      // biome-ignore lint/suspicious/noApproximativeNumericConstant: a table value to 4 decimals, not √2
       2: [1.4142, 1.4142],
       3: [1.0, 2.0, 1.0],
       4: [0.7654, 1.8478, 1.8478, 0.7654],
@@ -76,7 +77,8 @@ describe('low-pass prototype values', () => {
   });
 
   it('Chebyshev, other ripples and orders (MYJ Table 4.05-2(a), values from memory)', () => {
-    // From memory of the classic table (same values in Zverev, Handbook of Filter Synthesis, 1967);
+    // From memory of the classic table (Zverev, Handbook of Filter Synthesis, Wiley 1967, tabulates the
+    // same prototypes; neither book was at hand, so these rows are marked from memory);
     // the response test below checks every design against the closed-form Chebyshev response. A row
     // remembered as 0.01 dB, n = 3: 0.6291, 0.9702 is left out: the formula gives 0.62918, 0.97028, so
     // the memory (or its rounding) is doubtful.

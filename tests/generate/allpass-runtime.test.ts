@@ -14,7 +14,7 @@ function bitDiffs(a: Float64Array, b: Float64Array): number {
 }
 
 /**
- * Reference: each branch straight from its transfer function (DESIGN.md §3), one difference
+ * Reference: each branch straight from its transfer function (src/design/network.ts), one difference
  * equation per section, `y[n] = a·x[n] + x[n−m] − a·y[n−m]` for `H(z) = (a + z⁻ᵐ)/(1 + a·z⁻ᵐ)`,
  * run sample by sample over the whole signal, then the branch delay. Written here, independent of
  * the runtime's one-multiply form, its passes and its anti-denormal offset.

@@ -2,18 +2,11 @@
  * Hand-built network documents for the generator tests (the network designer is written elsewhere;
  * these come straight from published coefficients and formulas, not from code under test).
  */
-import {
-  type AllpassNetwork,
-  evaluateBranches,
-  type FirNetwork,
-  gainErrorDbFromResponse,
-  type Network,
-  phaseErrorDegFromResponse,
-  suppressionFromResponse,
-} from '../../src/design/network.js';
+import type { AllpassNetwork, FirNetwork, Network } from '../../src/design/network.js';
+import { ownSweep } from '../support/network-response.js';
 
 /**
- * O. Niemitalo's 90° pair (music-dsp mailing list, 2001, public post; REFERENCES.md §3): two cascades
+ * O. Niemitalo's 90° pair (music-dsp mailing list, 2001, public post): two cascades
  * of four sections `(a² − z⁻²)/(1 − a²·z⁻²)`, the first cascade also delayed one sample. In the
  * document's form `(c + z⁻²)/(1 + c·z⁻²)` each section has c = −a² (the section's sign flip cancels
  * over four sections). Stated: fs 44100 Hz, 20–22030 Hz, 0.7° max phase error.
@@ -21,25 +14,17 @@ import {
 export const NIEMITALO_A1 = [0.6923877778065, 0.9360654322959, 0.988229522686, 0.9987488452737];
 export const NIEMITALO_A2 = [0.4021921162426, 0.856171088242, 0.9722909545651, 0.9952884791278];
 
-/** Independent figures over `points` frequencies across the band, from evaluateBranches. */
+/**
+ * Independent figures over `points` log-spaced frequencies across the band, by the tests' own
+ * evaluator (tests/support/network-response.ts, which shares no code with src/design).
+ */
 export function predictedOver(net: Network, points = 2000) {
-  const [lo, hi] = net.band;
-  let worst = Number.POSITIVE_INFINITY;
-  let maxPh = 0;
-  let maxG = 0;
-  for (let k = 0; k <= points; k++) {
-    const f = lo * (hi / lo) ** (k / points);
-    const r = evaluateBranches(net, f);
-    worst = Math.min(worst, suppressionFromResponse(r));
-    maxPh = Math.max(maxPh, Math.abs(phaseErrorDegFromResponse(r)));
-    maxG = Math.max(maxG, Math.abs(gainErrorDbFromResponse(r)));
-  }
-  return { worstSuppressionDb: worst, maxPhaseErrorDeg: maxPh, maxGainErrorDb: maxG };
+  return ownSweep(net, points, 'log');
 }
 
 /**
  * The Niemitalo pair as an 'allpass' document. The delayed cascade (a = 0.692…) is the Q branch:
- * checked in the tests by the sign of the phase difference (I leads Q by 90°, DESIGN.md §2).
+ * checked in the tests by the sign of the phase difference (I leads Q by 90°, the README.md conventions).
  * @param firstOrder split every z⁻² section into two first-order sections `(−a + z⁻¹)/(1 − a·z⁻¹)`
  *   and `(a + z⁻¹)/(1 + a·z⁻¹)`, whose product is `(−a² + z⁻²)/(1 − a²·z⁻²)` (same response).
  */

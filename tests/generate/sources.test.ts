@@ -40,7 +40,7 @@ describe('test signal sources', () => {
     expect(s.levels.toneDbfs[0]).toBeCloseTo(-6, 12);
     expect(s.levels.rmsDbfs).toBeCloseTo(-6, 12);
   });
-  it('two-tone: each tone at its level; PEP = sum of amplitudes (equal tones 6.02 dB below PEP, REFERENCES.md §5)', () => {
+  it('two-tone: each tone at its level; PEP = sum of amplitudes (equal tones 6.02 dB below PEP: Krauss, Bostian & Raab, Solid State Radio Engineering p. 509)', () => {
     const l = signalLevels({ kind: 'two-tone', frequenciesHz: [700, 1900], levelDbfs: -7 }, fs);
     expect(l.pepDbfs - l.toneDbfs[0]!).toBeCloseTo(6.0206, 4);
     expect(l.rmsDbfs).toBeCloseTo(-7 + 3.0103, 4);
@@ -182,7 +182,7 @@ describe('test signal sources', () => {
 });
 
 describe('ideal analytic source through the trim stage, and predictions', () => {
-  it('trims on the ideal I/Q give imageRejectionDb within 0.01 dB (REFERENCES.md §1)', () => {
+  it('trims on the ideal I/Q give imageRejectionDb within 0.01 dB (K. Schmidt, QEX Aug 1994 §2)', () => {
     const a = createAnalyticSource({ kind: 'tone', frequencyHz: 1000, levelDbfs: -6 }, fs);
     const i = new Float32Array(9600);
     const q = new Float32Array(9600);

@@ -8,7 +8,7 @@ import { bitDiffs } from './dft.js';
 import { kaiserHilbertNetwork, niemitaloNetwork } from './reference-networks.js';
 
 // The trim stage has a one-pass path for the common case (steady trims, no correction, whole-sample
-// skew) beside the general path. These tests pin that path to the DESIGN.md §4 formulas, exactly,
+// skew) beside the general path. These tests pin that path to the formulas in src/generate/trim-stage.ts, exactly,
 // and check that switching between the paths (ramps, a correction) keeps block-size invariance.
 
 const fs = 48000;
@@ -35,7 +35,7 @@ function networkOutput(net: Network) {
   return { i, q };
 }
 
-describe('trim stage steady path: DESIGN.md §4 exactly', () => {
+describe('trim stage steady path: the formulas of trim-stage.ts exactly', () => {
   for (const [name, net] of [
     ['all-pass', niemitaloNetwork(false, fs)],
     ['FIR', kaiserHilbertNetwork(127, 8, [2000, 22000], fs)],
@@ -124,7 +124,7 @@ describe('trim stage: clone', () => {
 describe('trim stage phase and gain trims through image rejection (not only the formula)', () => {
   // A modulator whose Q path has gain h and phase error ψ (its Q local oscillator off quadrature):
   // I_hw = I', Q_hw = h·(Q'·cos ψ + I'·sin ψ), which turns an exact pair (cos, sin) into
-  // (cos ωt, h·sin(ωt + ψ)), the model of K. Schmidt, QEX Aug 1994 §2 (REFERENCES.md §1). Its image
+  // (cos ωt, h·sin(ωt + ψ)), the model of K. Schmidt, QEX Aug 1994 §2. Its image
   // rejection is IRR = (1 + 2h·cos ψ + h²)/(1 − 2h·cos ψ + h²). The trims that undo it solve
   // g·cos ψ·sin φ + sin ψ = 0 and h·g·cos ψ·cos φ = 1 (Q'' then equals Q exactly), for either sideband.
   const h = 10 ** (0.3 / 20);

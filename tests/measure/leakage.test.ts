@@ -1,7 +1,7 @@
 /**
  * Window leakage bounds, checked against the window's transform summed directly from its samples
  * (Σ w[n]·e^{−j2πνn/N}, no closed form) and against the published highest sidelobes of Heinzel 2002
- * (REFERENCES.md §4).
+ * (Heinzel, Rüdiger & Schilling 2002).
  */
 import { describe, expect, it } from 'vitest';
 import { createWindow, WINDOW_COEFFICIENTS, WINDOW_NAMES } from '../../src/core/windows.js';
@@ -27,7 +27,7 @@ function directPower(w: Float64Array, nu: number): number {
   return (re * re + im * im) / (s * s);
 }
 
-// REFERENCES.md §4 [P+V]: Heinzel 2002 highest sidelobes (rectangular −13.3 dB, from the same table).
+// Heinzel, Rüdiger & Schilling 2002, highest sidelobes (rectangular −13.3 dB, from the same table).
 const SIDELOBE_DB = { rectangular: -13.3, hann: -31.5, 'blackman-harris': -92.0, flattop: -95.0 } as const;
 
 describe('windowLeakageEnvelope', () => {
@@ -59,7 +59,7 @@ describe('windowLeakageEnvelope', () => {
       // Within the main lobe the bound is the whole tone.
       expect(windowLeakageEnvelope(name, n, terms - 0.5)).toBe(1);
     });
-    it(`${name}: the envelope's highest sidelobe is the published one (Heinzel 2002, REFERENCES.md §4)`, () => {
+    it(`${name}: the envelope's highest sidelobe is the published one (Heinzel, Rüdiger & Schilling 2002)`, () => {
       // N = 4096 (Heinzel's figures are large-N values), scanned over the first 64 bins at 1/16 bin:
       // the direct scan and the envelope at its peak both within 0.1 dB of the printed figure.
       const n = 4096;
@@ -111,7 +111,7 @@ describe('leakageNear', () => {
     const peaks = strongestPeaks(s, 16);
     expect(peaks[0]!.hz).toBe(1500);
     // The strongest peak bounds the tone's power (0.25: peak amplitude 0.5 squared) by at most the
-    // scallop loss and 0.5 dB (REFERENCES.md §4: Blackman–Harris scallop 0.8256 dB).
+    // scallop loss and 0.5 dB (Heinzel, Rüdiger & Schilling 2002: Blackman–Harris scallop 0.8256 dB).
     expect(peaks[0]!.power).toBeGreaterThanOrEqual(0.25);
     expect(peaks[0]!.power).toBeLessThan(0.25 * 10 ** ((0.8256 + 0.5 + 1e-3) / 10));
     const w = createWindow('blackman-harris', n);

@@ -9,9 +9,9 @@
  * it, its frequency was refined onto the leakage sidelobes of the tones between bins, and the
  * unwanted tone was read at the mirror about that false carrier.
  *
- * Every suppression is checked against the closed form of REFERENCES.md §1 (K. Schmidt, "Phase-Shift
+ * Every suppression is checked against the closed form of K. Schmidt ( "Phase-Shift
  * Network Analysis and Optimization", QEX Aug 1994 §2; values [C]), every carrier against the
- * REFERENCES.md §1 carrier formula, and every reading's frequency against where the tone is.
+ * carrier formula 20·log10(|dI + j·dQ|/A) (from the model of K. Schmidt, QEX Aug 1994), and every reading's frequency against where the tone is.
  */
 import { describe, expect, it } from 'vitest';
 import { measureSideband } from '../../src/measure/sideband.js';
@@ -20,23 +20,23 @@ import { planFrames } from '../../src/measure/spectrum.js';
 const deg = Math.PI / 180;
 
 /**
- * REFERENCES.md §1 [P] Schmidt QEX 1994 §2: I = cos ωt, Q = g·sin(ωt + φ) gives
+ * K. Schmidt, QEX Aug 1994 §2: I = cos ωt, Q = g·sin(ωt + φ) gives
  * IRR = (1 + 2g·cosφ + g²) / (1 − 2g·cosφ + g²), in dB.
  */
 const irrDb = (g: number, phi: number): number =>
   10 * Math.log10((1 + 2 * g * Math.cos(phi) + g * g) / (1 - 2 * g * Math.cos(phi) + g * g));
 
-/** Imbalances with their REFERENCES.md §1 [C] table values (dB). */
+/** Imbalances with their values computed from K. Schmidt's formula (QEX Aug 1994 §2) (dB). */
 const IMBALANCES: { name: string; gainDb: number; phaseDeg: number; refDb: number }[] = [
-  { name: '1°', gainDb: 0, phaseDeg: 1, refDb: 41.183 }, // REFERENCES.md §1 table, 1°
-  { name: '2°', gainDb: 0, phaseDeg: 2, refDb: 35.162 }, // REFERENCES.md §1 table, 2°
-  { name: '−3°', gainDb: 0, phaseDeg: -3, refDb: 31.639 }, // formula −20·log10|tan(φ/2)| (REFERENCES.md §1)
-  { name: '0.1 dB', gainDb: 0.1, phaseDeg: 0, refDb: 44.797 }, // REFERENCES.md §1 table, 0.1 dB
-  { name: '0.5 dB', gainDb: 0.5, phaseDeg: 0, refDb: 30.82 }, // REFERENCES.md §1 table, 0.5 dB
-  { name: '0.1 dB & 1°', gainDb: 0.1, phaseDeg: 1, refDb: 39.614 }, // REFERENCES.md §1, combined
+  { name: '1°', gainDb: 0, phaseDeg: 1, refDb: 41.183 }, // Schmidt's formula, 1°
+  { name: '2°', gainDb: 0, phaseDeg: 2, refDb: 35.162 }, // Schmidt's formula, 2°
+  { name: '−3°', gainDb: 0, phaseDeg: -3, refDb: 31.639 }, // formula −20·log10|tan(φ/2)| (K. Schmidt, QEX Aug 1994 §2)
+  { name: '0.1 dB', gainDb: 0.1, phaseDeg: 0, refDb: 44.797 }, // Schmidt's formula, 0.1 dB
+  { name: '0.5 dB', gainDb: 0.5, phaseDeg: 0, refDb: 30.82 }, // Schmidt's formula, 0.5 dB
+  { name: '0.1 dB & 1°', gainDb: 0.1, phaseDeg: 1, refDb: 39.614 }, // Schmidt's formula, combined
 ];
 
-/** REFERENCES.md §1 [C]: carrier dI = 0.001A, dQ = 0.0005A reads −59.031 dBc. */
+/** Computed from the signal model: carrier dI = 0.001A, dQ = 0.0005A reads −59.031 dBc. */
 const CARRIER_DBC = -59.031;
 
 interface Case {
@@ -48,7 +48,7 @@ interface Case {
 }
 
 /**
- * I = A·cos(ωt + θ) + dI, Q = g·A·sin(ωt + θ + φ) + dQ (the REFERENCES.md §1 model, A = 0.5, a start
+ * I = A·cos(ωt + θ) + dI, Q = g·A·sin(ωt + θ + φ) + dQ (the model of K. Schmidt, QEX Aug 1994 §2, A = 0.5, a start
  * phase θ that varies between cases so no case depends on where the tone starts).
  */
 function capture(c: Case, gainDb: number, phaseDeg: number, dc: boolean, theta: number) {
@@ -86,7 +86,7 @@ function check(c: Case, m: number, dc: boolean, theta: number) {
   const carrierDbc =
     CARRIER_DBC -
     20 * Math.log10(Math.hypot(1 + g * Math.cos(imb.phaseDeg * deg), g * Math.sin(imb.phaseDeg * deg)) / 2);
-  // The model matches the published table (REFERENCES.md §1) before the reading is checked.
+  // The model matches the values computed from Schmidt's formula before the reading is checked.
   expect(want, label).toBeCloseTo(imb.refDb, 2);
   const got = {
     suppressionDb: +r.sidebandSuppressionDb.toFixed(3),
@@ -146,7 +146,7 @@ const FRAMES_48K: [number, number | undefined][] = [
   [96000, undefined],
 ];
 
-describe('measureSideband: suppression and frequencies across frame lengths (REFERENCES.md §1)', () => {
+describe('measureSideband: suppression and frequencies across frame lengths (K. Schmidt, QEX Aug 1994 §2)', () => {
   for (const toneHz of [700, 1500, 1800, 1900, 3000]) {
     it(`48 kHz, ${toneHz} Hz: every frame length reads the formula within 0.1 dB, each tone where it is`, () => {
       const cases: Case[] = [];
@@ -177,7 +177,7 @@ describe('measureSideband: suppression and frequencies across frame lengths (REF
   }
 });
 
-describe('measureSideband: tuning and tone-frequency errors, with and without a carrier (REFERENCES.md §1)', () => {
+describe('measureSideband: tuning and tone-frequency errors, with and without a carrier (K. Schmidt, QEX Aug 1994 §2)', () => {
   const fs = 48000;
   const frames: [number, number | undefined][] = [
     [16384, 4096],
@@ -211,12 +211,12 @@ describe('measureSideband: tuning and tone-frequency errors, with and without a 
           const { i, q } = shifted(len, toneHz, tuneHz, 2, dc);
           const r = measureSideband(i, q, fs, { toneHz, frameLength });
           const res = fs / (frameLength ?? Math.min(len, 16384));
-          expect(r.sidebandSuppressionDb).toBeCloseTo(35.162, 1); // REFERENCES.md §1 table: 2°
+          expect(r.sidebandSuppressionDb).toBeCloseTo(35.162, 1); // Schmidt's formula: 2°
           expect(Math.abs(r.wanted.frequencyHz - (toneHz + tuneHz))).toBeLessThan(0.02 * res);
           expect(Math.abs(r.unwanted.frequencyHz - (-toneHz + tuneHz))).toBeLessThan(0.02 * res);
           expect(Math.abs(r.carrier.frequencyHz - tuneHz)).toBeLessThan(0.02 * res);
           expect(r.frequencyErrorHz).toBeCloseTo(tuneHz, 2);
-          // REFERENCES.md §1 carrier figure, less 20·log10(cos 1°) for the 2° wanted amplitude
+          // K. Schmidt, QEX Aug 1994 §2 carrier figure, less 20·log10(cos 1°) for the 2° wanted amplitude
           // A·|1 + e^{j2°}|/2 = A·cos 1°.
           if (dc) expect(r.carrierDbc).toBeCloseTo(CARRIER_DBC - 20 * Math.log10(Math.cos(deg)), 1);
           else expect(r.carrierDbc).toBeLessThan(-100);
@@ -232,7 +232,7 @@ describe('measureSideband: tuning and tone-frequency errors, with and without a 
         const { i, q } = capture(c, 0.1, 1, false, 1.3);
         const r = measureSideband(i, q, fs, { toneHz: asked, frameLength });
         const res = fs / (frameLength ?? Math.min(len, 16384));
-        expect(r.sidebandSuppressionDb).toBeCloseTo(39.614, 1); // REFERENCES.md §1: 0.1 dB and 1°
+        expect(r.sidebandSuppressionDb).toBeCloseTo(39.614, 1); // Schmidt's formula: 0.1 dB and 1°
         expect(Math.abs(r.wanted.frequencyHz - actual)).toBeLessThan(0.02 * res);
         expect(Math.abs(r.unwanted.frequencyHz + actual)).toBeLessThan(0.02 * res);
         expect(Math.abs(r.carrier.frequencyHz)).toBeLessThan(0.02 * res);

@@ -6,7 +6,7 @@ import { measureSideband } from '../../src/measure/sideband.js';
 const fs = 48000;
 const deg = Math.PI / 180;
 
-/** I = A·cos ωt + dI, Q = s·g·A·sin(ωt + φ) + dQ (REFERENCES.md §1 model), s = −1 for lower sideband. */
+/** I = A·cos ωt + dI, Q = s·g·A·sin(ωt + φ) + dQ (K. Schmidt, QEX Aug 1994 §2), s = −1 for lower sideband. */
 function iq(
   len: number,
   hz: number,
@@ -30,7 +30,7 @@ function iq(
   return { i, q };
 }
 
-describe('measureSideband on I/Q against REFERENCES.md §1 (Schmidt, QEX 1994 §2; [C] table)', () => {
+describe('measureSideband on I/Q against the formula of K. Schmidt (QEX Aug 1994 §2), values computed from it', () => {
   const cases: [string, number, number, number][] = [
     ['1° phase error', 0, 1, 41.183],
     ['2° phase error', 0, 2, 35.162],
@@ -85,8 +85,8 @@ describe('measureSideband on I/Q against REFERENCES.md §1 (Schmidt, QEX 1994 §
   it('measurable depth: tone power over the white-noise power in one bin, from first principles', () => {
     // Complex tone of amplitude a reads a² (Heinzel 2002: A = |X|/Σw). White noise of variance σ² in
     // I and in Q puts E|X|² = 2σ²·Σw² in a bin, i.e. 2σ²·NENBW/N in the same units, NENBW = 2.0044
-    // bins for the 4-term Blackman–Harris window (Heinzel, Rüdiger & Schilling 2002, Table; REFERENCES.md
-    // §4). So the deepest readable suppression is 10·log10(a²·N/(2σ²·NENBW)) = 84.07 dB here. The
+    // bins for the 4-term Blackman–Harris window (Heinzel, Rüdiger & Schilling 2002, table
+    // of window figures). So the deepest readable suppression is 10·log10(a²·N/(2σ²·NENBW)) = 84.07 dB here. The
     // floor is a median over about 100 bins of about 30 averaged frames: within ±0.3 dB on 5 seeds,
     // bound ±1 dB (a depth off by a few dB, e.g. a window's NENBW or the I/Q factor 2, fails).
     const a = 0.5;

@@ -4,7 +4,7 @@
  * whatever the frame length. Noise-free captures are the hard case: their spectra have no noise
  * floor, only leakage and rounding.
  *
- * Levels: AES17 (a sine of peak A reads 20·log10 A dBFS) with Heinzel 2002 scaling (REFERENCES.md §4).
+ * Levels: AES17 (a sine of peak A reads 20·log10 A dBFS) with Heinzel, Rüdiger & Schilling 2002 scaling.
  */
 import { describe, expect, it } from 'vitest';
 import { analyzeTones, measureTones } from '../../src/measure/tones.js';
@@ -63,7 +63,7 @@ describe('measureTones: an absent tone near a strong one is read at its nominal 
           expect(r.refined).toBe(false);
           expect(r.frequencyHz).toBe(r.nominalHz);
           // What is read there is the strong tone's leakage: below its highest sidelobe, −92.0 dB for
-          // the Blackman–Harris window (REFERENCES.md §4, Heinzel 2002).
+          // the Blackman–Harris window (Heinzel, Rüdiger & Schilling 2002).
           expect(r.levelDbfs).toBeLessThan(strong!.levelDbfs - 92);
         }
         // I/Q: a perfect analytic tone has no image at −1500 Hz, and no carrier at 0 Hz.
@@ -73,7 +73,7 @@ describe('measureTones: an absent tone near a strong one is read at its nominal 
         for (const r of [img!, dc!]) {
           expect(r.refined).toBe(false);
           expect(r.frequencyHz).toBe(r.nominalHz);
-          expect(r.levelDbfs).toBeLessThan(w!.levelDbfs - 92); // REFERENCES.md §4: BH sidelobes −92.0 dB
+          expect(r.levelDbfs).toBeLessThan(w!.levelDbfs - 92); // Heinzel, Rüdiger & Schilling 2002: BH sidelobes −92.0 dB
         }
       });
     }
@@ -100,7 +100,7 @@ describe('measureTones: weak tones beside a strong one are read where they are (
         expect(r.refined, `${r.nominalHz} Hz refined`).toBe(true);
         expect(Math.abs(r.levelDbfs - dbfs(a)), `${r.nominalHz} Hz level`).toBeLessThan(0.1);
         // Within 2% of a frame bin; the −80 dBc tone 5%: the strong tone's leakage beside it (about
-        // −120 … −130 dB, REFERENCES.md §4 window figures) pulls its peak by about 0.01–0.04 bin.
+        // −120 … −130 dB, Heinzel, Rüdiger & Schilling 2002 window figures) pulls its peak by about 0.01–0.04 bin.
         const tol = (a < 1e-3 ? 0.05 : 0.02) * spectrum.resolutionHz;
         expect(Math.abs(r.frequencyHz - hz), `${r.nominalHz} Hz frequency`).toBeLessThan(tol);
       });

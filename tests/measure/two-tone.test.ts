@@ -13,7 +13,7 @@ const twoTone = (len: number, a: number, f1: number, f2: number, k3: number, k5:
 };
 
 describe('measureTwoTone', () => {
-  it('equal tones: each is 6.02 dB below PEP (REFERENCES.md §5; Krauss, Bostian & Raab p.509)', () => {
+  it('equal tones: each is 6.02 dB below PEP (Krauss, Bostian & Raab, Solid State Radio Engineering p. 509)', () => {
     const r = measureTwoTone(twoTone(65536, 0.25, 700, 1900, 0, 0), fs, [700, 1900]);
     expect(r.pepDbfs - r.toneDbfs).toBeCloseTo(20 * Math.log10(2), 3);
     expect(r.pepDbfs).toBeCloseTo(20 * Math.log10(0.5), 3);

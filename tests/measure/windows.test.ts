@@ -5,7 +5,7 @@ import { createWindow, WINDOW_NAMES, windowFigures } from '../../src/core/window
 
 // Published figures: G. Heinzel, A. Rüdiger, R. Schilling, "Spectrum and spectral density estimation
 // by the DFT…", MPI Gravitationsphysik 2002, as listed in CMSIS-DSP Source/WindowFunctions
-// (REFERENCES.md §4). The task asks for agreement within 0.1%; where the published figure is printed
+// (Heinzel, Rüdiger & Schilling 2002). The task asks for agreement within 0.1%; where the published figure is printed
 // with fewer digits than that (sidelobes to 0.1 dB, HFT95 flatness to 0.0001 dB) the check is
 // within half its last printed digit as well, whichever is larger, and says so.
 const PUBLISHED = {
@@ -19,7 +19,7 @@ const within = (x: number, ref: number, printedHalfDigit: number): void => {
   expect(Math.abs(x - ref)).toBeLessThanOrEqual(Math.max(0.001 * Math.abs(ref), printedHalfDigit));
 };
 
-describe('window figures against Heinzel 2002 (REFERENCES.md §4)', () => {
+describe('window figures against Heinzel, Rüdiger & Schilling 2002', () => {
   for (const name of WINDOW_NAMES) {
     it(`${name}: noise bandwidth, scallop loss / flatness, highest sidelobe`, () => {
       const f = windowFigures(name);

@@ -1,5 +1,5 @@
 // `npm run mutants`: runs StrykerJS through its programmatic API. Stryker 10's command line refuses
-// Node 20 (its `engines` says >= 22, while TOOLCHAIN.md pins Node 20 for the project), and its package
+// Node 20 (its `engines` says >= 22, while this project runs on Node 20), and its package
 // entry loads that command line (and its version guard) on import. Its `Stryker` class itself runs on
 // Node 20.20 (checked: full runs of every scope), so this starter loads that class from its own module
 // file and skips only the guard. Scope selection: MUTANTS=<scope>[,<scope>…] (tests/mutants/scopes.mjs); default all.

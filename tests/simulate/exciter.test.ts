@@ -42,9 +42,9 @@ function runAndRead(ex: VirtualExciter, hz: number, a = 0.5, len = 65536, block 
   };
 }
 
-describe('virtual exciter readings equal the image-rejection and carrier formulas (REFERENCES.md §1)', () => {
+describe('virtual exciter readings equal the image-rejection and carrier formulas (K. Schmidt, QEX Aug 1994 §2)', () => {
   // Gain mismatch between the I_eff and Q_eff paths (phase gains), phase error from channel skew
-  // (2πfτ, REFERENCES.md §6 [C]), each read through the sampled path and measureSideband.
+  // (2πfτ, common practice, no source), each read through the sampled path and measureSideband.
   const cases: [string, number, number, number][] = [
     ['0.1 dB gain, no skew', 0.1, 0, 1000],
     ['0.5 dB gain', 0.5, 0, 700],
@@ -102,7 +102,7 @@ describe('virtual exciter readings equal the image-rejection and carrier formula
   });
 });
 
-describe('trims in response() follow DESIGN.md §4 and can null a drawn device', () => {
+describe('trims in response() follow the trims of src/generate/trim-stage.ts and can null a drawn device', () => {
   it('the gain/phase trim that matches the device’s imbalance removes the image', () => {
     const g = 10 ** (0.3 / 20);
     const ex = createVirtualExciter(model({ phaseGain: [1, g, 1, g], skewSeconds: 2 / 360 / 1000 }), {
@@ -136,6 +136,12 @@ describe('trims in response() follow DESIGN.md §4 and can null a drawn device',
 
 describe('LO harmonics of the four-phase commutating mixer', () => {
   it('c_n/c_1 = sin(nπ/4)/(n·sin(π/4)): 3rd −9.54 dB, 5th −13.98 dB, 4th none', () => {
+    // Source: the Fourier series of a square wave, odd harmonics at 1/n of the fundamental (A. V.
+    // Oppenheim & A. S. Willsky, Signals and Systems, 2nd ed., the periodic square wave example):
+    // 20·log10(1/3) = −9.542 dB, 20·log10(1/5) = −13.979 dB. The four-phase weighting sin(nπ/4)
+    // removes the even harmonics (common practice, no source).
+    expect(20 * Math.log10(1 / 3)).toBeCloseTo(-9.542, 3);
+    expect(20 * Math.log10(1 / 5)).toBeCloseTo(-13.979, 3);
     expect(20 * Math.log10(Math.abs(mixerHarmonicRatio(3)))).toBeCloseTo(-9.542, 3);
     expect(20 * Math.log10(Math.abs(mixerHarmonicRatio(5)))).toBeCloseTo(-13.979, 3);
     expect(mixerHarmonicRatio(4)).toBe(0);
@@ -232,7 +238,14 @@ describe('frequency-dependent imbalance from mismatched corners and skew', () =>
     }
     expect(got[0]!.sidebandDb - got[4]!.sidebandDb).toBeGreaterThan(15); // 20 dB/decade roll-off of the error
   });
-  it('skew: −60 dBc at 2.7 kHz needs |τ| ≤ 0.12 µs (REFERENCES.md §6 [C], a rounded figure: exactly 0.1179 µs)', () => {
+  it('skew: −60 dBc at 2.7 kHz needs |τ| ≤ 0.12 µs (rounded; exactly 0.1179 µs)', () => {
+    // A skew τ is a phase error φ = 2πfτ (common practice, no source); at equal gains the image is
+    // −20·log10|tan(φ/2)| below the wanted tone (K. Schmidt, QEX Aug 1994 §2), so −60 dBc needs
+    // τ = atan(10⁻³)/(π·2700 Hz) = 0.11789 µs.
+    const tau = Math.atan(1e-3) / (Math.PI * 2700);
+    expect(tau * 1e6).toBeCloseTo(0.11789, 5);
+    const [e] = predictedSuppression(model({ skewSeconds: 0.1e-6 }), [2700]);
+    expect(e!.sidebandDb).toBeCloseTo(-20 * Math.log10(Math.tan(Math.PI * 2700 * 0.1e-6)), 6);
     const [p] = predictedSuppression(model({ skewSeconds: 0.117e-6 }), [2700]);
     expect(p!.sidebandDb).toBeGreaterThan(60);
     const [q] = predictedSuppression(model({ skewSeconds: 0.12e-6 }), [2700]);

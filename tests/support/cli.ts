@@ -5,10 +5,16 @@
 import { type SpawnSyncReturns, spawnSync } from 'node:child_process';
 import { writeFileSync } from 'node:fs';
 import * as wavefileNs from 'wavefile';
+import { ensureFreshBuild } from './built.js';
 
-/** Runs `node dist/cli.js ARGS…` (npm test builds first) and returns its exit status and output. */
-export const cli = (args: string[]): SpawnSyncReturns<string> =>
-  spawnSync('node', ['dist/cli.js', ...args], { encoding: 'utf8' });
+/**
+ * Runs `node dist/cli.js ARGS…` and returns its exit status and output. dist/ is rebuilt first when it
+ * is older than src/ (a CLI test run alone never runs a stale build; see ./built.ts).
+ */
+export const cli = (args: string[]): SpawnSyncReturns<string> => {
+  ensureFreshBuild(); // also done before every tests/cli file by tests/support/dist-setup.ts
+  return spawnSync('node', ['dist/cli.js', ...args], { encoding: 'utf8' });
+};
 
 type WaveFileCtor = new () => {
   fromScratch(c: number, sr: number, d: string, s: unknown): void;

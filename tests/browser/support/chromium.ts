@@ -1,7 +1,7 @@
 /**
  * Headless Chromium (Debian's /usr/bin/chromium) driven by playwright-core, and a Vite dev server
  * started programmatically (never `npx vite`: killing it leaves its child running).
- * Flags per /work/shared/TOOLCHAIN.md; audio needs no user gesture; getUserMedia gets Chromium's
+ * Flags that work with Debian's Chromium under playwright-core (tried here); audio needs no user gesture; getUserMedia gets Chromium's
  * fake input device so live-input code paths run without hardware.
  */
 import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';

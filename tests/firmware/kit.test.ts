@@ -8,6 +8,7 @@ import { cpSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
+import { createProfile } from '../../src/calibrate/profile.js';
 import { firmwareSourceDir } from '../../src/cli/firmware.js';
 import { createRng } from '../../src/core/rng.js';
 import { designNetwork } from '../../src/design/design-network.js';
@@ -38,8 +39,14 @@ function signals(seed: number): Float32Array {
   return x;
 }
 
-function buildKit(dir: string, net: Network, arithmetic: KitArithmetic, maxSkew: number): void {
-  const kit = firmwareKitFiles(net, { arithmetic, maxSkew });
+function buildKit(
+  dir: string,
+  net: Network,
+  arithmetic: KitArithmetic,
+  maxSkew: number,
+  profile: ReturnType<typeof createProfile> | null = null,
+): void {
+  const kit = firmwareKitFiles(net, { arithmetic, maxSkew, profile });
   const src = firmwareSourceDir();
   for (const f of FIRMWARE_SOURCE_FILES) cpSync(join(src, f), join(dir, f));
   for (const [f, text] of Object.entries(kit.files)) writeFileSync(join(dir, f), text);
@@ -179,4 +186,36 @@ describe('firmware kit: compiled C against the TypeScript model', () => {
       expect(e2 / N).toBeGreaterThan(0.3);
     });
   }
+});
+
+describe('firmware kit with a calibration profile', () => {
+  it("starts with the profile's trims (lower sideband, gain, phase, DC), as the model with them", () => {
+    const net = nets.allpass60!();
+    const profile = createProfile({
+      sampleRate: FS,
+      toneHz: 1000,
+      sideband: 'lower',
+      trims: { gainDb: -0.41, phaseDeg: 2.2, dcI: -0.003, dcQ: 0.0052 },
+      created: new Date('2026-12-02T12:00:00Z'),
+    });
+    const dir = mkdtempSync(join(work, 'p-'));
+    buildKit(dir, net, 'q15', 0, profile);
+    const x = signals(5).subarray(0, 4000);
+    const got = runHostCheck(dir, x, []);
+    const m = new KitModel(kitPlan(net, 'q15'), 0, kitTrimWords({ ...profile.trims }, true, 'q15', 0));
+    const codes = Float64Array.from(x, (v) => m.sampleFromFullScale(v));
+    const oi = new Float64Array(x.length);
+    const oq = new Float64Array(x.length);
+    m.processSamples(codes, oi, oq, x.length);
+    expect(Array.from(got.i)).toEqual(Array.from(oi, (v) => m.sampleToFullScale(v)));
+    expect(Array.from(got.q)).toEqual(Array.from(oq, (v) => m.sampleToFullScale(v)));
+    // and not the neutral trims
+    const n = new KitModel(
+      kitPlan(net, 'q15'),
+      0,
+      kitTrimWords({ gainDb: 0, phaseDeg: 0, skewSamples: 0, dcI: 0, dcQ: 0 }, false, 'q15', 0),
+    );
+    n.processSamples(codes, oi, oq, x.length);
+    expect(Array.from(got.q)).not.toEqual(Array.from(oq, (v) => n.sampleToFullScale(v)));
+  });
 });

@@ -5,11 +5,11 @@
 import { existsSync, mkdirSync, readdirSync, readFileSync, renameSync, rmSync, statSync } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { parseProfileJson } from '../calibrate/profile.js';
 import { cautionsText } from '../core/cautions.js';
 import { KIT_ARITHMETICS, type KitArithmetic } from '../design/kit-arithmetic.js';
 import { FIRMWARE_SOURCE_FILES, firmwareKitFiles } from '../export/firmware-kit.js';
 import { parseNetworkJson } from '../export/network-json.js';
+import { parseProfileJson } from '../export/profile-json.js';
 import { assertDistinctFiles, temporaryPathFor, writeFileAtomic } from '../node/files.js';
 import { choiceOpt, numberOpt, parseCommand, UsageError } from './args.js';
 

@@ -97,6 +97,15 @@ async function main(argv: string[]): Promise<number> {
   return runGuarded(() => mod.run(rest));
 }
 
+// A reader that stops early (`orthotone analyze … | head`) closes the pipe: that ends the run
+// quietly, as the reader wanted, instead of an EPIPE stack trace.
+for (const stream of [process.stdout, process.stderr]) {
+  stream.on('error', (e: NodeJS.ErrnoException) => {
+    if (e.code === 'EPIPE') process.exit(0);
+    throw e;
+  });
+}
+
 main(process.argv.slice(2)).then(
   (code) => {
     process.exitCode = code;

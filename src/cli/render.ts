@@ -24,7 +24,15 @@ import {
   type WavReader,
   type WavWriteReport,
 } from '../node/wav.js';
-import { choiceOpt, inCliWords, numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
+import {
+  choiceOpt,
+  inCliWords,
+  numberListOpt,
+  numberOpt,
+  parseCommand,
+  seedOpt,
+  UsageError,
+} from './args.js';
 import { DESIGN_OPTIONS, specFromOptions } from './design.js';
 import { disagreementWarning, loadNetworkFile } from './network-file.js';
 import { fixed, formatPairs } from './table.js';
@@ -143,7 +151,7 @@ function signalFromOptions(v: Record<string, unknown>, net: Network): SignalSpec
     };
   }
   if (v.noise) {
-    const seed = numberOpt('seed', v.seed) ?? 1;
+    const seed = seedOpt('seed', v.seed, 1);
     return v.white
       ? { kind: 'noise', levelDbfs: level ?? -20, seed }
       : { kind: 'noise', levelDbfs: level ?? -20, seed, band: net.band };

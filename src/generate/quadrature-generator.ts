@@ -172,9 +172,18 @@ class Generator implements QuadratureGenerator {
  *   out of range (trims via `validateTrims`).
  * @example
  * ```ts
+ * import { createQuadratureGenerator, createSignalSource, designNetwork } from 'orthotone';
+ *
+ * const net = designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'allpass', targetDb: 60 });
  * const gen = createQuadratureGenerator(net, { trims: { gainDb: 0.1, phaseDeg: -0.5 } });
- * const i = new Float32Array(128), q = new Float32Array(128);
- * gen.process(audioBlock, i, q);
+ * const tone = createSignalSource({ kind: 'tone', frequencyHz: 1000, levelDbfs: -6 }, 48000);
+ * const audio = new Float32Array(128);
+ * const i = new Float32Array(128);
+ * const q = new Float32Array(128);
+ * for (let block = 0; block < 10; block++) {
+ *   tone.fill(audio);
+ *   gen.process(audio, i, q); // I and Q for the exciter's two channels
+ * }
  * ```
  */
 export function createQuadratureGenerator(

@@ -21,7 +21,11 @@
  */
 import { OrthotoneError } from '../core/errors.js';
 import { type Correction, TRIM_LIMITS, type Trims, validateTrims, ZERO_TRIMS } from '../core/trims.js';
-import { requireOneOf, requireRange, withDefaults } from '../core/validate.js';
+import { requireOneOf, requireRange, stripUndefined, withDefaults } from '../core/validate.js';
+
+/** The trim fields a stage copies from a partial set (extra fields are ignored). */
+const TRIM_KEYS = ['gainDb', 'phaseDeg', 'skewSamples', 'dcI', 'dcQ'] as const;
+
 import { DEFAULT_MAX_CORRECTION_TAPS, validateCorrection } from './correction.js';
 import { FRACTIONAL_DELAY_TAPS, fractionalDelayTaps } from './fractional-delay.js';
 import { RUNTIME_CHUNK } from './network-runtime.js';
@@ -227,7 +231,7 @@ export class TrimStage {
     this.rampDefault = Math.round(o.rampSeconds * sampleRate);
     this.maxSkewSamples = o.maxSkewSamples;
     this.maxCorrectionTaps = o.maxCorrectionTaps;
-    this.targetTrims = { ...ZERO_TRIMS, ...stripUndefined(o.trims) };
+    this.targetTrims = { ...ZERO_TRIMS, ...stripUndefined(o.trims, TRIM_KEYS) };
     this.sidebandSel = o.sideband;
     const lm = o.maxCorrectionTaps;
     this.kc = lm > 0 ? (lm - 1) / 2 : 0;
@@ -310,7 +314,7 @@ export class TrimStage {
       );
     }
     const ramp = this.rampFor(opts);
-    this.targetTrims = { ...this.targetTrims, ...stripUndefined(t) };
+    this.targetTrims = { ...this.targetTrims, ...stripUndefined(t, TRIM_KEYS) };
     this.retarget(ramp);
   }
 
@@ -743,13 +747,4 @@ function fractional(taps: Float64Array, h: Float64Array, base: number): number {
     acc2 += taps[k + 1]! * h[base - k - 1]!;
   }
   return acc + acc2;
-}
-
-function stripUndefined(t: Partial<Trims>): Partial<Trims> {
-  const out: Partial<Trims> = {};
-  for (const k of ['gainDb', 'phaseDeg', 'skewSamples', 'dcI', 'dcQ'] as const) {
-    const v = t[k];
-    if (v !== undefined) out[k] = v;
-  }
-  return out;
 }

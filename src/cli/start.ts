@@ -9,13 +9,14 @@
 import { mkdir } from 'node:fs/promises';
 import { resolve } from 'node:path';
 import { calibrateSidebandAndCarrier } from '../calibrate/combined.js';
-import { createProfile, type ProfileReading, profileToJson } from '../calibrate/profile.js';
+import { createProfile, type ProfileReading } from '../calibrate/profile.js';
 import { cautionsText } from '../core/cautions.js';
 import { ZERO_TRIMS } from '../core/trims.js';
 import { designNetwork } from '../design/design-network.js';
 import { networkToCHeader } from '../export/c-header.js';
 import { networkToJson } from '../export/network-json.js';
 import { profileToCHeader } from '../export/profile-header.js';
+import { profileToJson } from '../export/profile-json.js';
 import { createQuadratureGenerator } from '../generate/quadrature-generator.js';
 import { createSignalSource } from '../generate/sources.js';
 import { writeFileSet } from '../node/files.js';

@@ -19,32 +19,28 @@ import { createTrimSeeker } from './trim-calibration.js';
  *   `onReading` is passed on as a rejection.
  */
 export async function runNullSeeker(seeker, measure, options = {}) {
-  // The plain coordinates ride in two trim fields through the session driver.
-  const axes = {
-    quantity: 'sideband',
-    names: [...seeker.options.axisNames],
-    toPoint: (t) => [t.gainDb, t.phaseDeg],
-    toTrims: (p, base) => ({ ...base, gainDb: p[0], phaseDeg: p[1] }),
-    seeker: {},
-  };
-  const ts = createTrimSeeker(seeker, axes, { ...ZERO_TRIMS });
-  const { onReading } = options;
-  const session = await runSession(
-    ts,
-    functionSource((t) => measure([t.gainDb, t.phaseDeg])),
-    {
-      signal: options.signal,
-      onReading: (h) => {
-        onReading?.({
-          index: seeker.count,
-          point: [h.trims.gainDb, h.trims.phaseDeg],
-          db: h.levels ?? Number.NaN,
-          ...(h.error !== undefined ? { error: h.error } : {}),
-          best: seeker.best(),
-          estimate: seeker.estimate(),
-        });
-      },
-    },
-  );
-  return session.lastError !== undefined ? { lastError: session.lastError } : {};
+    // The plain coordinates ride in two trim fields through the session driver.
+    const axes = {
+        quantity: 'sideband',
+        names: [...seeker.options.axisNames],
+        toPoint: (t) => [t.gainDb, t.phaseDeg],
+        toTrims: (p, base) => ({ ...base, gainDb: p[0], phaseDeg: p[1] }),
+        seeker: {},
+    };
+    const ts = createTrimSeeker(seeker, axes, { ...ZERO_TRIMS });
+    const { onReading } = options;
+    const session = await runSession(ts, functionSource((t) => measure([t.gainDb, t.phaseDeg])), {
+        signal: options.signal,
+        onReading: (h) => {
+            onReading?.({
+                index: seeker.count,
+                point: [h.trims.gainDb, h.trims.phaseDeg],
+                db: h.levels ?? Number.NaN,
+                ...(h.error !== undefined ? { error: h.error } : {}),
+                best: seeker.best(),
+                estimate: seeker.estimate(),
+            });
+        },
+    });
+    return session.lastError !== undefined ? { lastError: session.lastError } : {};
 }

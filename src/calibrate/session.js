@@ -29,13 +29,15 @@ export const PASS_THROUGH = Object.freeze({ apply: (t) => t });
  * @throws never
  */
 export function levelsFinite(levels) {
-  if (typeof levels === 'number') return Number.isFinite(levels);
-  if (Array.isArray(levels)) return levels.length > 0 && levels.every(levelsFinite);
-  if (levels && typeof levels === 'object') return Object.values(levels).every(levelsFinite);
-  return false;
+    if (typeof levels === 'number')
+        return Number.isFinite(levels);
+    if (Array.isArray(levels))
+        return levels.length > 0 && levels.every(levelsFinite);
+    if (levels && typeof levels === 'object')
+        return Object.values(levels).every(levelsFinite);
+    return false;
 }
-const isCommand = (x) =>
-  typeof x === 'object' && x !== null && 'command' in x && typeof x.command === 'string';
+const isCommand = (x) => typeof x === 'object' && x !== null && 'command' in x && typeof x.command === 'string';
 /**
  * Drives a seeker with a reading source until the seeker stops, the source says stop, the signal
  * aborts or readings keep failing. Never rejects on a failed reading, a time-out or an abort (the
@@ -49,154 +51,139 @@ const isCommand = (x) =>
  * Reference: DESIGN.md §6 (ask/tell core with an async driver).
  */
 export async function runSession(seeker, source, options = {}) {
-  const applier = options.applier ?? PASS_THROUGH;
-  const { signal } = options;
-  const timeout = options.timeoutSeconds;
-  if (timeout !== undefined && !(timeout > 0 && timeout <= 86_400)) {
-    throw new OrthotoneError(
-      'INVALID_ARGUMENT',
-      `timeoutSeconds ${timeout} must lie in (0, 86400] s: give the time one reading may take`,
-      timeout,
-    );
-  }
-  const maxFailures = options.maxFailures ?? 3;
-  if (!(Number.isInteger(maxFailures) && maxFailures >= 1)) {
-    throw new OrthotoneError(
-      'INVALID_ARGUMENT',
-      `maxFailures ${maxFailures} must be an integer ≥ 1`,
-      maxFailures,
-    );
-  }
-  const history = [...(options.history ?? [])];
-  let lastError;
-  let failures = 0;
-  let cutShort;
-  let refusal;
-  const abortReason = (s) => s.reason ?? new OrthotoneError('ABORTED', 'aborted');
-  for (;;) {
-    if (signal?.aborted) {
-      seeker.stop('aborted');
-      cutShort = 'aborted';
-      break;
+    const applier = options.applier ?? PASS_THROUGH;
+    const { signal } = options;
+    const timeout = options.timeoutSeconds;
+    if (timeout !== undefined && !(timeout > 0 && timeout <= 86_400)) {
+        throw new OrthotoneError('INVALID_ARGUMENT', `timeoutSeconds ${timeout} must lie in (0, 86400] s: give the time one reading may take`, timeout);
     }
-    const proposed = seeker.next();
-    if (!proposed) break;
-    const index = seeker.count + 1;
-    // One controller per reading: fires on the caller's abort and on the time-out.
-    const ctl = new AbortController();
-    const onOuter = () => ctl.abort(abortReason(signal));
-    signal?.addEventListener('abort', onOuter, { once: true });
-    const timer =
-      timeout !== undefined
-        ? setTimeout(
-            () =>
-              ctl.abort(
-                new OrthotoneError(
-                  'MEASUREMENT_FAILED',
-                  `reading ${index} took longer than ${timeout} s: raise the time-out or check the instrument`,
-                ),
-              ),
-            timeout * 1000,
-          )
-        : undefined;
-    let trims = proposed;
-    let answer;
-    let error;
-    try {
-      const work = (async () => {
-        trims = await applier.apply(proposed, ctl.signal);
-        return source.read(trims, { index, maxReadings: options.maxReadings, signal: ctl.signal });
-      })();
-      answer = await abortable(work, ctl.signal, (s) => s.reason);
-    } catch (e) {
-      error = e;
-    } finally {
-      if (timer !== undefined) clearTimeout(timer);
-      signal?.removeEventListener('abort', onOuter);
+    const maxFailures = options.maxFailures ?? 3;
+    if (!(Number.isInteger(maxFailures) && maxFailures >= 1)) {
+        throw new OrthotoneError('INVALID_ARGUMENT', `maxFailures ${maxFailures} must be an integer ≥ 1`, maxFailures);
     }
-    if (signal?.aborted || (error !== undefined && isOrthotoneError(error, 'ABORTED'))) {
-      seeker.stop('aborted');
-      cutShort = 'aborted';
-      break;
+    const history = [...(options.history ?? [])];
+    let lastError;
+    let failures = 0;
+    let cutShort;
+    let refusal;
+    const abortReason = (s) => s.reason ?? new OrthotoneError('ABORTED', 'aborted');
+    for (;;) {
+        if (signal?.aborted) {
+            seeker.stop('aborted');
+            cutShort = 'aborted';
+            break;
+        }
+        const proposed = seeker.next();
+        if (!proposed)
+            break;
+        const index = seeker.count + 1;
+        // One controller per reading: fires on the caller's abort and on the time-out.
+        const ctl = new AbortController();
+        const onOuter = () => ctl.abort(abortReason(signal));
+        signal?.addEventListener('abort', onOuter, { once: true });
+        const timer = timeout !== undefined
+            ? setTimeout(() => ctl.abort(new OrthotoneError('MEASUREMENT_FAILED', `reading ${index} took longer than ${timeout} s: raise the time-out or check the instrument`)), timeout * 1000)
+            : undefined;
+        let trims = proposed;
+        let answer;
+        let error;
+        try {
+            const work = (async () => {
+                trims = await applier.apply(proposed, ctl.signal);
+                return source.read(trims, { index, maxReadings: options.maxReadings, signal: ctl.signal });
+            })();
+            answer = await abortable(work, ctl.signal, (s) => s.reason);
+        }
+        catch (e) {
+            error = e;
+        }
+        finally {
+            if (timer !== undefined)
+                clearTimeout(timer);
+            signal?.removeEventListener('abort', onOuter);
+        }
+        if (signal?.aborted || (error !== undefined && isOrthotoneError(error, 'ABORTED'))) {
+            seeker.stop('aborted');
+            cutShort = 'aborted';
+            break;
+        }
+        if (isCommand(answer)) {
+            if (answer.command === 'retry')
+                continue;
+            if (answer.command === 'undo') {
+                const dropped = seeker.count > 0 ? history.pop() : undefined;
+                seeker.undo();
+                options.onUndo?.(dropped);
+                continue;
+            }
+            seeker.stop('aborted');
+            cutShort = answer.why ?? 'quit';
+            break;
+        }
+        const good = error === undefined && levelsFinite(answer);
+        if (!good) {
+            if (error === undefined) {
+                error = new OrthotoneError('MEASUREMENT_FAILED', `reading ${index} gave ${JSON.stringify(answer)}, not a finite level in dB`, answer);
+            }
+            lastError = error;
+            failures++;
+            options.onFailure?.(error, index);
+        }
+        else
+            failures = 0;
+        const levels = good ? answer : undefined;
+        if (good && source.check)
+            refusal = source.check(levels, trims);
+        seeker.tell(trims, levels, error);
+        const step = {
+            index: history.length + 1,
+            trims,
+            levels,
+            ...(error !== undefined ? { error } : {}),
+            best: seeker.best(),
+        };
+        history.push(step);
+        options.onReading?.(step);
+        if (refusal !== undefined) {
+            seeker.stop('aborted');
+            cutShort = 'refused';
+            break;
+        }
+        if (failures >= maxFailures) {
+            seeker.stop('measurement-failed');
+            cutShort = 'failed';
+            break;
+        }
     }
-    if (isCommand(answer)) {
-      if (answer.command === 'retry') continue;
-      if (answer.command === 'undo') {
-        const dropped = seeker.count > 0 ? history.pop() : undefined;
-        seeker.undo();
-        options.onUndo?.(dropped);
-        continue;
-      }
-      seeker.stop('aborted');
-      cutShort = answer.why ?? 'quit';
-      break;
-    }
-    const good = error === undefined && levelsFinite(answer);
-    if (!good) {
-      if (error === undefined) {
-        error = new OrthotoneError(
-          'MEASUREMENT_FAILED',
-          `reading ${index} gave ${JSON.stringify(answer)}, not a finite level in dB`,
-          answer,
-        );
-      }
-      lastError = error;
-      failures++;
-      options.onFailure?.(error, index);
-    } else failures = 0;
-    const levels = good ? answer : undefined;
-    if (good && source.check) refusal = source.check(levels, trims);
-    seeker.tell(trims, levels, error);
-    const step = {
-      index: history.length + 1,
-      trims,
-      levels,
-      ...(error !== undefined ? { error } : {}),
-      best: seeker.best(),
+    return {
+        stopReason: seeker.stopReason ?? 'budget',
+        history,
+        ...(lastError !== undefined ? { lastError } : {}),
+        ...(cutShort ? { cutShort } : {}),
+        ...(refusal !== undefined ? { refusal } : {}),
     };
-    history.push(step);
-    options.onReading?.(step);
-    if (refusal !== undefined) {
-      seeker.stop('aborted');
-      cutShort = 'refused';
-      break;
-    }
-    if (failures >= maxFailures) {
-      seeker.stop('measurement-failed');
-      cutShort = 'failed';
-      break;
-    }
-  }
-  return {
-    stopReason: seeker.stopReason ?? 'budget',
-    history,
-    ...(lastError !== undefined ? { lastError } : {}),
-    ...(cutShort ? { cutShort } : {}),
-    ...(refusal !== undefined ? { refusal } : {}),
-  };
 }
 /**
  * A reading source over a plain function `(trims) => level(s)` (the library's `measure` option).
  * @throws never
  */
 export function functionSource(measure) {
-  return { read: (t) => measure(t) };
+    return { read: (t) => measure(t) };
 }
 export function analyzerSource(analyzer, quantity, toneHz, amplitude) {
-  if (quantity === 'both') {
+    if (quantity === 'both') {
+        return {
+            read: (t) => {
+                const r = analyzer.readBoth(toneHz, t, amplitude);
+                return { sidebandDb: r.sidebandDbc, carrierDb: r.carrierDbc };
+            },
+        };
+    }
     return {
-      read: (t) => {
-        const r = analyzer.readBoth(toneHz, t, amplitude);
-        return { sidebandDb: r.sidebandDbc, carrierDb: r.carrierDbc };
-      },
+        read: (t) => quantity === 'sideband'
+            ? analyzer.readSideband(toneHz, t, amplitude)
+            : analyzer.readCarrier(toneHz, t, amplitude),
     };
-  }
-  return {
-    read: (t) =>
-      quantity === 'sideband'
-        ? analyzer.readSideband(toneHz, t, amplitude)
-        : analyzer.readCarrier(toneHz, t, amplitude),
-  };
 }
 /**
  * A reading source whose levels are mapped by `f` (e.g. the first of a list of typed numbers);
@@ -204,10 +191,10 @@ export function analyzerSource(analyzer, quantity, toneHz, amplitude) {
  * @throws never
  */
 export function mapSource(source, f) {
-  return {
-    async read(trims, ctx) {
-      const a = await source.read(trims, ctx);
-      return isCommand(a) ? a : f(a);
-    },
-  };
+    return {
+        async read(trims, ctx) {
+            const a = await source.read(trims, ctx);
+            return isCommand(a) ? a : f(a);
+        },
+    };
 }

@@ -13,45 +13,51 @@
  * @throws never
  */
 export function solveInPlace(a, b, n) {
-  let scale = 0;
-  for (let i = 0; i < n * n; i++) scale = Math.max(scale, Math.abs(a[i]));
-  const tiny = scale * 1e-14;
-  if (!(scale > 0)) return false;
-  for (let col = 0; col < n; col++) {
-    let piv = col;
-    let best = Math.abs(a[col * n + col]);
-    for (let r = col + 1; r < n; r++) {
-      const v = Math.abs(a[r * n + col]);
-      if (v > best) {
-        best = v;
-        piv = r;
-      }
+    let scale = 0;
+    for (let i = 0; i < n * n; i++)
+        scale = Math.max(scale, Math.abs(a[i]));
+    const tiny = scale * 1e-14;
+    if (!(scale > 0))
+        return false;
+    for (let col = 0; col < n; col++) {
+        let piv = col;
+        let best = Math.abs(a[col * n + col]);
+        for (let r = col + 1; r < n; r++) {
+            const v = Math.abs(a[r * n + col]);
+            if (v > best) {
+                best = v;
+                piv = r;
+            }
+        }
+        if (!(best > tiny))
+            return false;
+        if (piv !== col) {
+            for (let k = 0; k < n; k++) {
+                const t = a[col * n + k];
+                a[col * n + k] = a[piv * n + k];
+                a[piv * n + k] = t;
+            }
+            const t = b[col];
+            b[col] = b[piv];
+            b[piv] = t;
+        }
+        const d = a[col * n + col];
+        for (let r = col + 1; r < n; r++) {
+            const f = a[r * n + col] / d;
+            if (f === 0)
+                continue;
+            for (let k = col; k < n; k++)
+                a[r * n + k] = a[r * n + k] - f * a[col * n + k];
+            b[r] = b[r] - f * b[col];
+        }
     }
-    if (!(best > tiny)) return false;
-    if (piv !== col) {
-      for (let k = 0; k < n; k++) {
-        const t = a[col * n + k];
-        a[col * n + k] = a[piv * n + k];
-        a[piv * n + k] = t;
-      }
-      const t = b[col];
-      b[col] = b[piv];
-      b[piv] = t;
+    for (let r = n - 1; r >= 0; r--) {
+        let s = b[r];
+        for (let k = r + 1; k < n; k++)
+            s -= a[r * n + k] * b[k];
+        b[r] = s / a[r * n + r];
     }
-    const d = a[col * n + col];
-    for (let r = col + 1; r < n; r++) {
-      const f = a[r * n + col] / d;
-      if (f === 0) continue;
-      for (let k = col; k < n; k++) a[r * n + k] = a[r * n + k] - f * a[col * n + k];
-      b[r] = b[r] - f * b[col];
-    }
-  }
-  for (let r = n - 1; r >= 0; r--) {
-    let s = b[r];
-    for (let k = r + 1; k < n; k++) s -= a[r * n + k] * b[k];
-    b[r] = s / a[r * n + r];
-  }
-  return true;
+    return true;
 }
 /**
  * Inverse of a small n×n matrix (row-major), column by column.
@@ -59,17 +65,19 @@ export function solveInPlace(a, b, n) {
  * @throws never
  */
 export function invert(a, n) {
-  const out = new Float64Array(n * n);
-  const work = new Float64Array(n * n);
-  const col = new Float64Array(n);
-  for (let j = 0; j < n; j++) {
-    work.set(a);
-    col.fill(0);
-    col[j] = 1;
-    if (!solveInPlace(work, col, n)) return undefined;
-    for (let i = 0; i < n; i++) out[i * n + j] = col[i];
-  }
-  return out;
+    const out = new Float64Array(n * n);
+    const work = new Float64Array(n * n);
+    const col = new Float64Array(n);
+    for (let j = 0; j < n; j++) {
+        work.set(a);
+        col.fill(0);
+        col[j] = 1;
+        if (!solveInPlace(work, col, n))
+            return undefined;
+        for (let i = 0; i < n; i++)
+            out[i * n + j] = col[i];
+    }
+    return out;
 }
 /**
  * Weighted linear least squares `min Σ w_i (row_i·x − y_i)²` by the normal equations, with an
@@ -81,17 +89,21 @@ export function invert(a, n) {
  * @throws never
  */
 export function weightedLeastSquares(rows, y, w, m, ridge = 0) {
-  const ata = new Float64Array(m * m);
-  const atb = new Float64Array(m);
-  for (let i = 0; i < rows.length; i++) {
-    const r = rows[i];
-    const wi = w[i];
-    if (!(wi > 0)) continue;
-    for (let p = 0; p < m; p++) {
-      atb[p] = atb[p] + wi * r[p] * y[i];
-      for (let q = 0; q < m; q++) ata[p * m + q] = ata[p * m + q] + wi * r[p] * r[q];
+    const ata = new Float64Array(m * m);
+    const atb = new Float64Array(m);
+    for (let i = 0; i < rows.length; i++) {
+        const r = rows[i];
+        const wi = w[i];
+        if (!(wi > 0))
+            continue;
+        for (let p = 0; p < m; p++) {
+            atb[p] = atb[p] + wi * r[p] * y[i];
+            for (let q = 0; q < m; q++)
+                ata[p * m + q] = ata[p * m + q] + wi * r[p] * r[q];
+        }
     }
-  }
-  if (ridge > 0) for (let p = 0; p < m; p++) ata[p * m + p] = ata[p * m + p] + ridge;
-  return solveInPlace(ata, atb, m) ? atb : undefined;
+    if (ridge > 0)
+        for (let p = 0; p < m; p++)
+            ata[p * m + p] = ata[p * m + p] + ridge;
+    return solveInPlace(ata, atb, m) ? atb : undefined;
 }

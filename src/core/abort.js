@@ -12,20 +12,19 @@
  * Reference: WHATWG DOM Standard, `AbortSignal` (the `abort` event and `reason`).
  */
 export function abortable(p, signal, reason) {
-  if (!signal) return p;
-  return new Promise((resolve, reject) => {
-    const onAbort = () => reject(reason(signal));
-    if (signal.aborted) return onAbort();
-    signal.addEventListener('abort', onAbort, { once: true });
-    p.then(
-      (v) => {
-        signal.removeEventListener('abort', onAbort);
-        resolve(v);
-      },
-      (e) => {
-        signal.removeEventListener('abort', onAbort);
-        reject(e);
-      },
-    );
-  });
+    if (!signal)
+        return p;
+    return new Promise((resolve, reject) => {
+        const onAbort = () => reject(reason(signal));
+        if (signal.aborted)
+            return onAbort();
+        signal.addEventListener('abort', onAbort, { once: true });
+        p.then((v) => {
+            signal.removeEventListener('abort', onAbort);
+            resolve(v);
+        }, (e) => {
+            signal.removeEventListener('abort', onAbort);
+            reject(e);
+        });
+    });
 }

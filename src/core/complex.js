@@ -10,13 +10,13 @@ export const cadd = (a, b) => ({ re: a.re + b.re, im: a.im + b.im });
 export const csub = (a, b) => ({ re: a.re - b.re, im: a.im - b.im });
 /** Product a·b. @throws never. */
 export const cmul = (a, b) => ({
-  re: a.re * b.re - a.im * b.im,
-  im: a.re * b.im + a.im * b.re,
+    re: a.re * b.re - a.im * b.im,
+    im: a.re * b.im + a.im * b.re,
 });
 /** Quotient a / b (b ≠ 0; b = 0 gives non-finite parts). @throws never. */
 export function cdiv(a, b) {
-  const d = b.re * b.re + b.im * b.im;
-  return { re: (a.re * b.re + a.im * b.im) / d, im: (a.im * b.re - a.re * b.im) / d };
+    const d = b.re * b.re + b.im * b.im;
+    return { re: (a.re * b.re + a.im * b.im) / d, im: (a.im * b.re - a.re * b.im) / d };
 }
 /** Magnitude |a|. @throws never. */
 export const cabs = (a) => Math.hypot(a.re, a.im);

@@ -7,18 +7,18 @@ import { OrthotoneError } from './errors.js';
 import { requireFinite } from './validate.js';
 /** All-zero trims. */
 export const ZERO_TRIMS = Object.freeze({
-  gainDb: 0,
-  phaseDeg: 0,
-  skewSamples: 0,
-  dcI: 0,
-  dcQ: 0,
+    gainDb: 0,
+    phaseDeg: 0,
+    skewSamples: 0,
+    dcI: 0,
+    dcQ: 0,
 });
 /** Limits enforced by {@link validateTrims}. */
 export const TRIM_LIMITS = Object.freeze({
-  gainDb: 6,
-  phaseDeg: 45,
-  skewSamples: 16,
-  dc: 1,
+    gainDb: 6,
+    phaseDeg: 45,
+    skewSamples: 16,
+    dc: 1,
 });
 /**
  * Validates a partial trim set: every given value finite, |gainDb| ≤ 6 dB, |phaseDeg| ≤ 45°,
@@ -26,22 +26,19 @@ export const TRIM_LIMITS = Object.freeze({
  * @throws {OrthotoneError} INVALID_ARGUMENT naming the trim, its value and the allowed range.
  */
 export function validateTrims(t) {
-  const check = (name, lim, unit) => {
-    const v = t[name];
-    if (v === undefined) return;
-    requireFinite(name, v, `use a value from ${-lim} to ${lim} ${unit}`);
-    if (Math.abs(v) > lim) {
-      throw new OrthotoneError(
-        'INVALID_ARGUMENT',
-        `${name} ${v} ${unit} is out of range: use a value from ${-lim} to ${lim} ${unit}`,
-        v,
-      );
-    }
-  };
-  check('gainDb', TRIM_LIMITS.gainDb, 'dB');
-  check('phaseDeg', TRIM_LIMITS.phaseDeg, 'degrees');
-  check('skewSamples', TRIM_LIMITS.skewSamples, 'samples');
-  check('dcI', TRIM_LIMITS.dc, 'full scale');
-  check('dcQ', TRIM_LIMITS.dc, 'full scale');
-  return t;
+    const check = (name, lim, unit) => {
+        const v = t[name];
+        if (v === undefined)
+            return;
+        requireFinite(name, v, `use a value from ${-lim} to ${lim} ${unit}`);
+        if (Math.abs(v) > lim) {
+            throw new OrthotoneError('INVALID_ARGUMENT', `${name} ${v} ${unit} is out of range: use a value from ${-lim} to ${lim} ${unit}`, v);
+        }
+    };
+    check('gainDb', TRIM_LIMITS.gainDb, 'dB');
+    check('phaseDeg', TRIM_LIMITS.phaseDeg, 'degrees');
+    check('skewSamples', TRIM_LIMITS.skewSamples, 'samples');
+    check('dcI', TRIM_LIMITS.dc, 'full scale');
+    check('dcQ', TRIM_LIMITS.dc, 'full scale');
+    return t;
 }

@@ -1,12 +1,5 @@
 export * from './allpass-pair.js';
-export {
-  allpassBranchGroupDelay,
-  analyzeNetwork,
-  bandFigures,
-  firGroupDelay,
-  networkCost,
-  predictFigures,
-} from './analysis.js';
+export { allpassBranchGroupDelay, analyzeNetwork, bandFigures, firGroupDelay, networkCost, predictFigures, } from './analysis.js';
 export * from './design-network.js';
 export * from './elliptic.js';
 export * from './hilbert-fir.js';

@@ -22,15 +22,16 @@ import { requireFinite, requireInteger } from '../core/validate.js';
  * @throws never
  */
 export function besselI0(x) {
-  const q = (x * x) / 4;
-  let term = 1;
-  let sum = 1;
-  for (let k = 1; k < 500; k++) {
-    term *= q / (k * k);
-    sum += term;
-    if (term < sum * 1e-17) break;
-  }
-  return sum;
+    const q = (x * x) / 4;
+    let term = 1;
+    let sum = 1;
+    for (let k = 1; k < 500; k++) {
+        term *= q / (k * k);
+        sum += term;
+        if (term < sum * 1e-17)
+            break;
+    }
+    return sum;
 }
 /**
  * Kaiser's β for a given attenuation (stop-band attenuation and pass-band ripple, in dB):
@@ -43,10 +44,12 @@ export function besselI0(x) {
  * kaiserBeta(65); // 6.20426 (scipy documentation example)
  */
 export function kaiserBeta(attenuationDb) {
-  const a = requireFinite('attenuationDb', attenuationDb, 'give the attenuation in dB, e.g. 60');
-  if (a > 50) return 0.1102 * (a - 8.7);
-  if (a > 21) return 0.5842 * (a - 21) ** 0.4 + 0.07886 * (a - 21);
-  return 0;
+    const a = requireFinite('attenuationDb', attenuationDb, 'give the attenuation in dB, e.g. 60');
+    if (a > 50)
+        return 0.1102 * (a - 8.7);
+    if (a > 21)
+        return 0.5842 * (a - 21) ** 0.4 + 0.07886 * (a - 21);
+    return 0;
 }
 /**
  * Kaiser's estimate of the window length for a windowed FIR design [1, 2]:
@@ -60,24 +63,16 @@ export function kaiserBeta(attenuationDb) {
  * kaiserOrder(65, 24 / 500); // { numtaps: 167, beta: 6.20426 } (scipy documentation example)
  */
 export function kaiserOrder(attenuationDb, transitionWidth) {
-  const a = requireFinite('attenuationDb', attenuationDb, 'give the attenuation in dB, e.g. 60');
-  if (a < 8) {
-    throw new OrthotoneError(
-      'INVALID_ARGUMENT',
-      `attenuationDb ${a} is below 8 dB, where Kaiser's length formula is not valid: ask for at least 8 dB`,
-      attenuationDb,
-    );
-  }
-  const w = requireFinite('transitionWidth', transitionWidth, 'give a width from 0 to 1 (Nyquist = 1)');
-  if (w <= 0 || w > 1) {
-    throw new OrthotoneError(
-      'INVALID_ARGUMENT',
-      `transitionWidth ${w} must be greater than 0 and at most 1 (normalised to Nyquist = 1)`,
-      transitionWidth,
-    );
-  }
-  const numtaps = Math.ceil((a - 7.95) / (2.285 * Math.PI * w) + 1);
-  return { numtaps, beta: kaiserBeta(a) };
+    const a = requireFinite('attenuationDb', attenuationDb, 'give the attenuation in dB, e.g. 60');
+    if (a < 8) {
+        throw new OrthotoneError('INVALID_ARGUMENT', `attenuationDb ${a} is below 8 dB, where Kaiser's length formula is not valid: ask for at least 8 dB`, attenuationDb);
+    }
+    const w = requireFinite('transitionWidth', transitionWidth, 'give a width from 0 to 1 (Nyquist = 1)');
+    if (w <= 0 || w > 1) {
+        throw new OrthotoneError('INVALID_ARGUMENT', `transitionWidth ${w} must be greater than 0 and at most 1 (normalised to Nyquist = 1)`, transitionWidth);
+    }
+    const numtaps = Math.ceil((a - 7.95) / (2.285 * Math.PI * w) + 1);
+    return { numtaps, beta: kaiserBeta(a) };
 }
 /**
  * Attenuation that a Kaiser-windowed design of `numtaps` taps and transition width Δ achieves by
@@ -88,7 +83,7 @@ export function kaiserOrder(attenuationDb, transitionWidth) {
  * @throws never
  */
 export function kaiserAttenuation(numtaps, transitionWidth) {
-  return 2.285 * (numtaps - 1) * Math.PI * transitionWidth + 7.95;
+    return 2.285 * (numtaps - 1) * Math.PI * transitionWidth + 7.95;
 }
 /**
  * The symmetric Kaiser window `w[n] = I0(β·√(1 − ((n − α)/α)²)) / I0(β)`, α = (length − 1)/2 [1].
@@ -98,23 +93,23 @@ export function kaiserAttenuation(numtaps, transitionWidth) {
  * @throws {OrthotoneError} INVALID_ARGUMENT for a bad length or a negative / non-finite β.
  */
 export function kaiserWindow(length, beta) {
-  const n = requireInteger('length', length, 1, 1 << 20);
-  const b = requireFinite('beta', beta, 'use β ≥ 0, e.g. kaiserBeta(60)');
-  if (b < 0) {
-    throw new OrthotoneError('INVALID_ARGUMENT', `beta ${b} must be 0 or greater`, beta);
-  }
-  const w = new Float64Array(n);
-  if (n === 1) {
-    w[0] = 1;
+    const n = requireInteger('length', length, 1, 1 << 20);
+    const b = requireFinite('beta', beta, 'use β ≥ 0, e.g. kaiserBeta(60)');
+    if (b < 0) {
+        throw new OrthotoneError('INVALID_ARGUMENT', `beta ${b} must be 0 or greater`, beta);
+    }
+    const w = new Float64Array(n);
+    if (n === 1) {
+        w[0] = 1;
+        return w;
+    }
+    const alpha = (n - 1) / 2;
+    const norm = besselI0(b);
+    for (let k = 0; k <= (n - 1) >> 1; k++) {
+        const r = (k - alpha) / alpha;
+        const v = besselI0(b * Math.sqrt(Math.max(0, 1 - r * r))) / norm;
+        w[k] = v;
+        w[n - 1 - k] = v;
+    }
     return w;
-  }
-  const alpha = (n - 1) / 2;
-  const norm = besselI0(b);
-  for (let k = 0; k <= (n - 1) >> 1; k++) {
-    const r = (k - alpha) / alpha;
-    const v = besselI0(b * Math.sqrt(Math.max(0, 1 - r * r))) / norm;
-    w[k] = v;
-    w[n - 1 - k] = v;
-  }
-  return w;
 }

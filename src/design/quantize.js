@@ -13,10 +13,10 @@ import { validateNetwork } from './network.js';
 /** All formats, in order of report. */
 export const COEFFICIENT_FORMATS = Object.freeze(['float32', 'q15', 'q31']);
 function fixedPoint(x, fracBits) {
-  const scale = 2 ** fracBits;
-  const maxCode = scale - 1;
-  const code = Math.sign(x) * Math.floor(Math.abs(x) * scale + 0.5);
-  return Math.max(-maxCode, Math.min(maxCode, code)) / scale;
+    const scale = 2 ** fracBits;
+    const maxCode = scale - 1;
+    const code = Math.sign(x) * Math.floor(Math.abs(x) * scale + 0.5);
+    return Math.max(-maxCode, Math.min(maxCode, code)) / scale;
 }
 /**
  * Rounds one coefficient to a format.
@@ -29,21 +29,22 @@ function fixedPoint(x, fracBits) {
  * IEEE 754-2019 binary32 for float32.
  */
 export function quantizeCoefficient(x, format) {
-  switch (format) {
-    case 'float32': {
-      const y = Math.fround(x);
-      // A coefficient just below 1 in magnitude can round to ±1 in single precision; keep |a| < 1.
-      if (Math.abs(y) >= 1 && Math.abs(x) < 1) return Math.sign(x) * (1 - 2 ** -24);
-      return y;
+    switch (format) {
+        case 'float32': {
+            const y = Math.fround(x);
+            // A coefficient just below 1 in magnitude can round to ±1 in single precision; keep |a| < 1.
+            if (Math.abs(y) >= 1 && Math.abs(x) < 1)
+                return Math.sign(x) * (1 - 2 ** -24);
+            return y;
+        }
+        case 'q15':
+            return fixedPoint(x, 15);
+        case 'q31':
+            return fixedPoint(x, 31);
+        default:
+            requireOneOf('format', format, COEFFICIENT_FORMATS);
+            return x;
     }
-    case 'q15':
-      return fixedPoint(x, 15);
-    case 'q31':
-      return fixedPoint(x, 31);
-    default:
-      requireOneOf('format', format, COEFFICIENT_FORMATS);
-      return x;
-  }
 }
 /**
  * A copy of a network document with every coefficient rounded to `format`, its `predicted` and
@@ -57,22 +58,22 @@ export function quantizeCoefficient(x, format) {
  * Vaidyanathan, Proc. IEEE 76(1), 1988 (all-pass sections keep unit gain under coefficient rounding).
  */
 export function quantizeNetwork(net, format) {
-  validateNetwork(net);
-  requireOneOf('format', format, COEFFICIENT_FORMATS);
-  const q = (x) => quantizeCoefficient(x, format);
-  const design = { ...net.design, coefficientFormat: format };
-  if (net.kind === 'fir') {
-    const taps = net.taps.map(q);
-    const body = { kind: 'fir', sampleRate: net.sampleRate, band: net.band, taps };
-    return { ...net, taps, predicted: predictFigures(body), cost: networkCost(body), design };
-  }
-  const qb = (b) => ({
-    delay: b.delay,
-    sections: b.sections.map((s) => ({ order: s.order, a: q(s.a) })),
-  });
-  const branches = { i: qb(net.branches.i), q: qb(net.branches.q) };
-  const body = { kind: 'allpass', sampleRate: net.sampleRate, band: net.band, branches };
-  return { ...net, branches, predicted: predictFigures(body), cost: networkCost(body), design };
+    validateNetwork(net);
+    requireOneOf('format', format, COEFFICIENT_FORMATS);
+    const q = (x) => quantizeCoefficient(x, format);
+    const design = { ...net.design, coefficientFormat: format };
+    if (net.kind === 'fir') {
+        const taps = net.taps.map(q);
+        const body = { kind: 'fir', sampleRate: net.sampleRate, band: net.band, taps };
+        return { ...net, taps, predicted: predictFigures(body), cost: networkCost(body), design };
+    }
+    const qb = (b) => ({
+        delay: b.delay,
+        sections: b.sections.map((s) => ({ order: s.order, a: q(s.a) })),
+    });
+    const branches = { i: qb(net.branches.i), q: qb(net.branches.q) };
+    const body = { kind: 'allpass', sampleRate: net.sampleRate, band: net.band, branches };
+    return { ...net, branches, predicted: predictFigures(body), cost: networkCost(body), design };
 }
 /**
  * Worst suppression over the band for each coefficient format, and the loss against the document's
@@ -83,12 +84,12 @@ export function quantizeNetwork(net, format) {
  * Reference: as {@link quantizeNetwork}.
  */
 export function quantizationReport(net) {
-  validateNetwork(net);
-  const ref = predictFigures(net).worstSuppressionDb;
-  const out = {};
-  for (const f of COEFFICIENT_FORMATS) {
-    const w = quantizeNetwork(net, f).predicted.worstSuppressionDb;
-    out[f] = { worstSuppressionDb: w, lossDb: ref - w };
-  }
-  return out;
+    validateNetwork(net);
+    const ref = predictFigures(net).worstSuppressionDb;
+    const out = {};
+    for (const f of COEFFICIENT_FORMATS) {
+        const w = quantizeNetwork(net, f).predicted.worstSuppressionDb;
+        out[f] = { worstSuppressionDb: w, lossDb: ref - w };
+    }
+    return out;
 }

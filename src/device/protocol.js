@@ -12,14 +12,16 @@ export const LINE_MAX = 96;
 export const DEVICE_LINE_MAX = 200;
 const TAG_RE = /^(?:0|[1-9]\d{0,4})$/;
 function splitWords(rest) {
-  const words = [];
-  const fields = {};
-  for (const w of rest) {
-    const eq = w.indexOf('=');
-    if (eq > 0) fields[w.slice(0, eq)] = w.slice(eq + 1);
-    else words.push(w);
-  }
-  return { words, fields };
+    const words = [];
+    const fields = {};
+    for (const w of rest) {
+        const eq = w.indexOf('=');
+        if (eq > 0)
+            fields[w.slice(0, eq)] = w.slice(eq + 1);
+        else
+            words.push(w);
+    }
+    return { words, fields };
 }
 /**
  * Classifies one line from a device (without its LF; a trailing CR is ignored). Anything that is
@@ -30,28 +32,34 @@ function splitWords(rest) {
  * Reference: docs/protocol.md, "Lines" (this project's own protocol).
  */
 export function parseDeviceLine(line) {
-  const text = line.endsWith('\r') ? line.slice(0, -1) : line;
-  if (text.length > DEVICE_LINE_MAX || /[^\x20-\x7e]/.test(text)) return { kind: 'garbage', line };
-  const parts = text.split(' ').filter((w) => w !== '');
-  const [head, kind, ...rest] = parts;
-  if (head === undefined || kind === undefined) return { kind: 'garbage', line };
-  if (head === '*') {
-    return { kind: 'notice', verb: kind, ...splitWords(rest) };
-  }
-  if (!TAG_RE.test(head)) return { kind: 'garbage', line };
-  const tag = Number(head);
-  if (tag > 65535) return { kind: 'garbage', line };
-  if (kind === 'ok') {
-    const [verb, ...more] = rest;
-    if (verb === undefined) return { kind: 'garbage', line };
-    return { kind: 'ok', tag, verb, ...splitWords(more) };
-  }
-  if (kind === 'err') {
-    const [code, ...more] = rest;
-    if (code === undefined || !/^[A-Z]+$/.test(code)) return { kind: 'garbage', line };
-    return { kind: 'error', tag, code, text: more.join(' ') };
-  }
-  return { kind: 'garbage', line };
+    const text = line.endsWith('\r') ? line.slice(0, -1) : line;
+    if (text.length > DEVICE_LINE_MAX || /[^\x20-\x7e]/.test(text))
+        return { kind: 'garbage', line };
+    const parts = text.split(' ').filter((w) => w !== '');
+    const [head, kind, ...rest] = parts;
+    if (head === undefined || kind === undefined)
+        return { kind: 'garbage', line };
+    if (head === '*') {
+        return { kind: 'notice', verb: kind, ...splitWords(rest) };
+    }
+    if (!TAG_RE.test(head))
+        return { kind: 'garbage', line };
+    const tag = Number(head);
+    if (tag > 65535)
+        return { kind: 'garbage', line };
+    if (kind === 'ok') {
+        const [verb, ...more] = rest;
+        if (verb === undefined)
+            return { kind: 'garbage', line };
+        return { kind: 'ok', tag, verb, ...splitWords(more) };
+    }
+    if (kind === 'err') {
+        const [code, ...more] = rest;
+        if (code === undefined || !/^[A-Z]+$/.test(code))
+            return { kind: 'garbage', line };
+        return { kind: 'error', tag, code, text: more.join(' ') };
+    }
+    return { kind: 'garbage', line };
 }
 /**
  * A number as the protocol writes it: plain decimal, no exponent, at most `digits` (≤ 9) places
@@ -62,25 +70,23 @@ export function parseDeviceLine(line) {
  * @throws {OrthotoneError} INVALID_ARGUMENT for a non-finite number.
  */
 export function formatNumber(x, digits = 9) {
-  if (!Number.isFinite(x)) {
-    throw new OrthotoneError('INVALID_ARGUMENT', `${x} cannot be sent to a device: use a finite number`, x);
-  }
-  let s = x.toFixed(Math.max(0, Math.min(9, digits)));
-  if (s.includes('.')) s = s.replace(/0+$/, '').replace(/\.$/, '');
-  if (s === '-0') s = '0';
-  return s;
+    if (!Number.isFinite(x)) {
+        throw new OrthotoneError('INVALID_ARGUMENT', `${x} cannot be sent to a device: use a finite number`, x);
+    }
+    let s = x.toFixed(Math.max(0, Math.min(9, digits)));
+    if (s.includes('.'))
+        s = s.replace(/0+$/, '').replace(/\.$/, '');
+    if (s === '-0')
+        s = '0';
+    return s;
 }
 const NUMBER_RE = /^[-+]?(\d+(\.\d*)?|\.\d+)$/;
 function fieldNumber(fields, key, what) {
-  const v = fields[key];
-  if (v === undefined || !NUMBER_RE.test(v)) {
-    throw new OrthotoneError(
-      'INVALID_DOCUMENT',
-      `the device's ${what} has ${v === undefined ? `no ${key}=` : `${key}=${v}, not a number`}: the firmware does not follow docs/protocol.md`,
-      v,
-    );
-  }
-  return Number(v);
+    const v = fields[key];
+    if (v === undefined || !NUMBER_RE.test(v)) {
+        throw new OrthotoneError('INVALID_DOCUMENT', `the device's ${what} has ${v === undefined ? `no ${key}=` : `${key}=${v}, not a number`}: the firmware does not follow docs/protocol.md`, v);
+    }
+    return Number(v);
 }
 const ARITHMETICS = ['q15', 'q31', 'float32'];
 /**
@@ -93,35 +99,27 @@ const ARITHMETICS = ['q15', 'q31', 'float32'];
  * Reference: docs/protocol.md, "The greeting".
  */
 export function parseGreeting(fields, expected = LINK_VERSION) {
-  const link = fieldNumber(fields, 'link', 'greeting');
-  if (link !== expected) {
-    throw new OrthotoneError(
-      'DEVICE_VERSION',
-      `the device speaks link protocol version ${link}, this orthotone speaks version ${expected}: update the firmware or orthotone so they match`,
-      link,
-    );
-  }
-  const arith = fields['arith'];
-  if (!ARITHMETICS.includes(arith)) {
-    throw new OrthotoneError(
-      'INVALID_DOCUMENT',
-      `the device's greeting has arith=${arith ?? '(none)'}: expected one of ${ARITHMETICS.join(', ')}`,
-      arith,
-    );
-  }
-  const n = (k) => fieldNumber(fields, k, 'greeting');
-  return {
-    link,
-    sampleRate: n('rate'),
-    arithmetic: arith,
-    resolution: { gainDb: n('gres'), phaseDeg: n('pres'), dc: n('dres') },
-    limits: { gainDb: n('gmax'), phaseDeg: n('pmax'), dc: n('dmax') },
-    rampMs: n('ramp'),
-    maxTaps: n('taps'),
-    maxSections: n('secs'),
-    name: fields['name'] ?? '',
-    fields: Object.freeze({ ...fields }),
-  };
+    const link = fieldNumber(fields, 'link', 'greeting');
+    if (link !== expected) {
+        throw new OrthotoneError('DEVICE_VERSION', `the device speaks link protocol version ${link}, this orthotone speaks version ${expected}: update the firmware or orthotone so they match`, link);
+    }
+    const arith = fields['arith'];
+    if (!ARITHMETICS.includes(arith)) {
+        throw new OrthotoneError('INVALID_DOCUMENT', `the device's greeting has arith=${arith ?? '(none)'}: expected one of ${ARITHMETICS.join(', ')}`, arith);
+    }
+    const n = (k) => fieldNumber(fields, k, 'greeting');
+    return {
+        link,
+        sampleRate: n('rate'),
+        arithmetic: arith,
+        resolution: { gainDb: n('gres'), phaseDeg: n('pres'), dc: n('dres') },
+        limits: { gainDb: n('gmax'), phaseDeg: n('pmax'), dc: n('dmax') },
+        rampMs: n('ramp'),
+        maxTaps: n('taps'),
+        maxSections: n('secs'),
+        name: fields['name'] ?? '',
+        fields: Object.freeze({ ...fields }),
+    };
 }
 /**
  * Reads the trims of an `ok trims …` answer.
@@ -131,12 +129,12 @@ export function parseGreeting(fields, expected = LINK_VERSION) {
  * Reference: docs/protocol.md, command `trims`.
  */
 export function parseTrimsFields(fields) {
-  return {
-    gainDb: fieldNumber(fields, 'gain', 'trims answer'),
-    phaseDeg: fieldNumber(fields, 'phase', 'trims answer'),
-    dcI: fieldNumber(fields, 'dci', 'trims answer'),
-    dcQ: fieldNumber(fields, 'dcq', 'trims answer'),
-  };
+    return {
+        gainDb: fieldNumber(fields, 'gain', 'trims answer'),
+        phaseDeg: fieldNumber(fields, 'phase', 'trims answer'),
+        dcI: fieldNumber(fields, 'dci', 'trims answer'),
+        dcQ: fieldNumber(fields, 'dcq', 'trims answer'),
+    };
 }
 /**
  * Checks a partial trim set against a device's limits.
@@ -146,25 +144,22 @@ export function parseTrimsFields(fields) {
  * @throws {OrthotoneError} INVALID_ARGUMENT naming the trim, its value and the device's range.
  */
 export function checkDeviceTrims(t, info) {
-  const lim = {
-    gainDb: [info.limits.gainDb, 'dB'],
-    phaseDeg: [info.limits.phaseDeg, 'degrees'],
-    dcI: [info.limits.dc, 'full scale'],
-    dcQ: [info.limits.dc, 'full scale'],
-  };
-  for (const k of Object.keys(lim)) {
-    const v = t[k];
-    if (v === undefined) continue;
-    const [m, unit] = lim[k];
-    if (typeof v !== 'number' || !Number.isFinite(v) || Math.abs(v) > m) {
-      throw new OrthotoneError(
-        'INVALID_ARGUMENT',
-        `${k} ${v} ${unit} is outside the device's range: use a value from ${-m} to ${m} ${unit}`,
-        v,
-      );
+    const lim = {
+        gainDb: [info.limits.gainDb, 'dB'],
+        phaseDeg: [info.limits.phaseDeg, 'degrees'],
+        dcI: [info.limits.dc, 'full scale'],
+        dcQ: [info.limits.dc, 'full scale'],
+    };
+    for (const k of Object.keys(lim)) {
+        const v = t[k];
+        if (v === undefined)
+            continue;
+        const [m, unit] = lim[k];
+        if (typeof v !== 'number' || !Number.isFinite(v) || Math.abs(v) > m) {
+            throw new OrthotoneError('INVALID_ARGUMENT', `${k} ${v} ${unit} is outside the device's range: use a value from ${-m} to ${m} ${unit}`, v);
+        }
     }
-  }
-  return t;
+    return t;
 }
 /**
  * The `set …` command body for a partial trim set (keys in a fixed order; absent trims omitted).
@@ -174,15 +169,19 @@ export function checkDeviceTrims(t, info) {
  * Reference: docs/protocol.md, command `set`.
  */
 export function encodeSet(t) {
-  const parts = [];
-  if (t.gainDb !== undefined) parts.push(`gain=${formatNumber(t.gainDb)}`);
-  if (t.phaseDeg !== undefined) parts.push(`phase=${formatNumber(t.phaseDeg)}`);
-  if (t.dcI !== undefined) parts.push(`dci=${formatNumber(t.dcI)}`);
-  if (t.dcQ !== undefined) parts.push(`dcq=${formatNumber(t.dcQ)}`);
-  if (parts.length === 0) {
-    throw new OrthotoneError('INVALID_ARGUMENT', 'no trim to set: give gainDb, phaseDeg, dcI or dcQ', t);
-  }
-  return `set ${parts.join(' ')}`;
+    const parts = [];
+    if (t.gainDb !== undefined)
+        parts.push(`gain=${formatNumber(t.gainDb)}`);
+    if (t.phaseDeg !== undefined)
+        parts.push(`phase=${formatNumber(t.phaseDeg)}`);
+    if (t.dcI !== undefined)
+        parts.push(`dci=${formatNumber(t.dcI)}`);
+    if (t.dcQ !== undefined)
+        parts.push(`dcq=${formatNumber(t.dcQ)}`);
+    if (parts.length === 0) {
+        throw new OrthotoneError('INVALID_ARGUMENT', 'no trim to set: give gainDb, phaseDeg, dcI or dcQ', t);
+    }
+    return `set ${parts.join(' ')}`;
 }
 /**
  * CRC-16/CCITT-FALSE (poly 0x1021, init 0xFFFF, no reflection, no final XOR) over 32-bit
@@ -194,19 +193,20 @@ export function encodeSet(t) {
  * ASCII "123456789" (Greg Cook, "Catalogue of parametrised CRC algorithms").
  */
 export function crc16Codes(codes) {
-  let crc = 0xffff;
-  const byte = (b) => {
-    crc ^= (b & 0xff) << 8;
-    for (let k = 0; k < 8; k++) crc = crc & 0x8000 ? ((crc << 1) ^ 0x1021) & 0xffff : (crc << 1) & 0xffff;
-  };
-  for (let i = 0; i < codes.length; i++) {
-    const c = codes[i] | 0;
-    byte(c);
-    byte(c >>> 8);
-    byte(c >>> 16);
-    byte(c >>> 24);
-  }
-  return crc;
+    let crc = 0xffff;
+    const byte = (b) => {
+        crc ^= (b & 0xff) << 8;
+        for (let k = 0; k < 8; k++)
+            crc = crc & 0x8000 ? ((crc << 1) ^ 0x1021) & 0xffff : (crc << 1) & 0xffff;
+    };
+    for (let i = 0; i < codes.length; i++) {
+        const c = codes[i] | 0;
+        byte(c);
+        byte(c >>> 8);
+        byte(c >>> 16);
+        byte(c >>> 24);
+    }
+    return crc;
 }
 /**
  * CRC-16/CCITT-FALSE over bytes (the same register as {@link crc16Codes}).
@@ -216,12 +216,13 @@ export function crc16Codes(codes) {
  * Reference: CRC-16/IBM-3740 in Greg Cook's "Catalogue of parametrised CRC algorithms".
  */
 export function crc16Bytes(bytes) {
-  let crc = 0xffff;
-  for (let i = 0; i < bytes.length; i++) {
-    crc ^= (bytes[i] & 0xff) << 8;
-    for (let k = 0; k < 8; k++) crc = crc & 0x8000 ? ((crc << 1) ^ 0x1021) & 0xffff : (crc << 1) & 0xffff;
-  }
-  return crc;
+    let crc = 0xffff;
+    for (let i = 0; i < bytes.length; i++) {
+        crc ^= (bytes[i] & 0xff) << 8;
+        for (let k = 0; k < 8; k++)
+            crc = crc & 0x8000 ? ((crc << 1) ^ 0x1021) & 0xffff : (crc << 1) & 0xffff;
+    }
+    return crc;
 }
 const F32 = new Float32Array(1);
 const U32 = new Uint32Array(F32.buffer);
@@ -236,19 +237,20 @@ const I32 = new Int32Array(F32.buffer);
  * Reference: Q-format fixed point (common practice, no source); IEEE 754-2019 binary32.
  */
 export function coefficientCode(x, arith) {
-  if (arith === 'float32') {
-    F32[0] = x;
-    return I32[0];
-  }
-  const bits = arith === 'q15' ? 15 : 31;
-  const max = 2 ** bits - 1;
-  const code = Math.sign(x) * Math.floor(Math.abs(x) * 2 ** bits + 0.5);
-  return Math.max(-max, Math.min(max, code));
+    if (arith === 'float32') {
+        F32[0] = x;
+        return I32[0];
+    }
+    const bits = arith === 'q15' ? 15 : 31;
+    const max = 2 ** bits - 1;
+    const code = Math.sign(x) * Math.floor(Math.abs(x) * 2 ** bits + 0.5);
+    return Math.max(-max, Math.min(max, code));
 }
 function codeText(code, arith) {
-  if (arith !== 'float32') return String(code);
-  I32[0] = code;
-  return `x${U32[0].toString(16).toUpperCase().padStart(8, '0')}`;
+    if (arith !== 'float32')
+        return String(code);
+    I32[0] = code;
+    return `x${U32[0].toString(16).toUpperCase().padStart(8, '0')}`;
 }
 /**
  * The command bodies that load `net` into a device (`net begin`, `net put`, `net ord`, `net end`),
@@ -262,76 +264,60 @@ function codeText(code, arith) {
  * Reference: docs/protocol.md, commands `net …`.
  */
 export function encodeNetwork(net, info) {
-  if (net.sampleRate !== info.sampleRate) {
-    throw new OrthotoneError(
-      'INVALID_ARGUMENT',
-      `the network is designed for ${net.sampleRate} Hz but the device runs at ${info.sampleRate} Hz: design it for ${info.sampleRate} Hz`,
-      net.sampleRate,
-    );
-  }
-  const lines = [];
-  let values;
-  let orders;
-  if (net.kind === 'fir') {
-    if (!net.taps) throw new OrthotoneError('INVALID_DOCUMENT', 'the FIR network has no taps', net);
-    if (net.taps.length > info.maxTaps) {
-      throw new OrthotoneError(
-        'INVALID_ARGUMENT',
-        `the network has ${net.taps.length} taps but the device holds at most ${info.maxTaps}: design a shorter one`,
-        net.taps.length,
-      );
+    if (net.sampleRate !== info.sampleRate) {
+        throw new OrthotoneError('INVALID_ARGUMENT', `the network is designed for ${net.sampleRate} Hz but the device runs at ${info.sampleRate} Hz: design it for ${info.sampleRate} Hz`, net.sampleRate);
     }
-    values = [...net.taps];
-    lines.push(`net begin fir n=${values.length}`);
-  } else {
-    const b = net.branches;
-    if (!b) throw new OrthotoneError('INVALID_DOCUMENT', 'the all-pass network has no branches', net);
-    const most = Math.max(b.i.sections.length, b.q.sections.length);
-    if (most > info.maxSections) {
-      throw new OrthotoneError(
-        'INVALID_ARGUMENT',
-        `a branch of the network has ${most} sections but the device holds at most ${info.maxSections}: design one with fewer sections`,
-        most,
-      );
+    const lines = [];
+    let values;
+    let orders;
+    if (net.kind === 'fir') {
+        if (!net.taps)
+            throw new OrthotoneError('INVALID_DOCUMENT', 'the FIR network has no taps', net);
+        if (net.taps.length > info.maxTaps) {
+            throw new OrthotoneError('INVALID_ARGUMENT', `the network has ${net.taps.length} taps but the device holds at most ${info.maxTaps}: design a shorter one`, net.taps.length);
+        }
+        values = [...net.taps];
+        lines.push(`net begin fir n=${values.length}`);
     }
-    const all = [...b.i.sections, ...b.q.sections];
-    values = all.map((s) => s.a);
-    orders = all.map((s) => s.order);
-    lines.push(
-      `net begin allpass i=${b.i.sections.length} q=${b.q.sections.length} di=${b.i.delay} dq=${b.q.delay}`,
-    );
-  }
-  const codes = values.map((x) => coefficientCode(x, info.arithmetic));
-  const room = LINE_MAX - 6; // a tag of up to 5 digits and its space
-  const chunk = (prefix, items) => {
-    let at = 0;
-    while (at < items.length) {
-      const head = prefix(at);
-      let body = '';
-      let n = 0;
-      while (at + n < items.length) {
-        const next = (n === 0 ? '' : ',') + items[at + n];
-        if (head.length + body.length + next.length > room) break;
-        body += next;
-        n++;
-      }
-      lines.push(head + body);
-      at += n;
+    else {
+        const b = net.branches;
+        if (!b)
+            throw new OrthotoneError('INVALID_DOCUMENT', 'the all-pass network has no branches', net);
+        const most = Math.max(b.i.sections.length, b.q.sections.length);
+        if (most > info.maxSections) {
+            throw new OrthotoneError('INVALID_ARGUMENT', `a branch of the network has ${most} sections but the device holds at most ${info.maxSections}: design one with fewer sections`, most);
+        }
+        const all = [...b.i.sections, ...b.q.sections];
+        values = all.map((s) => s.a);
+        orders = all.map((s) => s.order);
+        lines.push(`net begin allpass i=${b.i.sections.length} q=${b.q.sections.length} di=${b.i.delay} dq=${b.q.delay}`);
     }
-  };
-  chunk(
-    (at) => `net put at=${at} v=`,
-    codes.map((c) => codeText(c, info.arithmetic)),
-  );
-  if (orders?.some((o) => o !== 1)) {
-    chunk(
-      (at) => `net ord at=${at} o=`,
-      orders.map((o) => String(o)),
-    );
-  }
-  const crc = crc16Codes(codes);
-  lines.push(`net end crc=${crc.toString(16).toUpperCase().padStart(4, '0')}`);
-  return { lines, crc };
+    const codes = values.map((x) => coefficientCode(x, info.arithmetic));
+    const room = LINE_MAX - 6; // a tag of up to 5 digits and its space
+    const chunk = (prefix, items) => {
+        let at = 0;
+        while (at < items.length) {
+            const head = prefix(at);
+            let body = '';
+            let n = 0;
+            while (at + n < items.length) {
+                const next = (n === 0 ? '' : ',') + items[at + n];
+                if (head.length + body.length + next.length > room)
+                    break;
+                body += next;
+                n++;
+            }
+            lines.push(head + body);
+            at += n;
+        }
+    };
+    chunk((at) => `net put at=${at} v=`, codes.map((c) => codeText(c, info.arithmetic)));
+    if (orders?.some((o) => o !== 1)) {
+        chunk((at) => `net ord at=${at} o=`, orders.map((o) => String(o)));
+    }
+    const crc = crc16Codes(codes);
+    lines.push(`net end crc=${crc.toString(16).toUpperCase().padStart(4, '0')}`);
+    return { lines, crc };
 }
 /**
  * The `source …` command body.
@@ -342,19 +328,21 @@ export function encodeNetwork(net, info) {
  * Reference: docs/protocol.md, command `source`.
  */
 export function encodeSource(s) {
-  const hz = (name, v) => {
-    if (!(Number.isFinite(v) && v > 0)) {
-      throw new OrthotoneError('INVALID_ARGUMENT', `${name} ${v} Hz must be a positive frequency`, v);
-    }
-    return formatNumber(v, 3);
-  };
-  const amp = (v) => {
-    if (!(Number.isFinite(v) && v >= 0 && v <= 1)) {
-      throw new OrthotoneError('INVALID_ARGUMENT', `amplitude ${v} must be from 0 to 1 (full scale)`, v);
-    }
-    return formatNumber(v, 6);
-  };
-  if (s.kind === 'input') return 'source input';
-  if (s.kind === 'tone') return `source tone f=${hz('toneHz', s.toneHz)} a=${amp(s.amplitude)}`;
-  return `source two f=${hz('toneHz', s.toneHz)} g=${hz('secondHz', s.secondHz)} a=${amp(s.amplitude)}`;
+    const hz = (name, v) => {
+        if (!(Number.isFinite(v) && v > 0)) {
+            throw new OrthotoneError('INVALID_ARGUMENT', `${name} ${v} Hz must be a positive frequency`, v);
+        }
+        return formatNumber(v, 3);
+    };
+    const amp = (v) => {
+        if (!(Number.isFinite(v) && v >= 0 && v <= 1)) {
+            throw new OrthotoneError('INVALID_ARGUMENT', `amplitude ${v} must be from 0 to 1 (full scale)`, v);
+        }
+        return formatNumber(v, 6);
+    };
+    if (s.kind === 'input')
+        return 'source input';
+    if (s.kind === 'tone')
+        return `source tone f=${hz('toneHz', s.toneHz)} a=${amp(s.amplitude)}`;
+    return `source two f=${hz('toneHz', s.toneHz)} g=${hz('secondHz', s.secondHz)} a=${amp(s.amplitude)}`;
 }

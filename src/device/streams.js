@@ -16,55 +16,63 @@ import { OrthotoneError } from '../core/errors.js';
  * Reference: WHATWG Streams Standard (readers and writers).
  */
 export function streamChannel(streams, label, onClose) {
-  const reader = streams.readable.getReader();
-  const writer = streams.writable.getWriter();
-  let closed = false;
-  let sinkRef;
-  const finish = async (err) => {
-    if (closed) return;
-    closed = true;
-    try {
-      await reader.cancel();
-    } catch {
-      // already errored
-    }
-    try {
-      reader.releaseLock();
-      writer.releaseLock();
-    } catch {
-      // a pending read may hold the lock; the stream is finished anyway
-    }
-    if (onClose) await onClose().catch(() => undefined);
-    sinkRef?.closed(err);
-  };
-  return {
-    label,
-    start(sink) {
-      sinkRef = sink;
-      (async () => {
-        for (;;) {
-          let r;
-          try {
-            r = await reader.read();
-          } catch (e) {
-            return finish(e instanceof Error ? e : new Error(String(e)));
-          }
-          if (r.done) return finish();
-          if (r.value && r.value.length > 0 && !closed) sink.data(r.value);
+    const reader = streams.readable.getReader();
+    const writer = streams.writable.getWriter();
+    let closed = false;
+    let sinkRef;
+    const finish = async (err) => {
+        if (closed)
+            return;
+        closed = true;
+        try {
+            await reader.cancel();
         }
-      })();
-    },
-    async write(bytes) {
-      if (closed) throw new Error(`${label} is closed`);
-      await writer.write(bytes);
-    },
-    async close() {
-      const s = sinkRef;
-      sinkRef = undefined; // a requested close is not a fault
-      await finish();
-      sinkRef = s;
-    },
-  };
+        catch {
+            // already errored
+        }
+        try {
+            reader.releaseLock();
+            writer.releaseLock();
+        }
+        catch {
+            // a pending read may hold the lock; the stream is finished anyway
+        }
+        if (onClose)
+            await onClose().catch(() => undefined);
+        sinkRef?.closed(err);
+    };
+    return {
+        label,
+        start(sink) {
+            sinkRef = sink;
+            (async () => {
+                for (;;) {
+                    let r;
+                    try {
+                        r = await reader.read();
+                    }
+                    catch (e) {
+                        return finish(e instanceof Error ? e : new Error(String(e)));
+                    }
+                    if (r.done)
+                        return finish();
+                    if (r.value && r.value.length > 0 && !closed)
+                        sink.data(r.value);
+                }
+            })();
+        },
+        async write(bytes) {
+            if (closed)
+                throw new Error(`${label} is closed`);
+            await writer.write(bytes);
+        },
+        async close() {
+            const s = sinkRef;
+            sinkRef = undefined; // a requested close is not a fault
+            await finish();
+            sinkRef = s;
+        },
+    };
 }
 /**
  * A connector for a Web Serial port (the page asks the user for it with
@@ -76,37 +84,38 @@ export function streamChannel(streams, label, onClose) {
  * Reference: W3C Web Serial API draft, `SerialPort.open()`.
  */
 export function webSerialConnector(port, baudRate = 115200) {
-  return async () => {
-    await port.open({ baudRate });
-    if (!port.readable || !port.writable) {
-      await port.close().catch(() => undefined);
-      throw new OrthotoneError('DEVICE_LOST', 'the serial port opened without streams (was it unplugged?)');
-    }
-    return streamChannel({ readable: port.readable, writable: port.writable }, 'Web Serial port', () =>
-      port.close(),
-    );
-  };
+    return async () => {
+        await port.open({ baudRate });
+        if (!port.readable || !port.writable) {
+            await port.close().catch(() => undefined);
+            throw new OrthotoneError('DEVICE_LOST', 'the serial port opened without streams (was it unplugged?)');
+        }
+        return streamChannel({ readable: port.readable, writable: port.writable }, 'Web Serial port', () => port.close());
+    };
 }
 function toBytes(data) {
-  if (data instanceof Uint8Array) return data;
-  if (data instanceof ArrayBuffer) return new Uint8Array(data);
-  if (Array.isArray(data)) {
-    // ws delivers fragmented messages as an array of chunks
-    const parts = data.map(toBytes).filter((x) => x !== undefined);
-    const out = new Uint8Array(parts.reduce((n, p) => n + p.length, 0));
-    let at = 0;
-    for (const p of parts) {
-      out.set(p, at);
-      at += p.length;
+    if (data instanceof Uint8Array)
+        return data;
+    if (data instanceof ArrayBuffer)
+        return new Uint8Array(data);
+    if (Array.isArray(data)) {
+        // ws delivers fragmented messages as an array of chunks
+        const parts = data.map(toBytes).filter((x) => x !== undefined);
+        const out = new Uint8Array(parts.reduce((n, p) => n + p.length, 0));
+        let at = 0;
+        for (const p of parts) {
+            out.set(p, at);
+            at += p.length;
+        }
+        return out;
     }
-    return out;
-  }
-  if (typeof data === 'string') {
-    const b = new Uint8Array(data.length);
-    for (let i = 0; i < data.length; i++) b[i] = data.charCodeAt(i) & 0x7f;
-    return b;
-  }
-  return undefined;
+    if (typeof data === 'string') {
+        const b = new Uint8Array(data.length);
+        for (let i = 0; i < data.length; i++)
+            b[i] = data.charCodeAt(i) & 0x7f;
+        return b;
+    }
+    return undefined;
 }
 /**
  * A connector to the WebSocket bridge (`orthotone bridge`): binary messages carry the serial
@@ -120,66 +129,65 @@ function toBytes(data) {
  * Reference: RFC 6455 (WebSocket), binary frames.
  */
 export function webSocketConnector(url, create, openTimeoutMs = 3000) {
-  return () =>
-    new Promise((resolve, reject) => {
-      const ws = create(url);
-      ws.binaryType = 'arraybuffer';
-      let sink;
-      let opened = false;
-      let done = false;
-      const early = [];
-      const timer = setTimeout(() => {
-        if (opened) return;
-        done = true;
-        ws.close();
-        reject(
-          new OrthotoneError('DEVICE_LOST', `the bridge at ${url} did not accept within ${openTimeoutMs} ms`),
-        );
-      }, openTimeoutMs);
-      ws.onmessage = (ev) => {
-        const b = toBytes(ev.data);
-        if (!b) return;
-        if (sink) sink.data(b);
-        else early.push(b);
-      };
-      ws.onerror = () => undefined; // onclose follows and carries the reason
-      ws.onclose = (ev) => {
-        clearTimeout(timer);
-        if (!opened) {
-          if (!done) {
+    return () => new Promise((resolve, reject) => {
+        const ws = create(url);
+        ws.binaryType = 'arraybuffer';
+        let sink;
+        let opened = false;
+        let done = false;
+        const early = [];
+        const timer = setTimeout(() => {
+            if (opened)
+                return;
             done = true;
-            reject(
-              new OrthotoneError(
-                'DEVICE_LOST',
-                `cannot reach the bridge at ${url}${ev.reason ? `: ${ev.reason}` : ''}: is 'orthotone bridge' running?`,
-              ),
-            );
-          }
-          return;
-        }
-        const s = sink;
-        sink = undefined;
-        s?.closed(ev.code === 1000 ? undefined : new Error(ev.reason || `bridge closed (code ${ev.code})`));
-      };
-      ws.onopen = () => {
-        if (done) return;
-        opened = true;
-        clearTimeout(timer);
-        resolve({
-          label: url,
-          start(s) {
-            sink = s;
-            for (const b of early.splice(0)) s.data(b);
-          },
-          async write(bytes) {
-            if (ws.readyState !== 1) throw new Error(`the bridge at ${url} is closed`);
-            ws.send(bytes);
-          },
-          async close() {
+            ws.close();
+            reject(new OrthotoneError('DEVICE_LOST', `the bridge at ${url} did not accept within ${openTimeoutMs} ms`));
+        }, openTimeoutMs);
+        ws.onmessage = (ev) => {
+            const b = toBytes(ev.data);
+            if (!b)
+                return;
+            if (sink)
+                sink.data(b);
+            else
+                early.push(b);
+        };
+        ws.onerror = () => undefined; // onclose follows and carries the reason
+        ws.onclose = (ev) => {
+            clearTimeout(timer);
+            if (!opened) {
+                if (!done) {
+                    done = true;
+                    reject(new OrthotoneError('DEVICE_LOST', `cannot reach the bridge at ${url}${ev.reason ? `: ${ev.reason}` : ''}: is 'orthotone bridge' running?`));
+                }
+                return;
+            }
+            const s = sink;
             sink = undefined;
-            ws.close(1000, 'done');
-          },
-        });
-      };
+            s?.closed(ev.code === 1000 ? undefined : new Error(ev.reason || `bridge closed (code ${ev.code})`));
+        };
+        ws.onopen = () => {
+            if (done)
+                return;
+            opened = true;
+            clearTimeout(timer);
+            resolve({
+                label: url,
+                start(s) {
+                    sink = s;
+                    for (const b of early.splice(0))
+                        s.data(b);
+                },
+                async write(bytes) {
+                    if (ws.readyState !== 1)
+                        throw new Error(`the bridge at ${url} is closed`);
+                    ws.send(bytes);
+                },
+                async close() {
+                    sink = undefined;
+                    ws.close(1000, 'done');
+                },
+            });
+        };
     });
 }

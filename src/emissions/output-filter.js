@@ -22,11 +22,10 @@
  */
 import { OrthotoneError } from '../core/errors.js';
 import { requireInteger, requireOneOf, requirePositive, requireRange } from '../core/validate.js';
-
 const E12 = [1.0, 1.2, 1.5, 1.8, 2.2, 2.7, 3.3, 3.9, 4.7, 5.6, 6.8, 8.2];
 const E24 = [
-  1.0, 1.1, 1.2, 1.3, 1.5, 1.6, 1.8, 2.0, 2.2, 2.4, 2.7, 3.0, 3.3, 3.6, 3.9, 4.3, 4.7, 5.1, 5.6, 6.2, 6.8,
-  7.5, 8.2, 9.1,
+    1.0, 1.1, 1.2, 1.3, 1.5, 1.6, 1.8, 2.0, 2.2, 2.4, 2.7, 3.0, 3.3, 3.6, 3.9, 4.3, 4.7, 5.1, 5.6, 6.2, 6.8,
+    7.5, 8.2, 9.1,
 ];
 /**
  * Nearest value of an IEC 60063 series (E12 or E24), nearest on a logarithmic scale.
@@ -37,22 +36,22 @@ const E24 = [
  * well-known two-significant-digit series).
  */
 export function nearestSeriesValue(value, series) {
-  requirePositive('value', value);
-  const table = series === 'E12' ? E12 : E24;
-  const decade = 10 ** Math.floor(Math.log10(value));
-  let best = value;
-  let bestErr = Number.POSITIVE_INFINITY;
-  for (const scale of [decade / 10, decade, decade * 10]) {
-    for (const m of table) {
-      const v = Number((m * scale).toPrecision(3));
-      const err = Math.abs(Math.log(v / value));
-      if (err < bestErr) {
-        bestErr = err;
-        best = v;
-      }
+    requirePositive('value', value);
+    const table = series === 'E12' ? E12 : E24;
+    const decade = 10 ** Math.floor(Math.log10(value));
+    let best = value;
+    let bestErr = Number.POSITIVE_INFINITY;
+    for (const scale of [decade / 10, decade, decade * 10]) {
+        for (const m of table) {
+            const v = Number((m * scale).toPrecision(3));
+            const err = Math.abs(Math.log(v / value));
+            if (err < bestErr) {
+                bestErr = err;
+                best = v;
+            }
+        }
     }
-  }
-  return best;
+    return best;
 }
 /**
  * Normalised low-pass prototype values g_1…g_n for equal terminations (g_0 = g_{n+1} = 1).
@@ -65,25 +64,23 @@ export function nearestSeriesValue(value, series) {
  * Reference: Matthaei, Young & Jones (1964) §4.05, eqs. for Tables 4.05-1 and 4.05-2 (file header).
  */
 export function prototypeValues(response, order, rippleDb = 0.1) {
-  requireOneOf('response', response, ['butterworth', 'chebyshev']);
-  const n = requireInteger('order', order, 1, 15);
-  const a = (k) => Math.sin(((2 * k - 1) * Math.PI) / (2 * n));
-  if (response === 'butterworth') return Array.from({ length: n }, (_, i) => 2 * a(i + 1));
-  requireRange('rippleDb', rippleDb, 0.001, 3, 'dB');
-  if (n % 2 === 0) {
-    throw new OrthotoneError(
-      'INVALID_ARGUMENT',
-      `Chebyshev order ${n} is even: an even-order Chebyshev ladder needs a load different from its source; use an odd order (${n - 1} or ${n + 1})`,
-      n,
-    );
-  }
-  // MYJ write 17.37 for 40/ln 10 = 17.3718 (dB to nepers, twice); the exact constant is used here.
-  const beta = Math.log(1 / Math.tanh(rippleDb / (40 / Math.LN10)));
-  const gamma = Math.sinh(beta / (2 * n));
-  const b = (k) => gamma ** 2 + Math.sin((k * Math.PI) / n) ** 2;
-  const g = [(2 * a(1)) / gamma];
-  for (let k = 2; k <= n; k++) g.push((4 * a(k - 1) * a(k)) / (b(k - 1) * g[k - 2]));
-  return g;
+    requireOneOf('response', response, ['butterworth', 'chebyshev']);
+    const n = requireInteger('order', order, 1, 15);
+    const a = (k) => Math.sin(((2 * k - 1) * Math.PI) / (2 * n));
+    if (response === 'butterworth')
+        return Array.from({ length: n }, (_, i) => 2 * a(i + 1));
+    requireRange('rippleDb', rippleDb, 0.001, 3, 'dB');
+    if (n % 2 === 0) {
+        throw new OrthotoneError('INVALID_ARGUMENT', `Chebyshev order ${n} is even: an even-order Chebyshev ladder needs a load different from its source; use an odd order (${n - 1} or ${n + 1})`, n);
+    }
+    // MYJ write 17.37 for 40/ln 10 = 17.3718 (dB to nepers, twice); the exact constant is used here.
+    const beta = Math.log(1 / Math.tanh(rippleDb / (40 / Math.LN10)));
+    const gamma = Math.sinh(beta / (2 * n));
+    const b = (k) => gamma ** 2 + Math.sin((k * Math.PI) / n) ** 2;
+    const g = [(2 * a(1)) / gamma];
+    for (let k = 2; k <= n; k++)
+        g.push((4 * a(k - 1) * a(k)) / (b(k - 1) * g[k - 2]));
+    return g;
 }
 /**
  * Insertion loss of a doubly terminated ladder (shunt C first) at one frequency, dB: the power
@@ -98,29 +95,30 @@ export function prototypeValues(response, order, rippleDb = 0.1) {
  * @throws never (non-finite input gives NaN).
  */
 export function ladderAttenuationDb(elements, frequencyHz, impedanceOhms) {
-  const w = 2 * Math.PI * frequencyHz;
-  const r = impedanceOhms;
-  let vr = 1;
-  let vi = 0;
-  let ir = 1 / r;
-  let ii = 0;
-  for (let k = elements.length - 1; k >= 0; k--) {
-    const e = elements[k];
-    if (e.kind === 'C') {
-      // I += jωC·V
-      const b = w * e.value;
-      ir -= b * vi;
-      ii += b * vr;
-    } else {
-      // V += jωL·I
-      const x = w * e.value;
-      vr -= x * ii;
-      vi += x * ir;
+    const w = 2 * Math.PI * frequencyHz;
+    const r = impedanceOhms;
+    let vr = 1;
+    let vi = 0;
+    let ir = 1 / r;
+    let ii = 0;
+    for (let k = elements.length - 1; k >= 0; k--) {
+        const e = elements[k];
+        if (e.kind === 'C') {
+            // I += jωC·V
+            const b = w * e.value;
+            ir -= b * vi;
+            ii += b * vr;
+        }
+        else {
+            // V += jωL·I
+            const x = w * e.value;
+            vr -= x * ii;
+            vi += x * ir;
+        }
     }
-  }
-  const sr = vr + ir * r;
-  const si = vi + ii * r;
-  return -10 * Math.log10(4 / (sr * sr + si * si));
+    const sr = vr + ir * r;
+    const si = vi + ii * r;
+    return -10 * Math.log10(4 / (sr * sr + si * si));
 }
 /**
  * Order needed for `attenuationDb` at `frequencyHz` (above the cutoff): Butterworth
@@ -133,33 +131,27 @@ export function ladderAttenuationDb(elements, frequencyHz, impedanceOhms) {
  * prototypes).
  */
 export function orderFor(response, cutoffHz, frequencyHz, attenuationDb, rippleDb = 0.1) {
-  requirePositive('cutoffHz', cutoffHz, 'Hz');
-  requireRange('attenuationDb', attenuationDb, 0.1, 200, 'dB');
-  if (!(frequencyHz > cutoffHz)) {
-    throw new OrthotoneError(
-      'INVALID_ARGUMENT',
-      `the frequency to attenuate, ${frequencyHz} Hz, must lie above the cutoff ${cutoffHz} Hz: lower --cutoff`,
-      frequencyHz,
-    );
-  }
-  const om = frequencyHz / cutoffHz;
-  const need = 10 ** (attenuationDb / 10) - 1;
-  let n;
-  if (response === 'butterworth') n = Math.ceil(Math.log(need) / (2 * Math.log(om)) - 1e-9);
-  else {
-    const e2 = 10 ** (rippleDb / 10) - 1;
-    n = Math.ceil(Math.acosh(Math.sqrt(Math.max(1, need / e2))) / Math.acosh(om) - 1e-9);
-    if (n % 2 === 0) n += 1;
-  }
-  n = Math.max(1, n);
-  if (n > 15) {
-    throw new OrthotoneError(
-      'UNREACHABLE_TARGET',
-      `${attenuationDb} dB at ${frequencyHz} Hz needs order ${n} with a ${cutoffHz} Hz cutoff (at most 15): lower the cutoff or the attenuation`,
-      n,
-    );
-  }
-  return n;
+    requirePositive('cutoffHz', cutoffHz, 'Hz');
+    requireRange('attenuationDb', attenuationDb, 0.1, 200, 'dB');
+    if (!(frequencyHz > cutoffHz)) {
+        throw new OrthotoneError('INVALID_ARGUMENT', `the frequency to attenuate, ${frequencyHz} Hz, must lie above the cutoff ${cutoffHz} Hz: lower --cutoff`, frequencyHz);
+    }
+    const om = frequencyHz / cutoffHz;
+    const need = 10 ** (attenuationDb / 10) - 1;
+    let n;
+    if (response === 'butterworth')
+        n = Math.ceil(Math.log(need) / (2 * Math.log(om)) - 1e-9);
+    else {
+        const e2 = 10 ** (rippleDb / 10) - 1;
+        n = Math.ceil(Math.acosh(Math.sqrt(Math.max(1, need / e2))) / Math.acosh(om) - 1e-9);
+        if (n % 2 === 0)
+            n += 1;
+    }
+    n = Math.max(1, n);
+    if (n > 15) {
+        throw new OrthotoneError('UNREACHABLE_TARGET', `${attenuationDb} dB at ${frequencyHz} Hz needs order ${n} with a ${cutoffHz} Hz cutoff (at most 15): lower the cutoff or the attenuation`, n);
+    }
+    return n;
 }
 /**
  * Designs the output low-pass filter: prototype, scaling to cutoff and impedance, optional rounding
@@ -173,65 +165,62 @@ export function orderFor(response, cutoffHz, frequencyHz, attenuationDb, rippleD
  * Reference: Matthaei, Young & Jones (1964) §4.05 and §4.04 (scaling); IEC 60063 series.
  */
 export function designOutputFilter(spec) {
-  if (spec === null || typeof spec !== 'object') {
-    throw new OrthotoneError('INVALID_ARGUMENT', 'output filter spec must be an object', spec);
-  }
-  const response = requireOneOf('response', spec.response, ['butterworth', 'chebyshev']);
-  const fc = requireRange('cutoffHz', spec.cutoffHz, 1, 1e11, 'Hz');
-  const r = requireRange('impedanceOhms', spec.impedanceOhms ?? 50, 0.1, 1e6, 'Ω');
-  const ripple =
-    response === 'chebyshev' ? requireRange('rippleDb', spec.rippleDb ?? 0.1, 0.001, 3, 'dB') : 0;
-  const series = spec.series ?? null;
-  if (series !== null) requireOneOf('series', series, ['E12', 'E24']);
-  const carrier = spec.carrierHz === undefined ? null : requirePositive('carrierHz', spec.carrierHz, 'Hz');
-  let order;
-  let orderFrom;
-  if (spec.order !== undefined) {
-    order = requireInteger('order', spec.order, 1, 15);
-    orderFrom = 'given';
-  } else {
-    if (carrier === null || spec.attenuationDb === undefined) {
-      throw new OrthotoneError(
-        'INVALID_ARGUMENT',
-        'output filter needs an order, or a carrier frequency and the attenuation wanted at its 3rd harmonic response',
-      );
+    if (spec === null || typeof spec !== 'object') {
+        throw new OrthotoneError('INVALID_ARGUMENT', 'output filter spec must be an object', spec);
     }
-    order = orderFor(response, fc, 3 * carrier, spec.attenuationDb, ripple);
-    orderFrom = 'attenuation';
-  }
-  const g = prototypeValues(response, order, ripple);
-  const w = 2 * Math.PI * fc;
-  const elements = g.map((gk, k) => {
-    const kind = k % 2 === 0 ? 'C' : 'L';
-    const exactValue = kind === 'C' ? gk / (w * r) : (gk * r) / w;
-    const value = kind === 'C' && series !== null ? nearestSeriesValue(exactValue, series) : exactValue;
-    return { kind, value, g: gk, exactValue };
-  });
-  const exact = elements.map((e) => ({ kind: e.kind, value: e.exactValue }));
-  const freqs =
-    carrier !== null
-      ? [1, 2, 3, 4, 5, 6, 7, 8, 9].map((h) => ({ f: h * carrier, h }))
-      : [1, 2, 3, 4, 5].map((m) => ({ f: m * fc }));
-  const points = freqs.map(({ f, h }) => ({
-    frequencyHz: f,
-    ...(h !== undefined ? { harmonic: h } : {}),
-    attenuationDb: ladderAttenuationDb(elements, f, r),
-    exactAttenuationDb: ladderAttenuationDb(exact, f, r),
-  }));
-  return {
-    format: 'orthotone-output-filter',
-    version: 1,
-    response,
-    order,
-    cutoffHz: fc,
-    rippleDb: ripple,
-    impedanceOhms: r,
-    series,
-    elements,
-    carrierHz: carrier,
-    points,
-    orderFrom,
-  };
+    const response = requireOneOf('response', spec.response, ['butterworth', 'chebyshev']);
+    const fc = requireRange('cutoffHz', spec.cutoffHz, 1, 1e11, 'Hz');
+    const r = requireRange('impedanceOhms', spec.impedanceOhms ?? 50, 0.1, 1e6, 'Ω');
+    const ripple = response === 'chebyshev' ? requireRange('rippleDb', spec.rippleDb ?? 0.1, 0.001, 3, 'dB') : 0;
+    const series = spec.series ?? null;
+    if (series !== null)
+        requireOneOf('series', series, ['E12', 'E24']);
+    const carrier = spec.carrierHz === undefined ? null : requirePositive('carrierHz', spec.carrierHz, 'Hz');
+    let order;
+    let orderFrom;
+    if (spec.order !== undefined) {
+        order = requireInteger('order', spec.order, 1, 15);
+        orderFrom = 'given';
+    }
+    else {
+        if (carrier === null || spec.attenuationDb === undefined) {
+            throw new OrthotoneError('INVALID_ARGUMENT', 'output filter needs an order, or a carrier frequency and the attenuation wanted at its 3rd harmonic response');
+        }
+        order = orderFor(response, fc, 3 * carrier, spec.attenuationDb, ripple);
+        orderFrom = 'attenuation';
+    }
+    const g = prototypeValues(response, order, ripple);
+    const w = 2 * Math.PI * fc;
+    const elements = g.map((gk, k) => {
+        const kind = k % 2 === 0 ? 'C' : 'L';
+        const exactValue = kind === 'C' ? gk / (w * r) : (gk * r) / w;
+        const value = kind === 'C' && series !== null ? nearestSeriesValue(exactValue, series) : exactValue;
+        return { kind, value, g: gk, exactValue };
+    });
+    const exact = elements.map((e) => ({ kind: e.kind, value: e.exactValue }));
+    const freqs = carrier !== null
+        ? [1, 2, 3, 4, 5, 6, 7, 8, 9].map((h) => ({ f: h * carrier, h }))
+        : [1, 2, 3, 4, 5].map((m) => ({ f: m * fc }));
+    const points = freqs.map(({ f, h }) => ({
+        frequencyHz: f,
+        ...(h !== undefined ? { harmonic: h } : {}),
+        attenuationDb: ladderAttenuationDb(elements, f, r),
+        exactAttenuationDb: ladderAttenuationDb(exact, f, r),
+    }));
+    return {
+        format: 'orthotone-output-filter',
+        version: 1,
+        response,
+        order,
+        cutoffHz: fc,
+        rippleDb: ripple,
+        impedanceOhms: r,
+        series,
+        elements,
+        carrierHz: carrier,
+        points,
+        orderFrom,
+    };
 }
 /**
  * Validates a parsed output-filter document (as written by `orthotone output-filter --out`; a
@@ -240,33 +229,33 @@ export function designOutputFilter(spec) {
  * @throws {OrthotoneError} INVALID_DOCUMENT naming the first bad field.
  */
 export function validateOutputFilter(doc) {
-  const bad = (m) => {
-    throw new OrthotoneError('INVALID_DOCUMENT', `output filter: ${m}`, doc);
-  };
-  if (typeof doc !== 'object' || doc === null) bad('must be a JSON object');
-  const d = { ...doc };
-  // A hand-written document may give only `elements` (and `impedanceOhms`, default 50 Ω).
-  if (d.format !== undefined && d.format !== 'orthotone-output-filter') {
-    bad(
-      `format ${JSON.stringify(d.format)} must be "orthotone-output-filter": write one with 'orthotone output-filter --out'`,
-    );
-  }
-  if (d.version !== undefined && d.version !== 1) {
-    bad(`version ${JSON.stringify(d.version)} is not supported: this library reads version 1`);
-  }
-  d.impedanceOhms ??= 50;
-  const imp = d.impedanceOhms;
-  if (typeof imp !== 'number' || !(imp > 0) || !Number.isFinite(imp))
-    bad('impedanceOhms must be a positive number of ohms');
-  if (!Array.isArray(d.elements) || d.elements.length === 0) bad('elements must be a non-empty list');
-  d.elements.forEach((e, k) => {
-    const x = e;
-    if (typeof x !== 'object' || x === null || (x.kind !== 'L' && x.kind !== 'C')) {
-      bad(`elements[${k}].kind must be "L" or "C"`);
+    const bad = (m) => {
+        throw new OrthotoneError('INVALID_DOCUMENT', `output filter: ${m}`, doc);
+    };
+    if (typeof doc !== 'object' || doc === null)
+        bad('must be a JSON object');
+    const d = { ...doc };
+    // A hand-written document may give only `elements` (and `impedanceOhms`, default 50 Ω).
+    if (d.format !== undefined && d.format !== 'orthotone-output-filter') {
+        bad(`format ${JSON.stringify(d.format)} must be "orthotone-output-filter": write one with 'orthotone output-filter --out'`);
     }
-    if (typeof x.value !== 'number' || !(x.value > 0) || !Number.isFinite(x.value)) {
-      bad(`elements[${k}].value must be a positive number (henry or farad)`);
+    if (d.version !== undefined && d.version !== 1) {
+        bad(`version ${JSON.stringify(d.version)} is not supported: this library reads version 1`);
     }
-  });
-  return d;
+    d.impedanceOhms ??= 50;
+    const imp = d.impedanceOhms;
+    if (typeof imp !== 'number' || !(imp > 0) || !Number.isFinite(imp))
+        bad('impedanceOhms must be a positive number of ohms');
+    if (!Array.isArray(d.elements) || d.elements.length === 0)
+        bad('elements must be a non-empty list');
+    d.elements.forEach((e, k) => {
+        const x = e;
+        if (typeof x !== 'object' || x === null || (x.kind !== 'L' && x.kind !== 'C')) {
+            bad(`elements[${k}].kind must be "L" or "C"`);
+        }
+        if (typeof x.value !== 'number' || !(x.value > 0) || !Number.isFinite(x.value)) {
+            bad(`elements[${k}].value must be a positive number (henry or farad)`);
+        }
+    });
+    return d;
 }

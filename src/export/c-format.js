@@ -8,14 +8,10 @@ import { OrthotoneError } from '../core/errors.js';
  * @throws {OrthotoneError} INVALID_ARGUMENT when `name` is not a C identifier.
  */
 export function requireCIdentifier(name) {
-  if (!/^[A-Za-z_][A-Za-z0-9_]{0,40}$/.test(name)) {
-    throw new OrthotoneError(
-      'INVALID_ARGUMENT',
-      `name ${JSON.stringify(name)} is not a C identifier: use letters, digits and _, not starting with a digit`,
-      name,
-    );
-  }
-  return name;
+    if (!/^[A-Za-z_][A-Za-z0-9_]{0,40}$/.test(name)) {
+        throw new OrthotoneError('INVALID_ARGUMENT', `name ${JSON.stringify(name)} is not a C identifier: use letters, digits and _, not starting with a digit`, name);
+    }
+    return name;
 }
 /**
  * A C float literal of `x` rounded to single precision, 9 significant digits (round-trips binary32:
@@ -24,8 +20,8 @@ export function requireCIdentifier(name) {
  * @throws never
  */
 export function cFloat(x) {
-  const s = Math.fround(x).toPrecision(9);
-  return `${s.includes('e') || s.includes('.') ? s : `${s}.0`}f`;
+    const s = Math.fround(x).toPrecision(9);
+    return `${s.includes('e') || s.includes('.') ? s : `${s}.0`}f`;
 }
 /**
  * `static const <type> <ident>[n] = { ... };` with six values a line. `type` and `ident` are written
@@ -33,7 +29,8 @@ export function cFloat(x) {
  * @throws never
  */
 export function cArray(type, ident, values) {
-  const lines = [];
-  for (let k = 0; k < values.length; k += 6) lines.push(`  ${values.slice(k, k + 6).join(', ')},`);
-  return `static const ${type} ${ident}[${values.length}] = {\n${lines.join('\n')}\n};\n`;
+    const lines = [];
+    for (let k = 0; k < values.length; k += 6)
+        lines.push(`  ${values.slice(k, k + 6).join(', ')},`);
+    return `static const ${type} ${ident}[${values.length}] = {\n${lines.join('\n')}\n};\n`;
 }

@@ -20,43 +20,36 @@ export const CORRECTION_MAX_ABS_SUM = 16;
  *   sum exceeds {@link CORRECTION_MAX_ABS_SUM}.
  */
 export function validateCorrection(c, maxTaps) {
-  const bad = (msg, v) => {
-    throw new OrthotoneError('INVALID_ARGUMENT', msg, v);
-  };
-  if (typeof c !== 'object' || c === null) bad('correction must be { qFromQ, qFromI } or null', c);
-  const { qFromQ, qFromI } = c;
-  if (!Array.isArray(qFromQ) || !Array.isArray(qFromI)) {
-    bad('correction.qFromQ and correction.qFromI must both be arrays of taps');
-  }
-  if (qFromQ.length !== qFromI.length) {
-    bad(
-      `correction.qFromQ has ${qFromQ.length} taps but qFromI has ${qFromI.length}: give both the same odd length`,
-      qFromI.length,
-    );
-  }
-  const n = qFromQ.length;
-  if (n < 1 || n % 2 === 0) bad(`correction length ${n} must be odd (centre tap aligned with I)`, n);
-  if (n > maxTaps) {
-    bad(
-      `correction length ${n} exceeds this generator's maxCorrectionTaps ${maxTaps}: shorten it or create the generator with a larger maxCorrectionTaps`,
-      n,
-    );
-  }
-  let sum = 0;
-  for (let k = 0; k < n; k++) {
-    const a = qFromQ[k];
-    const b = qFromI[k];
-    if (typeof a !== 'number' || !Number.isFinite(a))
-      bad(`correction.qFromQ[${k}] ${String(a)} must be finite`, a);
-    if (typeof b !== 'number' || !Number.isFinite(b))
-      bad(`correction.qFromI[${k}] ${String(b)} must be finite`, b);
-    sum += Math.abs(a) + Math.abs(b);
-  }
-  if (sum > CORRECTION_MAX_ABS_SUM) {
-    bad(
-      `correction absolute tap sum ${sum} exceeds ${CORRECTION_MAX_ABS_SUM}: a correction for real imbalance is close to the identity; check the fit`,
-      sum,
-    );
-  }
-  return c;
+    const bad = (msg, v) => {
+        throw new OrthotoneError('INVALID_ARGUMENT', msg, v);
+    };
+    if (typeof c !== 'object' || c === null)
+        bad('correction must be { qFromQ, qFromI } or null', c);
+    const { qFromQ, qFromI } = c;
+    if (!Array.isArray(qFromQ) || !Array.isArray(qFromI)) {
+        bad('correction.qFromQ and correction.qFromI must both be arrays of taps');
+    }
+    if (qFromQ.length !== qFromI.length) {
+        bad(`correction.qFromQ has ${qFromQ.length} taps but qFromI has ${qFromI.length}: give both the same odd length`, qFromI.length);
+    }
+    const n = qFromQ.length;
+    if (n < 1 || n % 2 === 0)
+        bad(`correction length ${n} must be odd (centre tap aligned with I)`, n);
+    if (n > maxTaps) {
+        bad(`correction length ${n} exceeds this generator's maxCorrectionTaps ${maxTaps}: shorten it or create the generator with a larger maxCorrectionTaps`, n);
+    }
+    let sum = 0;
+    for (let k = 0; k < n; k++) {
+        const a = qFromQ[k];
+        const b = qFromI[k];
+        if (typeof a !== 'number' || !Number.isFinite(a))
+            bad(`correction.qFromQ[${k}] ${String(a)} must be finite`, a);
+        if (typeof b !== 'number' || !Number.isFinite(b))
+            bad(`correction.qFromI[${k}] ${String(b)} must be finite`, b);
+        sum += Math.abs(a) + Math.abs(b);
+    }
+    if (sum > CORRECTION_MAX_ABS_SUM) {
+        bad(`correction absolute tap sum ${sum} exceeds ${CORRECTION_MAX_ABS_SUM}: a correction for real imbalance is close to the identity; check the fit`, sum);
+    }
+    return c;
 }

@@ -36,14 +36,15 @@ export const FRACTIONAL_DELAY_ACCURACY = Object.freeze({ errorDbTo025: -90, erro
  * @throws never
  */
 export function windowedSinc(t) {
-  const half = FRACTIONAL_DELAY_TAPS / 2;
-  const u = t / half;
-  if (u <= -1 || u >= 1) return 0;
-  const w =
-    besselI0(FRACTIONAL_DELAY_KAISER_BETA * Math.sqrt(1 - u * u)) / besselI0(FRACTIONAL_DELAY_KAISER_BETA);
-  if (t === 0) return 1;
-  const x = Math.PI * t;
-  return (Math.sin(x) / x) * w;
+    const half = FRACTIONAL_DELAY_TAPS / 2;
+    const u = t / half;
+    if (u <= -1 || u >= 1)
+        return 0;
+    const w = besselI0(FRACTIONAL_DELAY_KAISER_BETA * Math.sqrt(1 - u * u)) / besselI0(FRACTIONAL_DELAY_KAISER_BETA);
+    if (t === 0)
+        return 1;
+    const x = Math.PI * t;
+    return (Math.sin(x) / x) * w;
 }
 let table = null;
 /**
@@ -52,21 +53,22 @@ let table = null;
  * last row exactly a unit impulse at tap TAPS/2.
  */
 function tapTable() {
-  if (table) return table;
-  const m = FRACTIONAL_DELAY_TAPS;
-  const p = FRACTIONAL_DELAY_PHASES;
-  const t = new Float64Array((p + 1) * m);
-  const centre = m / 2 - 1;
-  for (let r = 0; r <= p; r++) {
-    const frac = r / p;
-    for (let k = 0; k < m; k++) {
-      const off = k - centre - frac;
-      // sinc is exactly zero at the other integers: keep the integer rows exact impulses.
-      t[r * m + k] = Number.isInteger(off) ? (off === 0 ? 1 : 0) : windowedSinc(off);
+    if (table)
+        return table;
+    const m = FRACTIONAL_DELAY_TAPS;
+    const p = FRACTIONAL_DELAY_PHASES;
+    const t = new Float64Array((p + 1) * m);
+    const centre = m / 2 - 1;
+    for (let r = 0; r <= p; r++) {
+        const frac = r / p;
+        for (let k = 0; k < m; k++) {
+            const off = k - centre - frac;
+            // sinc is exactly zero at the other integers: keep the integer rows exact impulses.
+            t[r * m + k] = Number.isInteger(off) ? (off === 0 ? 1 : 0) : windowedSinc(off);
+        }
     }
-  }
-  table = t;
-  return t;
+    table = t;
+    return t;
 }
 /**
  * Writes the interpolator taps for a fractional position into `out[offset … offset+TAPS−1]`.
@@ -79,22 +81,30 @@ function tapTable() {
  *   array).
  */
 export function fractionalDelayTaps(frac, out, offset = 0) {
-  const m = FRACTIONAL_DELAY_TAPS;
-  const tbl = tapTable();
-  let x = frac * FRACTIONAL_DELAY_PHASES;
-  if (!(x > 0)) x = 0;
-  else if (x > FRACTIONAL_DELAY_PHASES) x = FRACTIONAL_DELAY_PHASES;
-  let r = Math.floor(x);
-  if (r >= FRACTIONAL_DELAY_PHASES) r = FRACTIONAL_DELAY_PHASES - 1;
-  const w = x - r;
-  const a = r * m;
-  const b = a + m;
-  if (w === 0) {
-    for (let k = 0; k < m; k++) out[offset + k] = tbl[a + k];
-  } else if (w === 1) {
-    for (let k = 0; k < m; k++) out[offset + k] = tbl[b + k];
-  } else {
-    const v = 1 - w;
-    for (let k = 0; k < m; k++) out[offset + k] = v * tbl[a + k] + w * tbl[b + k];
-  }
+    const m = FRACTIONAL_DELAY_TAPS;
+    const tbl = tapTable();
+    let x = frac * FRACTIONAL_DELAY_PHASES;
+    if (!(x > 0))
+        x = 0;
+    else if (x > FRACTIONAL_DELAY_PHASES)
+        x = FRACTIONAL_DELAY_PHASES;
+    let r = Math.floor(x);
+    if (r >= FRACTIONAL_DELAY_PHASES)
+        r = FRACTIONAL_DELAY_PHASES - 1;
+    const w = x - r;
+    const a = r * m;
+    const b = a + m;
+    if (w === 0) {
+        for (let k = 0; k < m; k++)
+            out[offset + k] = tbl[a + k];
+    }
+    else if (w === 1) {
+        for (let k = 0; k < m; k++)
+            out[offset + k] = tbl[b + k];
+    }
+    else {
+        const v = 1 - w;
+        for (let k = 0; k < m; k++)
+            out[offset + k] = v * tbl[a + k] + w * tbl[b + k];
+    }
 }

@@ -12,24 +12,24 @@ import { evaluateBranches } from '../design/network.js';
  * @throws {OrthotoneError} INVALID_ARGUMENT for out-of-range trims or a non-positive frequency.
  */
 export function predictSuppressionDb(net, frequencyHz, trims = {}, sideband = 'upper') {
-  requirePositive('frequencyHz', frequencyHz, 'Hz');
-  const t = { ...ZERO_TRIMS, ...validateTrims(trims) };
-  const r = evaluateBranches(net, frequencyHz);
-  const g = dbToAmp(t.gainDb);
-  const phi = (t.phaseDeg * Math.PI) / 180;
-  const s = sideband === 'lower' ? -1 : 1;
-  const a = s * g * Math.cos(phi);
-  const b = g * Math.sin(phi);
-  let q = { re: a * r.q.re + b * r.i.re, im: a * r.q.im + b * r.i.im };
-  const w = (2 * Math.PI * frequencyHz * t.skewSamples) / net.sampleRate;
-  const c = Math.cos(w);
-  const sn = -Math.sin(w);
-  q = { re: q.re * c - q.im * sn, im: q.re * sn + q.im * c };
-  // I + jQ: component at +f is (Hi + jHq)/2, at −f (Hi* + jHq*)/2 → magnitudes |Hi + jHq|, |Hi − jHq|.
-  const up = Math.hypot(r.i.re - q.im, r.i.im + q.re);
-  const dn = Math.hypot(r.i.re + q.im, r.i.im - q.re);
-  const ratio = sideband === 'lower' ? dn / up : up / dn;
-  return ampToDb(ratio);
+    requirePositive('frequencyHz', frequencyHz, 'Hz');
+    const t = { ...ZERO_TRIMS, ...validateTrims(trims) };
+    const r = evaluateBranches(net, frequencyHz);
+    const g = dbToAmp(t.gainDb);
+    const phi = (t.phaseDeg * Math.PI) / 180;
+    const s = sideband === 'lower' ? -1 : 1;
+    const a = s * g * Math.cos(phi);
+    const b = g * Math.sin(phi);
+    let q = { re: a * r.q.re + b * r.i.re, im: a * r.q.im + b * r.i.im };
+    const w = (2 * Math.PI * frequencyHz * t.skewSamples) / net.sampleRate;
+    const c = Math.cos(w);
+    const sn = -Math.sin(w);
+    q = { re: q.re * c - q.im * sn, im: q.re * sn + q.im * c };
+    // I + jQ: component at +f is (Hi + jHq)/2, at −f (Hi* + jHq*)/2 → magnitudes |Hi + jHq|, |Hi − jHq|.
+    const up = Math.hypot(r.i.re - q.im, r.i.im + q.re);
+    const dn = Math.hypot(r.i.re + q.im, r.i.im - q.re);
+    const ratio = sideband === 'lower' ? dn / up : up / dn;
+    return ampToDb(ratio);
 }
 /**
  * Carrier relative to a tone from the DC trims, dBc: `20·log10(√(dcI² + dcQ²)/A)`, A the tone's peak
@@ -37,9 +37,9 @@ export function predictSuppressionDb(net, frequencyHz, trims = {}, sideband = 'u
  * @throws {OrthotoneError} INVALID_ARGUMENT for a non-positive amplitude or bad trims.
  */
 export function predictCarrierDbc(trims, toneAmplitude) {
-  requirePositive('toneAmplitude', toneAmplitude);
-  const t = { ...ZERO_TRIMS, ...validateTrims(trims) };
-  return ampToDb(Math.hypot(t.dcI, t.dcQ) / toneAmplitude);
+    requirePositive('toneAmplitude', toneAmplitude);
+    const t = { ...ZERO_TRIMS, ...validateTrims(trims) };
+    return ampToDb(Math.hypot(t.dcI, t.dcQ) / toneAmplitude);
 }
 /**
  * Output peaks for a signal of peak envelope `envelopePeak` (tones: the sum of their amplitudes):
@@ -50,11 +50,11 @@ export function predictCarrierDbc(trims, toneAmplitude) {
  * @throws {OrthotoneError} INVALID_ARGUMENT for a non-finite peak or bad trims.
  */
 export function predictOutputPeaks(envelopePeak, trims, net) {
-  requireFinite('envelopePeak', envelopePeak);
-  const t = { ...ZERO_TRIMS, ...validateTrims(trims) };
-  const ripple = net?.kind === 'fir' ? dbToAmp(Math.abs(net.predicted.maxGainErrorDb)) : 1;
-  const i = Math.abs(envelopePeak) + Math.abs(t.dcI);
-  const q = Math.abs(envelopePeak) * ripple * dbToAmp(t.gainDb) + Math.abs(t.dcQ);
-  const m = Math.max(i, q);
-  return { i, q, peakDbfs: peakToDbfs(m), overFullScale: m > 1 };
+    requireFinite('envelopePeak', envelopePeak);
+    const t = { ...ZERO_TRIMS, ...validateTrims(trims) };
+    const ripple = net?.kind === 'fir' ? dbToAmp(Math.abs(net.predicted.maxGainErrorDb)) : 1;
+    const i = Math.abs(envelopePeak) + Math.abs(t.dcI);
+    const q = Math.abs(envelopePeak) * ripple * dbToAmp(t.gainDb) + Math.abs(t.dcQ);
+    const m = Math.max(i, q);
+    return { i, q, peakDbfs: peakToDbfs(m), overFullScale: m > 1 };
 }

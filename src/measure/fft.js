@@ -10,7 +10,7 @@ import { OrthotoneError } from '../core/errors.js';
  * @throws never
  */
 export function isPowerOfTwo(n) {
-  return Number.isInteger(n) && n > 0 && (n & (n - 1)) === 0;
+    return Number.isInteger(n) && n > 0 && (n & (n - 1)) === 0;
 }
 /**
  * Smallest power of two ≥ `n` (n ≥ 1; 1 for n ≤ 1). `n` must be finite (not checked: +Infinity
@@ -18,9 +18,10 @@ export function isPowerOfTwo(n) {
  * @throws never
  */
 export function nextPowerOfTwo(n) {
-  let p = 1;
-  while (p < n) p *= 2;
-  return p;
+    let p = 1;
+    while (p < n)
+        p *= 2;
+    return p;
 }
 /**
  * Plans an FFT of `size` points using fft.js (F. Indutny, MIT licence).
@@ -29,22 +30,18 @@ export function nextPowerOfTwo(n) {
  * Reference: fft.js README (`realTransform`, `completeSpectrum`, `transform`).
  */
 export function createFft(size) {
-  if (!isPowerOfTwo(size) || size < 4 || size > 1 << 24) {
-    throw new OrthotoneError(
-      'INVALID_ARGUMENT',
-      `FFT size ${size} must be a power of two from 4 to ${1 << 24}: use ${nextPowerOfTwo(Math.max(4, size | 0))}`,
-      size,
-    );
-  }
-  const f = new FFT(size);
-  return {
-    size,
-    realForward(input, out) {
-      f.realTransform(out, input);
-      f.completeSpectrum(out);
-    },
-    complexForward(input, out) {
-      f.transform(out, input);
-    },
-  };
+    if (!isPowerOfTwo(size) || size < 4 || size > 1 << 24) {
+        throw new OrthotoneError('INVALID_ARGUMENT', `FFT size ${size} must be a power of two from 4 to ${1 << 24}: use ${nextPowerOfTwo(Math.max(4, size | 0))}`, size);
+    }
+    const f = new FFT(size);
+    return {
+        size,
+        realForward(input, out) {
+            f.realTransform(out, input);
+            f.completeSpectrum(out);
+        },
+        complexForward(input, out) {
+            f.transform(out, input);
+        },
+    };
 }

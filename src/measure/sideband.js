@@ -17,10 +17,10 @@ import { requireFinite, requireOneOf, requirePositive } from '../core/validate.j
 import { createToneReader } from './tones.js';
 /** Defaults for the sideband-specific options. */
 export const DEFAULT_SIDEBAND_OPTIONS = Object.freeze({
-  sideband: 'upper',
-  carrierHz: 0,
-  offsetHz: undefined,
-  receiverSideband: 'upper',
+    sideband: 'upper',
+    carrierHz: 0,
+    offsetHz: undefined,
+    receiverSideband: 'upper',
 });
 /**
  * Reads the wanted sideband, the unwanted sideband and the carrier of a single-tone transmission.
@@ -51,95 +51,89 @@ export const DEFAULT_SIDEBAND_OPTIONS = Object.freeze({
  * K. Schmidt, QEX Aug 1994 §2 (REFERENCES.md §1).
  */
 export function measureSideband(i, q, sampleRate, options) {
-  const toneHz = requirePositive('toneHz', options?.toneHz, 'Hz');
-  const sideband = requireOneOf('sideband', options.sideband ?? 'upper', ['upper', 'lower']);
-  const s = sideband === 'upper' ? 1 : -1;
-  const iq = q !== null && q !== undefined;
-  let at;
-  if (iq) {
-    if (options.offsetHz !== undefined) {
-      throw new OrthotoneError(
-        'INVALID_ARGUMENT',
-        'offsetHz applies to receiver audio: for an I/Q capture give carrierHz (default 0), or pass q = null for audio',
-        options.offsetHz,
-      );
+    const toneHz = requirePositive('toneHz', options?.toneHz, 'Hz');
+    const sideband = requireOneOf('sideband', options.sideband ?? 'upper', ['upper', 'lower']);
+    const s = sideband === 'upper' ? 1 : -1;
+    const iq = q !== null && q !== undefined;
+    let at;
+    if (iq) {
+        if (options.offsetHz !== undefined) {
+            throw new OrthotoneError('INVALID_ARGUMENT', 'offsetHz applies to receiver audio: for an I/Q capture give carrierHz (default 0), or pass q = null for audio', options.offsetHz);
+        }
+        const carrierHz = requireFinite('carrierHz', options.carrierHz ?? 0, 'give it in Hz');
+        at = (d) => carrierHz + d;
     }
-    const carrierHz = requireFinite('carrierHz', options.carrierHz ?? 0, 'give it in Hz');
-    at = (d) => carrierHz + d;
-  } else {
-    if (options.offsetHz === undefined) {
-      throw new OrthotoneError(
-        'INVALID_ARGUMENT',
-        'receiver audio needs offsetHz, the audio frequency where the carrier lands (e.g. 1500 for a 700 Hz tone): or pass q for an I/Q capture',
-        undefined,
-      );
+    else {
+        if (options.offsetHz === undefined) {
+            throw new OrthotoneError('INVALID_ARGUMENT', 'receiver audio needs offsetHz, the audio frequency where the carrier lands (e.g. 1500 for a 700 Hz tone): or pass q for an I/Q capture', undefined);
+        }
+        const offsetHz = requireFinite('offsetHz', options.offsetHz, 'give it in Hz');
+        const rx = requireOneOf('receiverSideband', options.receiverSideband ?? 'upper', [
+            'upper',
+            'lower',
+        ]);
+        const r = rx === 'upper' ? 1 : -1;
+        at = (d) => offsetHz + r * d;
+        const nyq = sampleRate / 2;
+        for (const [name, d] of [
+            ['wanted tone', s * toneHz],
+            ['unwanted tone', -s * toneHz],
+            ['carrier', 0],
+        ]) {
+            const f = at(d);
+            if (!(f > 0 && f < nyq)) {
+                throw new OrthotoneError('INVALID_ARGUMENT', `the ${name} falls at ${f} Hz in the audio, outside 0…${nyq} Hz: with a ${toneHz} Hz tone use an offset between ${toneHz} and ${nyq - toneHz} Hz (offsetHz ${offsetHz} given)`, offsetHz);
+            }
+        }
     }
-    const offsetHz = requireFinite('offsetHz', options.offsetHz, 'give it in Hz');
-    const rx = requireOneOf('receiverSideband', options.receiverSideband ?? 'upper', ['upper', 'lower']);
-    const r = rx === 'upper' ? 1 : -1;
-    at = (d) => offsetHz + r * d;
+    const capture = iq ? { i, q } : i;
+    const fw = at(s * toneHz);
+    const fu = at(-s * toneHz);
+    const fc = at(0);
+    const reader = createToneReader(capture, sampleRate, [fw, fu, fc], options);
+    const res = reader.spectrum.resolutionHz;
     const nyq = sampleRate / 2;
-    for (const [name, d] of [
-      ['wanted tone', s * toneHz],
-      ['unwanted tone', -s * toneHz],
-      ['carrier', 0],
-    ]) {
-      const f = at(d);
-      if (!(f > 0 && f < nyq)) {
-        throw new OrthotoneError(
-          'INVALID_ARGUMENT',
-          `the ${name} falls at ${f} Hz in the audio, outside 0…${nyq} Hz: with a ${toneHz} Hz tone use an offset between ${toneHz} and ${nyq - toneHz} Hz (offsetHz ${offsetHz} given)`,
-          offsetHz,
-        );
-      }
+    const inRange = (f) => (iq ? Math.abs(f) < nyq : f > 0 && f < nyq);
+    const wanted = reader.read(fw);
+    let carrier = reader.read({ hz: fc });
+    let unwanted;
+    if (carrier.refined) {
+        // The carrier located: the unwanted tone is the mirror of the wanted about it, a known frequency.
+        const mirror = 2 * carrier.frequencyHz - wanted.frequencyHz;
+        unwanted = reader.read({ hz: inRange(mirror) ? mirror : fu, refine: 'never' });
     }
-  }
-  const capture = iq ? { i, q } : i;
-  const fw = at(s * toneHz);
-  const fu = at(-s * toneHz);
-  const fc = at(0);
-  const reader = createToneReader(capture, sampleRate, [fw, fu, fc], options);
-  const res = reader.spectrum.resolutionHz;
-  const nyq = sampleRate / 2;
-  const inRange = (f) => (iq ? Math.abs(f) < nyq : f > 0 && f < nyq);
-  const wanted = reader.read(fw);
-  let carrier = reader.read({ hz: fc });
-  let unwanted;
-  if (carrier.refined) {
-    // The carrier located: the unwanted tone is the mirror of the wanted about it, a known frequency.
-    const mirror = 2 * carrier.frequencyHz - wanted.frequencyHz;
-    unwanted = reader.read({ hz: inRange(mirror) ? mirror : fu, refine: 'never' });
-  } else {
-    // No carrier to go by. A tuning (or clock) error moves the unwanted tone with the wanted one,
-    // to fu + δ; an error in the tone's own frequency moves it the other way, to fu − δ (the mirror
-    // about the nominal carrier). Seek it over that span when it stands clear of floor and leakage.
-    const shift = wanted.frequencyHz - fw;
-    unwanted = reader.read({ hz: fu, searchHz: Math.abs(shift) + res / 2 });
-    if (unwanted.refined) {
-      // The carrier lies midway between the two sidebands: read it there.
-      const mid = (wanted.frequencyHz + unwanted.frequencyHz) / 2;
-      if (inRange(mid) && Math.abs(mid - fc) > 0.001 * res)
-        carrier = reader.read({ hz: mid, refine: 'never' });
-    } else {
-      const mirror = 2 * fc - wanted.frequencyHz;
-      unwanted = reader.read({ hz: inRange(mirror) ? mirror : fu, refine: 'never' });
+    else {
+        // No carrier to go by. A tuning (or clock) error moves the unwanted tone with the wanted one,
+        // to fu + δ; an error in the tone's own frequency moves it the other way, to fu − δ (the mirror
+        // about the nominal carrier). Seek it over that span when it stands clear of floor and leakage.
+        const shift = wanted.frequencyHz - fw;
+        unwanted = reader.read({ hz: fu, searchHz: Math.abs(shift) + res / 2 });
+        if (unwanted.refined) {
+            // The carrier lies midway between the two sidebands: read it there.
+            const mid = (wanted.frequencyHz + unwanted.frequencyHz) / 2;
+            if (inRange(mid) && Math.abs(mid - fc) > 0.001 * res)
+                carrier = reader.read({ hz: mid, refine: 'never' });
+        }
+        else {
+            const mirror = 2 * fc - wanted.frequencyHz;
+            unwanted = reader.read({ hz: inRange(mirror) ? mirror : fu, refine: 'never' });
+        }
     }
-  }
-  const unwantedDbc = unwanted.levelDbfs - wanted.levelDbfs;
-  const carrierDbc = carrier.levelDbfs - wanted.levelDbfs;
-  return {
-    toneHz,
-    sideband,
-    wanted,
-    unwanted,
-    carrier,
-    unwantedDbc,
-    carrierDbc,
-    sidebandSuppressionDb: -unwantedDbc,
-    carrierSuppressionDb: -carrierDbc,
-    floorDbc: wanted.floorDbfs - wanted.levelDbfs,
-    sidebandMeasurableDb: wanted.levelDbfs - unwanted.floorDbfs,
-    carrierMeasurableDb: wanted.levelDbfs - carrier.floorDbfs,
-    frequencyErrorHz: wanted.frequencyHz - fw,
-  };
+    const unwantedDbc = unwanted.levelDbfs - wanted.levelDbfs;
+    const carrierDbc = carrier.levelDbfs - wanted.levelDbfs;
+    return {
+        toneHz,
+        sideband,
+        wanted,
+        unwanted,
+        carrier,
+        unwantedDbc,
+        carrierDbc,
+        sidebandSuppressionDb: -unwantedDbc,
+        carrierSuppressionDb: -carrierDbc,
+        floorDbc: wanted.floorDbfs - wanted.levelDbfs,
+        sidebandMeasurableDb: wanted.levelDbfs - unwanted.floorDbfs,
+        carrierMeasurableDb: wanted.levelDbfs - carrier.floorDbfs,
+        frequencyErrorHz: wanted.frequencyHz - fw,
+    };
 }

@@ -8,7 +8,7 @@ import { OrthotoneError } from '../core/errors.js';
  * @throws never
  */
 export function isIqCapture(c) {
-  return typeof c === 'object' && c !== null && 'i' in c && 'q' in c && !('length' in c);
+    return typeof c === 'object' && c !== null && 'i' in c && 'q' in c && !('length' in c);
 }
 /**
  * Length of a capture in samples, after checking its shape.
@@ -16,25 +16,17 @@ export function isIqCapture(c) {
  *   or BUFFER_MISMATCH when i and q differ in length.
  */
 export function captureLength(c) {
-  if (isIqCapture(c)) {
-    if (typeof c.i?.length !== 'number' || typeof c.q?.length !== 'number') {
-      throw new OrthotoneError('INVALID_ARGUMENT', 'an I/Q capture needs arrays i and q of samples', c);
+    if (isIqCapture(c)) {
+        if (typeof c.i?.length !== 'number' || typeof c.q?.length !== 'number') {
+            throw new OrthotoneError('INVALID_ARGUMENT', 'an I/Q capture needs arrays i and q of samples', c);
+        }
+        if (c.i.length !== c.q.length) {
+            throw new OrthotoneError('BUFFER_MISMATCH', `I/Q capture has ${c.i.length} I samples but ${c.q.length} Q samples: pass channels of equal length`, [c.i.length, c.q.length]);
+        }
+        return c.i.length;
     }
-    if (c.i.length !== c.q.length) {
-      throw new OrthotoneError(
-        'BUFFER_MISMATCH',
-        `I/Q capture has ${c.i.length} I samples but ${c.q.length} Q samples: pass channels of equal length`,
-        [c.i.length, c.q.length],
-      );
+    if (c === null || typeof c !== 'object' || typeof c.length !== 'number') {
+        throw new OrthotoneError('INVALID_ARGUMENT', 'a capture must be an array of samples (real) or an object {i, q} of two arrays (complex)', c);
     }
-    return c.i.length;
-  }
-  if (c === null || typeof c !== 'object' || typeof c.length !== 'number') {
-    throw new OrthotoneError(
-      'INVALID_ARGUMENT',
-      'a capture must be an array of samples (real) or an object {i, q} of two arrays (complex)',
-      c,
-    );
-  }
-  return c.length;
+    return c.length;
 }

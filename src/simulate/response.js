@@ -37,40 +37,42 @@ import { requireFinite } from '../core/validate.js';
  * @throws never
  */
 export function mixerHarmonicRatio(n) {
-  if (n % 4 === 0) return 0;
-  return Math.sin((n * Math.PI) / 4) / (n * Math.sin(Math.PI / 4));
+    if (n % 4 === 0)
+        return 0;
+    return Math.sin((n * Math.PI) / 4) / (n * Math.sin(Math.PI / 4));
 }
 /** j^k for integer k. */
 function jPow(k) {
-  const m = ((k % 4) + 4) % 4;
-  return [
-    { re: 1, im: 0 },
-    { re: 0, im: 1 },
-    { re: -1, im: 0 },
-    { re: 0, im: -1 },
-  ][m];
+    const m = ((k % 4) + 4) % 4;
+    return [
+        { re: 1, im: 0 },
+        { re: 0, im: 1 },
+        { re: -1, im: 0 },
+        { re: 0, im: -1 },
+    ][m];
 }
 /**
  * Mixer coefficients α, β, κ of a model at LO harmonic `n` (see the file header).
  * @throws {OrthotoneError} INVALID_ARGUMENT for a harmonic outside 1…15.
  */
 export function mixerCoefficients(model, n = 1) {
-  if (!Number.isInteger(n) || n < 1 || n > 15) {
-    throw new OrthotoneError('INVALID_ARGUMENT', `LO harmonic ${n} must be a whole number from 1 to 15`, n);
-  }
-  const r = mixerHarmonicRatio(n);
-  const w = [0, 1, 2, 3].map((p) => {
-    const e = cexpj((n * model.loPhaseErrorDeg[p] * Math.PI) / 180);
-    const c = cmul(jPow(n * p), e);
-    return { re: (r * c.re) / 2, im: (r * c.im) / 2 };
-  });
-  const sc = (c, s) => ({ re: c.re * s, im: c.im * s });
-  const g = model.phaseGain;
-  const alpha = cadd(sc(w[0], g[0]), sc(w[2], -g[2]));
-  const beta = cadd(sc(w[1], g[1]), sc(w[3], -g[3]));
-  let kappa = { re: 0, im: 0 };
-  for (let p = 0; p < 4; p++) kappa = cadd(kappa, sc(w[p], model.phaseOffsetVolts[p] / model.fullScaleVolts));
-  return { harmonic: n, alpha, beta, kappa };
+    if (!Number.isInteger(n) || n < 1 || n > 15) {
+        throw new OrthotoneError('INVALID_ARGUMENT', `LO harmonic ${n} must be a whole number from 1 to 15`, n);
+    }
+    const r = mixerHarmonicRatio(n);
+    const w = [0, 1, 2, 3].map((p) => {
+        const e = cexpj((n * model.loPhaseErrorDeg[p] * Math.PI) / 180);
+        const c = cmul(jPow(n * p), e);
+        return { re: (r * c.re) / 2, im: (r * c.im) / 2 };
+    });
+    const sc = (c, s) => ({ re: c.re * s, im: c.im * s });
+    const g = model.phaseGain;
+    const alpha = cadd(sc(w[0], g[0]), sc(w[2], -g[2]));
+    const beta = cadd(sc(w[1], g[1]), sc(w[3], -g[3]));
+    let kappa = { re: 0, im: 0 };
+    for (let p = 0; p < 4; p++)
+        kappa = cadd(kappa, sc(w[p], model.phaseOffsetVolts[p] / model.fullScaleVolts));
+    return { harmonic: n, alpha, beta, kappa };
 }
 /**
  * Complex response of one analog channel (0 = I, 1 = Q) at frequency `hz` (signed): codec gain,
@@ -80,21 +82,22 @@ export function mixerCoefficients(model, n = 1) {
  * @throws never (the model is not re-validated here).
  */
 export function channelResponse(model, channel, hz) {
-  let h = { re: model.codecGain[channel], im: 0 };
-  const fh = model.couplingHighPassHz[channel];
-  if (fh > 0) {
-    // jf/(jf + fh) = (f² + j·f·fh)/(f² + fh²)
-    const d = hz * hz + fh * fh;
-    h = cmul(h, { re: (hz * hz) / d, im: (hz * fh) / d });
-  }
-  const fl = model.antiImagingLowPassHz[channel];
-  if (Number.isFinite(fl)) {
-    // 1/(1 + jf/fl) = (1 − j·x)/(1 + x²), x = f/fl
-    const x = hz / fl;
-    h = cmul(h, { re: 1 / (1 + x * x), im: -x / (1 + x * x) });
-  }
-  if (channel === 1 && model.skewSeconds !== 0) h = cmul(h, cexpj(-2 * Math.PI * hz * model.skewSeconds));
-  return h;
+    let h = { re: model.codecGain[channel], im: 0 };
+    const fh = model.couplingHighPassHz[channel];
+    if (fh > 0) {
+        // jf/(jf + fh) = (f² + j·f·fh)/(f² + fh²)
+        const d = hz * hz + fh * fh;
+        h = cmul(h, { re: (hz * hz) / d, im: (hz * fh) / d });
+    }
+    const fl = model.antiImagingLowPassHz[channel];
+    if (Number.isFinite(fl)) {
+        // 1/(1 + jf/fl) = (1 − j·x)/(1 + x²), x = f/fl
+        const x = hz / fl;
+        h = cmul(h, { re: 1 / (1 + x * x), im: -x / (1 + x * x) });
+    }
+    if (channel === 1 && model.skewSeconds !== 0)
+        h = cmul(h, cexpj(-2 * Math.PI * hz * model.skewSeconds));
+    return h;
 }
 /**
  * Steady-state complex amplitudes for an ideal I/Q tone `I = a·cos 2πft`, `Q = a·sin 2πft`
@@ -104,44 +107,42 @@ export function channelResponse(model, channel, hz) {
  * Reference: see the file header.
  */
 export function toneResponse(model, toneHz, trims, toneAmplitude, sampleRate, harmonic = 1) {
-  requireFinite('toneHz', toneHz, 'give it in Hz');
-  requireFinite('toneAmplitude', toneAmplitude);
-  validateTrims(trims);
-  const { alpha, beta, kappa } = mixerCoefficients(model, harmonic);
-  const a = toneAmplitude;
-  const gain = 10 ** ((trims.gainDb ?? 0) / 20);
-  const phi = ((trims.phaseDeg ?? 0) * Math.PI) / 180;
-  // Phasors of the real signals at +f: I = Re{a·e^{jωt}}, Q = Re{−j·a·e^{jωt}}.
-  const xi = { re: a, im: 0 };
-  const xqRaw = { re: 0, im: -a };
-  let xq = {
-    re: gain * (xqRaw.re * Math.cos(phi) + xi.re * Math.sin(phi)),
-    im: gain * (xqRaw.im * Math.cos(phi) + xi.im * Math.sin(phi)),
-  };
-  const skew = trims.skewSamples ?? 0;
-  if (skew !== 0) xq = cmul(xq, cexpj((-2 * Math.PI * toneHz * skew) / sampleRate));
-  const ti = cmul(channelResponse(model, 0, toneHz), xi);
-  const tq = cmul(channelResponse(model, 1, toneHz), xq);
-  const conj = (c) => ({ re: c.re, im: -c.im });
-  const half = (c) => ({ re: c.re / 2, im: c.im / 2 });
-  const wanted = half(cadd(cmul(alpha, ti), cmul(beta, tq)));
-  const unwanted = half(cadd(cmul(alpha, conj(ti)), cmul(beta, conj(tq))));
-  const dcI = (trims.dcI ?? 0) * channelResponse(model, 0, 0).re;
-  const dcQ = (trims.dcQ ?? 0) * channelResponse(model, 1, 0).re;
-  const carrier = cadd(
-    kappa,
-    cadd({ re: alpha.re * dcI, im: alpha.im * dcI }, { re: beta.re * dcQ, im: beta.im * dcQ }),
-  );
-  return { wanted, unwanted, carrier };
+    requireFinite('toneHz', toneHz, 'give it in Hz');
+    requireFinite('toneAmplitude', toneAmplitude);
+    validateTrims(trims);
+    const { alpha, beta, kappa } = mixerCoefficients(model, harmonic);
+    const a = toneAmplitude;
+    const gain = 10 ** ((trims.gainDb ?? 0) / 20);
+    const phi = ((trims.phaseDeg ?? 0) * Math.PI) / 180;
+    // Phasors of the real signals at +f: I = Re{a·e^{jωt}}, Q = Re{−j·a·e^{jωt}}.
+    const xi = { re: a, im: 0 };
+    const xqRaw = { re: 0, im: -a };
+    let xq = {
+        re: gain * (xqRaw.re * Math.cos(phi) + xi.re * Math.sin(phi)),
+        im: gain * (xqRaw.im * Math.cos(phi) + xi.im * Math.sin(phi)),
+    };
+    const skew = trims.skewSamples ?? 0;
+    if (skew !== 0)
+        xq = cmul(xq, cexpj((-2 * Math.PI * toneHz * skew) / sampleRate));
+    const ti = cmul(channelResponse(model, 0, toneHz), xi);
+    const tq = cmul(channelResponse(model, 1, toneHz), xq);
+    const conj = (c) => ({ re: c.re, im: -c.im });
+    const half = (c) => ({ re: c.re / 2, im: c.im / 2 });
+    const wanted = half(cadd(cmul(alpha, ti), cmul(beta, tq)));
+    const unwanted = half(cadd(cmul(alpha, conj(ti)), cmul(beta, conj(tq))));
+    const dcI = (trims.dcI ?? 0) * channelResponse(model, 0, 0).re;
+    const dcQ = (trims.dcQ ?? 0) * channelResponse(model, 1, 0).re;
+    const carrier = cadd(kappa, cadd({ re: alpha.re * dcI, im: alpha.im * dcI }, { re: beta.re * dcQ, im: beta.im * dcQ }));
+    return { wanted, unwanted, carrier };
 }
 /**
  * Levels of a tone response: wanted in dBFS (AES17), unwanted and carrier in dBc (floored at −300 dB).
  * @throws never
  */
 export function responseLevels(r) {
-  const w = cabs(r.wanted);
-  const db = (x) => Math.max(-300, 20 * Math.log10(x));
-  return { wantedDbfs: db(w), unwantedDbc: db(cabs(r.unwanted) / w), carrierDbc: db(cabs(r.carrier) / w) };
+    const w = cabs(r.wanted);
+    const db = (x) => Math.max(-300, 20 * Math.log10(x));
+    return { wantedDbfs: db(w), unwantedDbc: db(cabs(r.unwanted) / w), carrierDbc: db(cabs(r.carrier) / w) };
 }
 /**
  * Predicted opposite-sideband and carrier suppression of a device with zero trims, for a full-scale
@@ -153,9 +154,9 @@ export function responseLevels(r) {
  * Reference: see the file header; REFERENCES.md §1 for the image-rejection and carrier formulas.
  */
 export function predictedSuppression(model, frequenciesHz) {
-  return frequenciesHz.map((f) => {
-    // The sample rate only scales a skew trim, and trims are zero here.
-    const l = responseLevels(toneResponse(model, f, {}, 1, 48000));
-    return { frequencyHz: f, sidebandDb: -l.unwantedDbc, carrierDb: -l.carrierDbc };
-  });
+    return frequenciesHz.map((f) => {
+        // The sample rate only scales a skew trim, and trims are zero here.
+        const l = responseLevels(toneResponse(model, f, {}, 1, 48000));
+        return { frequencyHz: f, sidebandDb: -l.unwantedDbc, carrierDb: -l.carrierDbc };
+    });
 }

@@ -5,7 +5,7 @@
  */
 export * from './audio-types.js';
 export * from './capture-node.js';
-export { CAPTURE_PROCESSOR_NAME, QUADRATURE_PARAMS, QUADRATURE_PROCESSOR_NAME } from './messages.js';
+export { CAPTURE_PROCESSOR_NAME, QUADRATURE_PARAMS, QUADRATURE_PROCESSOR_NAME, } from './messages.js';
 export * from './node.js';
 export * from './trim-reader.js';
 export { loadWorkletModule } from './worklet-module.js';

@@ -10,15 +10,14 @@
 import { abortable } from '../core/abort.js';
 import { OrthotoneError } from '../core/errors.js';
 import { requireRange, withDefaults } from '../core/validate.js';
-
 const DEFAULTS = Object.freeze({
-  node: undefined,
-  capture: undefined,
-  read: undefined,
-  rampSeconds: 0.01,
-  settleSeconds: 0.06,
-  captureSeconds: 0.1,
-  signal: undefined,
+    node: undefined,
+    capture: undefined,
+    read: undefined,
+    rampSeconds: 0.01,
+    settleSeconds: 0.06,
+    captureSeconds: 0.1,
+    signal: undefined,
 });
 /**
  * Makes a `measure(trims) => Promise<dB>` callback for calibrateSideband / calibrateCarrier that
@@ -29,75 +28,64 @@ const DEFAULTS = Object.freeze({
  *   MEASUREMENT_FAILED when `read` throws or returns a non-finite level.
  */
 export function createTrimReader(options) {
-  const o = withDefaults(DEFAULTS, options);
-  if (!o.node || typeof o.node.setTrims !== 'function') {
-    throw new OrthotoneError('INVALID_ARGUMENT', 'node must be a quadrature node (createQuadratureNode)');
-  }
-  if (!o.capture || typeof o.capture.capture !== 'function') {
-    throw new OrthotoneError('INVALID_ARGUMENT', 'capture must be a capture node (createCaptureNode)');
-  }
-  if (typeof o.read !== 'function') {
-    throw new OrthotoneError(
-      'INVALID_ARGUMENT',
-      'read must be a function (capture, sampleRate) => level in dB',
-    );
-  }
-  requireRange('rampSeconds', o.rampSeconds, 0, 10, 's');
-  requireRange('settleSeconds', o.settleSeconds, 0, 10, 's');
-  requireRange('captureSeconds', o.captureSeconds, 0.001, 10, 's');
-  if (o.settleSeconds < o.rampSeconds) {
-    throw new OrthotoneError(
-      'INVALID_ARGUMENT',
-      `settleSeconds ${o.settleSeconds} s is shorter than rampSeconds ${o.rampSeconds} s: readings would catch the ramp; make settleSeconds at least the ramp plus the path latency`,
-      o.settleSeconds,
-    );
-  }
-  const fs = o.node.sampleRate;
-  const frames = Math.max(1, Math.round(o.captureSeconds * fs));
-  const skipFrames = Math.round(o.settleSeconds * fs);
-  let chain = Promise.resolve();
-  const one = async (trims) => {
-    if (o.signal?.aborted) throw abortedReading();
-    o.node.setTrims(trims, { rampSeconds: o.rampSeconds });
-    const cap = await abortable(o.capture.capture(frames, { skipFrames }), o.signal, abortedReading);
-    let level;
-    try {
-      level = o.read(cap, fs);
-    } catch (e) {
-      throw new OrthotoneError(
-        'MEASUREMENT_FAILED',
-        `the reading failed: ${e instanceof Error ? e.message : String(e)}`,
-        e,
-      );
+    const o = withDefaults(DEFAULTS, options);
+    if (!o.node || typeof o.node.setTrims !== 'function') {
+        throw new OrthotoneError('INVALID_ARGUMENT', 'node must be a quadrature node (createQuadratureNode)');
     }
-    const bad = nonFinite(level);
-    if (bad !== null) {
-      throw new OrthotoneError(
-        'MEASUREMENT_FAILED',
-        `the reading gave ${bad}, not a finite level in dB`,
-        level,
-      );
+    if (!o.capture || typeof o.capture.capture !== 'function') {
+        throw new OrthotoneError('INVALID_ARGUMENT', 'capture must be a capture node (createCaptureNode)');
     }
-    return level;
-  };
-  return (trims) => {
-    const p = chain.then(() => one(trims));
-    chain = p.catch(() => undefined);
-    return p;
-  };
+    if (typeof o.read !== 'function') {
+        throw new OrthotoneError('INVALID_ARGUMENT', 'read must be a function (capture, sampleRate) => level in dB');
+    }
+    requireRange('rampSeconds', o.rampSeconds, 0, 10, 's');
+    requireRange('settleSeconds', o.settleSeconds, 0, 10, 's');
+    requireRange('captureSeconds', o.captureSeconds, 0.001, 10, 's');
+    if (o.settleSeconds < o.rampSeconds) {
+        throw new OrthotoneError('INVALID_ARGUMENT', `settleSeconds ${o.settleSeconds} s is shorter than rampSeconds ${o.rampSeconds} s: readings would catch the ramp; make settleSeconds at least the ramp plus the path latency`, o.settleSeconds);
+    }
+    const fs = o.node.sampleRate;
+    const frames = Math.max(1, Math.round(o.captureSeconds * fs));
+    const skipFrames = Math.round(o.settleSeconds * fs);
+    let chain = Promise.resolve();
+    const one = async (trims) => {
+        if (o.signal?.aborted)
+            throw abortedReading();
+        o.node.setTrims(trims, { rampSeconds: o.rampSeconds });
+        const cap = await abortable(o.capture.capture(frames, { skipFrames }), o.signal, abortedReading);
+        let level;
+        try {
+            level = o.read(cap, fs);
+        }
+        catch (e) {
+            throw new OrthotoneError('MEASUREMENT_FAILED', `the reading failed: ${e instanceof Error ? e.message : String(e)}`, e);
+        }
+        const bad = nonFinite(level);
+        if (bad !== null) {
+            throw new OrthotoneError('MEASUREMENT_FAILED', `the reading gave ${bad}, not a finite level in dB`, level);
+        }
+        return level;
+    };
+    return (trims) => {
+        const p = chain.then(() => one(trims));
+        chain = p.catch(() => undefined);
+        return p;
+    };
 }
 /** Describes the first non-finite level in a reading (a number or an object of numbers), or null. */
 function nonFinite(r) {
-  if (typeof r === 'number') return Number.isFinite(r) ? null : String(r);
-  if (r && typeof r === 'object') {
-    for (const [k, v] of Object.entries(r)) {
-      if (typeof v === 'number' && !Number.isFinite(v)) return `${k} = ${v}`;
+    if (typeof r === 'number')
+        return Number.isFinite(r) ? null : String(r);
+    if (r && typeof r === 'object') {
+        for (const [k, v] of Object.entries(r)) {
+            if (typeof v === 'number' && !Number.isFinite(v))
+                return `${k} = ${v}`;
+        }
+        return null;
     }
-    return null;
-  }
-  return String(r);
+    return String(r);
 }
 /** The rejection of a reading whose signal aborted. */
 function abortedReading() {
-  return new OrthotoneError('ABORTED', 'the reading was aborted');
+    return new OrthotoneError('ABORTED', 'the reading was aborted');
 }

@@ -36,10 +36,14 @@ function median(xs: number[]): number {
   return s.length % 2 ? s[m]! : (s[m - 1]! + s[m]!) / 2;
 }
 
-// One retry: a real page, audio thread and fake devices under a loaded CI machine fail rarely
-// (seen: 1 run in 4 on a clean clone) in ways not reproduced here; every assertion still has to
-// hold on the retry, and the failure text (the page's status line) is kept in the report.
-describe('demo page', { retry: 1 }, () => {
+// No retry. The rare failure that a retry hid (1 run in 4 in CI; 1 in 12 here, reproduced by running
+// the in-page multi-tone calibration 12 times in a row) was a real one: the correction filter designed
+// from the per-tone nulls (designCorrection, src/calibrate/multitone.ts) is a least-squares fit over
+// 300–3000 Hz only, nearly unconstrained elsewhere, so when noisy readings put curvature into the
+// fitted model its 31 taps blow up ("correction absolute tap sum 21.2 exceeds 16") and the node refuses
+// it. The readings differ from run to run because each capture starts at a different point of the
+// tones. The fix (a ridge raised until the tap sum is bounded) belongs to the calibration code.
+describe('demo page', () => {
   it('loads without console errors, shows the cautions, and designs a network', async () => {
     const { page, errors } = browser;
     await page.goto(`${base}/#design`);

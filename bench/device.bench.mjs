@@ -4,7 +4,8 @@
 //   median and 99th percentile, against a baseline measured in the same run: one bare `hello`
 //   line written and its answer read on the same port without the link (the transport's floor);
 // - readings per minute of a whole `calibrate --device --simulate --together` run (16 readings)
-//   with a 200 ms settle, against the bound 60000 / (200 ms + round trip).
+//   with a 200 ms settle, against the bound 60000 / (200 ms + round trip); the CLI's start-up
+//   (one `device trims` call, same run) is reported and taken out.
 import { execFileSync, spawn } from 'node:child_process';
 import { cpSync, mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -102,7 +103,12 @@ export async function run() {
     );
     const elapsedMs = performance.now() - t0;
     const readings = JSON.parse(out).runs[0].readings;
+    // the CLI's own start-up and link opening, measured in the same run: one `device trims` call
+    const s0 = performance.now();
+    execFileSync('node', ['dist/cli.js', 'device', dev.path, 'trims'], { encoding: 'utf8' });
+    const startupMs = performance.now() - s0;
     const perMinute = (readings / elapsedMs) * 60000;
+    const perMinuteRun = (readings / Math.max(1, elapsedMs - startupMs)) * 60000;
     const bound = 60000 / (200 + rtMedian);
     return {
       roundTrip: {
@@ -115,12 +121,14 @@ export async function run() {
         ratioToBaseline: r3(rtMedian / quantile(raw, 0.5)),
       },
       calibration: {
-        what: 'calibrate --device --simulate --together, 16 readings, 200 ms settle (includes CLI start-up)',
+        what: 'calibrate --device --simulate --together, budget 16 readings, 200 ms settle; the simulated analyzer renders and analyses each reading, which the bound leaves out',
         readings,
         elapsedMs: Math.round(elapsedMs),
         readingsPerMinute: Number(perMinute.toFixed(1)),
+        startupMs: Math.round(startupMs),
+        readingsPerMinuteWithoutStartup: Number(perMinuteRun.toFixed(1)),
         boundPerMinute: Number(bound.toFixed(1)),
-        ratioToBound: r3(perMinute / bound),
+        ratioToBound: r3(perMinuteRun / bound),
       },
     };
   } finally {

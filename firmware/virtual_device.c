@@ -18,12 +18,16 @@
  * --garbage-every N  a line of noise before every Nth answer (fault tests).
  * Signals: SIGUSR1 resets the device (state from --nvm, fresh greeting); SIGTERM/SIGINT end it.
  *
- * Trims are held as the firmware holds them in Q15 arithmetic: A = G·cos φ and B = G·sin φ in
- * Q2.14 (16384 = 1.0, so gains up to +6 dB fit), DC in Q15 counts; the kernel applies
- * Q' = A·Q + B·I, I' = I, then DC (DESIGN.md §4). A new set is ramped in linearly over 20 ms.
- * Networks arrive as Q15 coefficient codes; a new one runs in a spare slot and is cross-faded in
- * over 20 ms at a block boundary. Without a network, the tone sources come from a quadrature
- * oscillator (I = cos, Q = sin), as many firmwares make their test tones.
+ * Trims are held as the firmware holds them: A = G·cos φ and B = G·sin φ in Q(C-2) (q15: 16384
+ * = 1.0, so gains up to +6 dB fit), DC in output counts; Q' = A·Q + B·I, I' = I, then DC
+ * (DESIGN.md §4). A new set is ramped in linearly over 20 ms.
+ * Built inside a kit made by `orthotone firmware` (the Makefile then defines OTL_WITH_KIT), the
+ * device runs the kit itself: its compiled-in network and trim stage (ortho_process), its trim
+ * values (ortho_trims_from_units, converted back for the answers and the state file), its
+ * arithmetic and sample rate. Without a kit (the repository's firmware/ folder) it holds Q15
+ * trims of the same format and makes its tones with a quadrature oscillator (I = cos, Q = sin).
+ * Networks loaded over the link arrive as coefficient codes in the device's arithmetic; a new one
+ * runs in a spare slot and is cross-faded in over 20 ms at a block boundary.
  */
 #define _XOPEN_SOURCE 600
 #define _DEFAULT_SOURCE
@@ -40,6 +44,10 @@
 #include <unistd.h>
 
 #include "protocol.h"
+#ifdef OTL_WITH_KIT
+#include "ortho_host.h"
+#include "ortho_kit.h"
+#endif
 
 #define RATE_DEFAULT 48000u
 #define BLOCK 48
@@ -131,8 +139,28 @@ static void slot_run(slot_t *s, double x, double *oi, double *oq) {
 /* ---- the device ---------------------------------------------------------------------------- */
 
 typedef struct {
-  int16_t a, b, dci, dcq; /* trims as held: Q2.14, Q2.14, Q15, Q15 */
+  double a, b, dci, dcq; /* trims as held: integer codes in Q(C-2), Q(C-2), Q(IO-1) (float: values) */
 } trim_codes;
+
+/* Scale of the held trims (codes per unit) and the arithmetic, from the kit when there is one. */
+#ifdef OTL_WITH_KIT
+#if ORTHO_ARITH == ORTHO_ARITH_FLOAT
+static const double COEF_SCALE = 1, DC_SCALE = 1, RES_COEF = 1.0 / 8388608, RES_DC = 1.0 / 16777216;
+static const char *const ARITH = "float32";
+#else
+static const double COEF_SCALE = (double)(1L << (ORTHO_COEF_BITS - 3)) * 2.0;
+static const double DC_SCALE = (double)(1L << (ORTHO_IO_BITS - 2)) * 2.0;
+static const double RES_COEF = 1.0 / ((double)(1L << (ORTHO_COEF_BITS - 3)) * 2.0);
+static const double RES_DC = 1.0 / ((double)(1L << (ORTHO_IO_BITS - 2)) * 2.0);
+static const char *const ARITH = ORTHO_ARITH == ORTHO_ARITH_Q15 ? "q15" : "q31";
+#endif
+#else
+static const double COEF_SCALE = Q14, DC_SCALE = Q15, RES_COEF = 1.0 / Q14, RES_DC = 1.0 / Q15;
+static const char *const ARITH = "q15";
+#endif
+#ifdef OTL_WITH_KIT
+static ortho_t KIT; /* the kit's generator: compiled-in network and trim stage */
+#endif
 
 typedef struct {
   uint32_t rate;
@@ -187,10 +215,10 @@ static void dev_write(void *ctx, const char *bytes, size_t n) {
 static void dev_info(void *ctx, otl_info *in) {
   device_t *d = ctx;
   in->rate_hz = d->rate;
-  in->arith = "q15";
-  in->gain_res_db = 20.0 * log10(1.0 + 1.0 / Q14);
-  in->phase_res_deg = (1.0 / Q14) * 180.0 / M_PI;
-  in->dc_res = 1.0 / Q15;
+  in->arith = ARITH;
+  in->gain_res_db = 20.0 * log10(1.0 + RES_COEF);
+  in->phase_res_deg = RES_COEF * 180.0 / M_PI;
+  in->dc_res = RES_DC;
   in->gain_max_db = 6;
   in->phase_max_deg = 45;
   in->dc_max = 1;
@@ -200,20 +228,22 @@ static void dev_info(void *ctx, otl_info *in) {
   in->name = "orthotone-virtual";
 }
 
-static int16_t sat16(double x) {
+#ifndef OTL_WITH_KIT
+static double sat16(double x) {
   double r = floor(x + 0.5);
   if (r > 32767) r = 32767;
   if (r < -32767) r = -32767;
-  return (int16_t)r;
+  return r;
 }
+#endif
 
 /* Internal values back to the protocol's units. */
 static void codes_to_trims(const trim_codes *c, otl_trims *t) {
-  double a = c->a / Q14, b = c->b / Q14, g = sqrt(a * a + b * b);
+  double a = c->a / COEF_SCALE, b = c->b / COEF_SCALE, g = sqrt(a * a + b * b);
   t->gain_db = g > 0 ? 20.0 * log10(g) : -99;
   t->phase_deg = atan2(b, a) * 180.0 / M_PI;
-  t->dc_i = c->dci / Q15;
-  t->dc_q = c->dcq / Q15;
+  t->dc_i = c->dci / DC_SCALE;
+  t->dc_q = c->dcq / DC_SCALE;
 }
 
 static void write_state(device_t *d) {
@@ -239,10 +269,10 @@ static void write_state(device_t *d) {
 static void start_ramp(device_t *d) {
   double target[4];
   uint32_t len = d->rate * RAMP_MS / 1000u, k;
-  target[0] = d->trims.a / Q14;
-  target[1] = d->trims.b / Q14;
-  target[2] = d->trims.dci / Q15;
-  target[3] = d->trims.dcq / Q15;
+  target[0] = d->trims.a / COEF_SCALE;
+  target[1] = d->trims.b / COEF_SCALE;
+  target[2] = d->trims.dci / DC_SCALE;
+  target[3] = d->trims.dcq / DC_SCALE;
   for (k = 0; k < 4; k++) d->step[k] = (target[k] - d->cur[k]) / len;
   d->ramp_left = len;
 }
@@ -259,10 +289,23 @@ static otl_result dev_set_trims(void *ctx, const otl_trims *w, unsigned mask, ot
   g = pow(10.0, t.gain_db / 20.0);
   ph = t.phase_deg * M_PI / 180.0;
   /* all four codes change together, between blocks: the set is atomic */
+#ifdef OTL_WITH_KIT
+  {
+    ortho_trims_t kt;
+    (void)g;
+    (void)ph;
+    if (ortho_trims_from_units(&kt, t.gain_db, t.phase_deg, 0.0, t.dc_i, t.dc_q, 0) != 0) return OTL_E_RANGE;
+    d->trims.a = (double)kt.gain_cos;
+    d->trims.b = (double)kt.gain_sin;
+    d->trims.dci = (double)kt.dc_i;
+    d->trims.dcq = (double)kt.dc_q;
+  }
+#else
   d->trims.a = sat16(g * cos(ph) * Q14);
   d->trims.b = sat16(g * sin(ph) * Q14);
   d->trims.dci = sat16(t.dc_i * Q15);
   d->trims.dcq = sat16(t.dc_q * Q15);
+#endif
   start_ramp(d);
   codes_to_trims(&d->trims, applied);
   write_state(d);
@@ -381,7 +424,7 @@ static void power_on(device_t *d) {
   nvm_record r;
   FILE *f;
   memset(&d->trims, 0, sizeof d->trims);
-  d->trims.a = (int16_t)Q14;
+  d->trims.a = COEF_SCALE;
   d->lower = 0;
   d->src.kind = OTL_SRC_TONE;
   d->src.f1_hz = 1000;
@@ -404,11 +447,14 @@ static void power_on(device_t *d) {
     }
     fclose(f);
   }
-  d->cur[0] = d->trims.a / Q14;
-  d->cur[1] = d->trims.b / Q14;
-  d->cur[2] = d->trims.dci / Q15;
-  d->cur[3] = d->trims.dcq / Q15;
+  d->cur[0] = d->trims.a / COEF_SCALE;
+  d->cur[1] = d->trims.b / COEF_SCALE;
+  d->cur[2] = d->trims.dci / DC_SCALE;
+  d->cur[3] = d->trims.dcq / DC_SCALE;
   d->ramp_left = 0;
+#ifdef OTL_WITH_KIT
+  ortho_init(&KIT);
+#endif
   write_state(d);
 }
 
@@ -441,42 +487,104 @@ static double next_input(device_t *d, double *osc_q) {
   return x;
 }
 
-static void run_block(device_t *d, float *out, int n) {
+#ifdef OTL_WITH_KIT
+/* The kit's own path for one block: its compiled-in network and trim stage, with the ramped trims
+ * rounded to the kit's values once per block (the kit applies them from the next sample). */
+static void kit_block(device_t *d, const double *x, double *bi, double *bq, int n) {
+  ortho_sample_t in[BLOCK], oi[BLOCK], oq[BLOCK];
+  ortho_trims_t kt;
   int k;
+  ortho_trims_neutral(&kt);
+#if ORTHO_ARITH == ORTHO_ARITH_FLOAT
+  kt.gain_cos = (float)d->cur[0];
+  kt.gain_sin = (float)d->cur[1];
+  kt.dc_i = (float)d->cur[2];
+  kt.dc_q = (float)d->cur[3];
+#else
+  kt.gain_cos = (ortho_coef_t)floor(d->cur[0] * COEF_SCALE + 0.5);
+  kt.gain_sin = (ortho_coef_t)floor(d->cur[1] * COEF_SCALE + 0.5);
+  kt.dc_i = (ortho_sample_t)floor(d->cur[2] * DC_SCALE + 0.5);
+  kt.dc_q = (ortho_sample_t)floor(d->cur[3] * DC_SCALE + 0.5);
+#endif
+  kt.lower_sideband = d->lower;
+  ortho_set_trims(&KIT, &kt);
+  for (k = 0; k < n; k++) in[k] = ortho_sample_from_full_scale(x[k]);
+  ortho_process(&KIT, in, oi, oq, (size_t)n);
   for (k = 0; k < n; k++) {
-    double oq_osc, x = next_input(d, &oq_osc), i, q, i2, q2, w;
-    if (d->active >= 0) slot_run(&d->slots[d->active], x, &i, &q);
-    else {
-      i = x;
-      q = oq_osc;
+    bi[k] = ortho_sample_to_full_scale(oi[k]);
+    bq[k] = ortho_sample_to_full_scale(oq[k]);
+  }
+}
+#endif
+
+static void ramp_step(device_t *d) {
+  int j;
+  if (d->ramp_left == 0) return;
+  for (j = 0; j < 4; j++) d->cur[j] += d->step[j];
+  if (--d->ramp_left == 0) {
+    d->cur[0] = d->trims.a / COEF_SCALE;
+    d->cur[1] = d->trims.b / COEF_SCALE;
+    d->cur[2] = d->trims.dci / DC_SCALE;
+    d->cur[3] = d->trims.dcq / DC_SCALE;
+  }
+}
+
+/* Sideband and trims on a slot's (or the oscillator's) output. */
+static void trim(const device_t *d, double i, double q, double *oi, double *oq) {
+  if (d->lower) q = -q;
+  *oi = i + d->cur[2];
+  *oq = d->cur[0] * q + d->cur[1] * i + d->cur[3];
+}
+
+static void run_block(device_t *d, float *out, int n) {
+  double x[BLOCK], osc[BLOCK], bi[BLOCK], bq[BLOCK];
+  int k, builtin_needed = d->active < 0 || d->fading_from == -2;
+  for (k = 0; k < n; k++) x[k] = next_input(d, &osc[k]);
+  if (builtin_needed) {
+#ifdef OTL_WITH_KIT
+    kit_block(d, x, bi, bq, n);
+#else
+    for (k = 0; k < n; k++) {
+      bi[k] = x[k];
+      bq[k] = osc[k];
+    }
+#endif
+  }
+  for (k = 0; k < n; k++) {
+    double i, q, i2 = 0, q2 = 0, w;
+    /* the built-in path: the kit trims its own output; the oscillator is trimmed here */
+#ifdef OTL_WITH_KIT
+    const int builtin_trimmed = 1;
+#else
+    const int builtin_trimmed = 0;
+#endif
+    if (d->active >= 0) {
+      slot_run(&d->slots[d->active], x[k], &i, &q);
+      trim(d, i, q, &i, &q);
+    } else if (builtin_trimmed) {
+      i = bi[k];
+      q = bq[k];
+    } else {
+      trim(d, bi[k], bq[k], &i, &q);
     }
     if (d->fading_from != -1) {
-      if (d->fading_from >= 0) slot_run(&d->slots[d->fading_from], x, &i2, &q2);
-      else {
-        i2 = x;
-        q2 = oq_osc;
+      if (d->fading_from >= 0) {
+        slot_run(&d->slots[d->fading_from], x[k], &i2, &q2);
+        trim(d, i2, q2, &i2, &q2);
+      } else if (builtin_trimmed) {
+        i2 = bi[k];
+        q2 = bq[k];
+      } else {
+        trim(d, bi[k], bq[k], &i2, &q2);
       }
       w = (double)d->fade_pos / d->fade_len;
       i = w * i + (1 - w) * i2;
       q = w * q + (1 - w) * q2;
       if (++d->fade_pos >= d->fade_len) d->fading_from = -1;
     }
-    if (d->lower) q = -q;
-    if (d->ramp_left > 0) {
-      int j;
-      for (j = 0; j < 4; j++) d->cur[j] += d->step[j];
-      if (--d->ramp_left == 0) {
-        d->cur[0] = d->trims.a / Q14;
-        d->cur[1] = d->trims.b / Q14;
-        d->cur[2] = d->trims.dci / Q15;
-        d->cur[3] = d->trims.dcq / Q15;
-      }
-    }
-    {
-      double qo = d->cur[0] * q + d->cur[1] * i;
-      out[2 * k] = (float)(i + d->cur[2]);
-      out[2 * k + 1] = (float)(qo + d->cur[3]);
-    }
+    ramp_step(d);
+    out[2 * k] = (float)i;
+    out[2 * k + 1] = (float)q;
   }
 }
 
@@ -538,6 +646,13 @@ int main(int argc, char **argv) {
     else return usage();
     i++;
   }
+#ifdef OTL_WITH_KIT
+  if (D.rate != RATE_DEFAULT && D.rate != ORTHO_SAMPLE_RATE_HZ) {
+    fprintf(stderr, "virtual-device: this kit runs at %ld Hz (--rate cannot change it)\n", (long)ORTHO_SAMPLE_RATE_HZ);
+    return 2;
+  }
+  D.rate = ORTHO_SAMPLE_RATE_HZ;
+#endif
   if (D.rate < 8000 || D.rate > 384000) return usage();
   if (D.input_path && !(D.input = fopen(D.input_path, "rb"))) {
     fprintf(stderr, "virtual-device: cannot read --input %s: %s\n", D.input_path, strerror(errno));

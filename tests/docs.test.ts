@@ -263,8 +263,8 @@ const MEMBER_ALLOW_LIST: ReadonlyMap<string, string> = new Map([
   ['src/webaudio/runtime.ts#RunningGenerator.setSideband', WORKLET_INTERNAL],
   ['src/webaudio/runtime.ts#RunningGenerator.withCorrection', WORKLET_INTERNAL],
   ['src/webaudio/runtime.ts#RunningGenerator.reset', WORKLET_INTERNAL],
-  ['src/webaudio/runtime.ts#BlockSource.fill', WORKLET_INTERNAL],
-  ['src/webaudio/runtime.ts#BlockSource.reset', WORKLET_INTERNAL],
+  ['src/webaudio/test-source.ts#BlockSource.fill', WORKLET_INTERNAL],
+  ['src/webaudio/test-source.ts#BlockSource.reset', WORKLET_INTERNAL],
   ['src/webaudio/trim-reader.ts#TrimReaderOptions.read', CALLBACK],
 ]);
 

@@ -22,11 +22,13 @@ import {
   createVirtualExciter,
   drawDevice,
   type ExciterModel,
+  liveGuard,
   type MultitoneResult,
   measureSideband,
   measureTones,
   type SidebandReading,
   TOLERANCE_PRESETS,
+  TRIM_LIMITS,
   type Trims,
 } from 'orthotone';
 import { type Running, workletUrl } from './engine.js';
@@ -35,6 +37,8 @@ import { type Running, workletUrl } from './engine.js';
 export interface Levels {
   sidebandDb: number;
   carrierDb: number;
+  /** The wanted tone, dBFS, when the reading knows it (live readings: the guard checks it). */
+  wantedDbfs?: number;
 }
 
 /** Samples a virtual reading analyses after the exciter has settled (measure/ picks the frames). */
@@ -156,7 +160,7 @@ export function audioReader(
 ): (cap: { channels: Float32Array[] }, sampleRate: number) => Levels {
   return (cap, fs) => {
     const r = readReceiverAudio(cap.channels[0]!, fs, opts);
-    return { sidebandDb: r.unwantedDbc, carrierDb: r.carrierDbc };
+    return { sidebandDb: r.unwantedDbc, carrierDb: r.carrierDbc, wantedDbfs: r.wanted.levelDbfs };
   };
 }
 
@@ -199,6 +203,12 @@ export interface RunOptions {
   captureSeconds: number;
   signal?: AbortSignal;
   onReading?: (step: RunStep) => void;
+  /**
+   * Live runs: the largest move of each trim from the start (gain dB, phase °, DC full scale); every
+   * setting the seeker asks for stays inside. And the guard: stop when the wanted tone is missing
+   * or too weak, or a reading is NaN (liveGuard).
+   */
+  live?: { gainDb: number; phaseDeg: number; dc: number; minWantedDbfs: number };
 }
 
 /**
@@ -246,14 +256,35 @@ export async function runCalibration(o: RunOptions): Promise<CalibrationRun> {
     signal: o.signal,
   });
   const startTrims: Trims = node.getTrims();
+  const around = (x: number, r: number, lim: number): [number, number] => [
+    Math.max(-lim, x - r),
+    Math.min(lim, x + r),
+  ];
+  const live = o.live;
   const result = await calibrateSidebandAndCarrier({
     measure,
     start: startTrims,
+    ...(live
+      ? {
+          bounds: {
+            gainDb: around(startTrims.gainDb, live.gainDb, TRIM_LIMITS.gainDb),
+            phaseDeg: around(startTrims.phaseDeg, live.phaseDeg, TRIM_LIMITS.phaseDeg),
+            dcI: around(startTrims.dcI, live.dc, TRIM_LIMITS.dc),
+            dcQ: around(startTrims.dcQ, live.dc, TRIM_LIMITS.dc),
+          },
+          check: liveGuard(live.minWantedDbfs),
+        }
+      : {}),
     noiseDb: o.noiseDb,
     maxReadings: o.maxReadings,
     signal: o.signal,
     onReading: (step) => o.onReading?.({ ...step, waitedMs: t.waits[t.waits.length - 1] ?? Number.NaN }),
   });
+  if (result.refusal !== undefined) {
+    // Nothing a refused run read can be trusted: back to the trims in force before it.
+    node.setTrims(startTrims, { rampSeconds: 0.01 });
+    throw new Error(`Stopped: ${result.refusal}.`);
+  }
   const first = result.sideband.history[0];
   const firstCarrier = result.carrier.history[0];
   node.setTrims(result.trims, { rampSeconds: 0.01 });

@@ -85,6 +85,11 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
     { id: 'cal-rxside' },
   );
   const settle = numberInput(400, { min: 20, step: 10, id: 'cal-settle' });
+  // Live guards: how far each trim may move from where it starts, and the weakest usable tone.
+  const rangeGain = numberInput(1, { min: 0.01, max: 6, step: 0.1, id: 'cal-range-gain' });
+  const rangePhase = numberInput(5, { min: 0.01, max: 45, step: 0.5, id: 'cal-range-phase' });
+  const rangeDc = numberInput(0.05, { min: 0.0001, max: 1, step: 0.01, id: 'cal-range-dc' });
+  const minWanted = numberInput(-60, { min: -120, max: 0, step: 1, id: 'cal-min-wanted' });
   const readBtn = h('button', { class: 'secondary', id: 'cal-read' }, 'Read the receiver once');
   const readStatus = statusLine('cal-read-status');
   const liveBox = h(
@@ -97,6 +102,14 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
     ),
     field('Receiver mode', rxSide, 'relative to the carrier'),
     field('Settle between readings, ms', settle, 'sound card round trip + receiver AGC'),
+    field('Gain may move by, dB', rangeGain, 'from where it starts; every setting stays inside'),
+    field('Phase may move by, °', rangePhase, 'from where it starts'),
+    field('DC may move by, full scale', rangeDc, 'from where it starts'),
+    field(
+      'Stop if the wanted tone is below, dBFS',
+      minWanted,
+      'no receiver signal: stop, do not drive the trims',
+    ),
     h(
       'p',
       { class: 'hint' },
@@ -465,12 +478,18 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
     const cb: number[] = [];
     conv.setData([], [[], [], [], []]);
     let stopLive: (() => void) | null = null;
+    let restore: (() => void) | undefined;
     try {
       const toneHz = Number(tone.value);
       const live = mode.value === 'live';
       const liveOpts = live ? liveOptions(toneHz) : null;
       await engine.setSource({ kind: 'tone', frequencyHz: toneHz });
       const running = engine.running ?? (await engine.start());
+      const before = running.node.getTrims();
+      restore = () => {
+        running.node.setTrims(before, { rampSeconds: 0.01 });
+        onTrims(before);
+      };
       const fs = running.ctx.sampleRate;
       let capture = running.iq;
       let read: Parameters<typeof runCalibration>[0]['read'];
@@ -500,6 +519,16 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
         read,
         maxReadings: Number(budget.value),
         noiseDb: 0.3,
+        ...(liveOpts
+          ? {
+              live: {
+                gainDb: Number(rangeGain.value),
+                phaseDeg: Number(rangePhase.value),
+                dc: Number(rangeDc.value),
+                minWantedDbfs: Number(minWanted.value),
+              },
+            }
+          : {}),
         settleSeconds,
         captureSeconds,
         signal: ac.signal,
@@ -574,7 +603,12 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
       );
       return r;
     } catch (e) {
-      say(e instanceof Error ? e.message : String(e), true);
+      restore?.();
+      const why = e instanceof Error ? e.message : String(e);
+      say(
+        `${why}${restore ? ' The trims in force before the run are restored; fix the cause and press Calibrate again.' : ''}`,
+        true,
+      );
       return undefined;
     } finally {
       stopLive?.();
@@ -585,12 +619,20 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
   async function runMulti(): Promise<MultitoneRun | undefined> {
     const ac = beginRun();
     band.setData([], [[], [], []]);
+    let restore: (() => Promise<void>) | undefined;
     try {
       const net = engine.network;
       const tonesHz = logTones(net.band, CAL_TONES);
       const verifyHz = logTones(net.band, CHECK_TONES);
       bandView = [net.band[0] / 1.1, net.band[1] * 1.1];
       const running = engine.running ?? (await engine.start());
+      const before = running.node.getTrims();
+      const correctionBefore = engine.correction;
+      restore = async () => {
+        running.node.setTrims(before, { rampSeconds: 0.01 });
+        onTrims(before);
+        await engine.setCorrection(correctionBefore);
+      };
       const model = virtualDevice(bench.value, Number(seed.value));
       const r = await runMultitoneCalibration({
         running,
@@ -661,7 +703,12 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
       );
       return r;
     } catch (e) {
-      say(e instanceof Error ? e.message : String(e), true);
+      await restore?.().catch(() => {});
+      const why = e instanceof Error ? e.message : String(e);
+      say(
+        `${why}${restore ? ' The trims and correction in force before the run are restored; try again, or a longer budget.' : ''}`,
+        true,
+      );
       return undefined;
     } finally {
       busy(false);
@@ -669,6 +716,14 @@ export function calibrationPanel(engine: Engine, onTrims: (t: Trims) => void): {
   }
 
   function save(what: 'json' | 'c'): void {
+    try {
+      saveProfile(what);
+    } catch (e) {
+      say(e instanceof Error ? e.message : String(e), true);
+    }
+  }
+
+  function saveProfile(what: 'json' | 'c'): void {
     if (!last) return;
     const p = createProfile({
       sampleRate: engine.network.sampleRate,

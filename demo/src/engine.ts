@@ -2,7 +2,7 @@
  * The page's audio engine: one AudioContext at the network's sample rate, the orthotone generator
  * node (left I, right Q) feeding the sound card through an output switch, and a capture node on the
  * generator's output for the monitor and the in-page virtual exciter. The processor module is the
- * library's own worklet (src/webaudio/processor.ts), bundled by Vite as a separate module.
+ * package's worklet entry, imported as a user's page would (`orthotone/worklet?url`).
  */
 import {
   type CaptureNode,

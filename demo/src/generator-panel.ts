@@ -106,6 +106,9 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
     { id: 'gen-sideband' },
   );
   const status = statusLine('gen-status');
+  // Errors from the source settings and the correction filter show beside those controls.
+  const srcStatus = statusLine('gen-source-status');
+  const corrStatus = statusLine('gen-corr-status');
   const sliders = new Map<keyof Trims, { input: HTMLInputElement; out: HTMLOutputElement }>();
   const trimRows = TRIM_CONTROLS.map((c) => {
     const id = `gen-trim-${c.name}`;
@@ -133,6 +136,7 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
     { hidden: true },
     h('label', { class: 'check' }, corrOn, ' Run it (untick to compare without)'),
     corrRemove,
+    corrStatus.el,
     h(
       'p',
       { class: 'hint' },
@@ -239,6 +243,7 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
             h('div', { class: 'level' }, level, levelOut),
           ),
           field('Sideband', sideband),
+          srcStatus.el,
         ),
         h(
           'fieldset',
@@ -323,6 +328,8 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
   engine.onSource(showSource);
 
   const report = (e: unknown) => status.fail(e instanceof Error ? e.message : String(e));
+  const reportIn = (line: typeof status) => (e: unknown) =>
+    line.fail(e instanceof Error ? e.message : String(e));
   const ok = (text: string) => status.say(text);
 
   startBtn.addEventListener('click', async () => {
@@ -369,19 +376,22 @@ export function generatorPanel(engine: Engine): GeneratorPanel {
   });
   corrOn.addEventListener('change', () => {
     const c = engine.correction;
-    if (c) engine.setCorrection({ ...c, on: corrOn.checked }).catch(report);
+    if (c) engine.setCorrection({ ...c, on: corrOn.checked }).catch(reportIn(corrStatus));
   });
-  corrRemove.addEventListener('click', () => engine.setCorrection(null).catch(report));
+  corrRemove.addEventListener('click', () => engine.setCorrection(null).catch(reportIn(corrStatus)));
   outputBox.addEventListener('change', () => engine.setOutput(outputBox.checked));
   for (const c of [kind, f1, f2]) {
-    c.addEventListener('change', () => engine.setSource(source()).catch(report));
+    c.addEventListener('change', () => {
+      srcStatus.clear();
+      engine.setSource(source()).catch(reportIn(srcStatus));
+    });
   }
   level.addEventListener('input', () => {
     levelOut.textContent = `${level.value} dBFS`;
     engine.setLevel(Number(level.value));
   });
   sideband.addEventListener('change', () =>
-    engine.setSideband(sideband.value as 'upper' | 'lower').catch(report),
+    engine.setSideband(sideband.value as 'upper' | 'lower').catch(reportIn(srcStatus)),
   );
 
   function resetTrims(): void {

@@ -68,6 +68,18 @@ export function carrierAxes(toneAmplitude?: number, hw: HardwareTrimOptions = {}
  * @returns as {@link calibrateSideband}; `diagnosis` holds TRIM_INACTIVE when DC does not reach
  *   the output (AC coupling).
  * @throws {OrthotoneError} INVALID_ARGUMENT for bad options.
+ * @example
+ * ```ts
+ * import { calibrateCarrier, createAnalyzer, createVirtualExciter, homebrewBenchDevice } from 'orthotone';
+ *
+ * // An invented bench: a virtual hand-built exciter read by a simulated analyzer (on a real bench,
+ * // `measure` sets the trims on the exciter and reads a receiver or a spectrum analyzer).
+ * const exciter = createVirtualExciter(homebrewBenchDevice(), { sampleRate: 48000, seed: 1 });
+ * const analyzer = createAnalyzer(exciter, { seed: 2, noiseDb: 0.2 });
+ * // A half-scale tone (peak 0.5): the carrier is read relative to it.
+ * const r = await calibrateCarrier({ measure: (t) => analyzer.readCarrier(1000, t, 0.5), toneAmplitude: 0.5, maxReadings: 40 });
+ * console.log(`carrier ${r.startLevelDb.toFixed(1)} -> ${r.levelDb.toFixed(1)} dBc, dcI ${r.trims.dcI.toFixed(5)}, dcQ ${r.trims.dcQ.toFixed(5)}`);
+ * ```
  */
 export async function calibrateCarrier(options: CarrierCalibrationOptions): Promise<TrimCalibrationResult> {
   if (options.toneAmplitude !== undefined) requireRange('toneAmplitude', options.toneAmplitude, 1e-6, 4);

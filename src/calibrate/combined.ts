@@ -10,7 +10,7 @@ import type { Trims } from '../core/trims.js';
 import { requireRange } from '../core/validate.js';
 import { type CarrierCalibrationOptions, carrierAxes } from './carrier.js';
 import type { NullSeekerState, StopReason } from './null-seeker.js';
-import { functionSource, runSession, type SavedSeeker, type Seeker } from './session.js';
+import { functionSource, type liveGuard, runSession, type SavedSeeker, type Seeker } from './session.js';
 import { sidebandAxes } from './sideband.js';
 import {
   type CalibrationStep,
@@ -37,6 +37,14 @@ export interface CombinedCalibrationOptions
   onReading?: (step: CalibrationStep & { carrierDb: number }) => void;
   /** States saved from an interrupted run. */
   resume?: { sideband: NullSeekerState; carrier: NullSeekerState };
+  /**
+   * A guard run on every reading (e.g. {@link liveGuard}): a message stops the run, keeping the best
+   * trims so far; the result then carries it as `refusal`.
+   * @throws never (return the message instead).
+   */
+  check?: (levels: BothLevels, trims: Trims) => string | undefined;
+  /** Time allowed for one reading, seconds (it fails after that). Default: none. */
+  timeoutSeconds?: number;
 }
 
 /** Result of {@link calibrateSidebandAndCarrier}. */
@@ -47,6 +55,8 @@ export interface CombinedCalibrationResult {
   carrier: TrimCalibrationResult;
   /** `measure` calls (each served both). */
   readings: number;
+  /** Why the run was refused by its guard (`check`), when it was. */
+  refusal?: string;
 }
 
 /**
@@ -251,13 +261,34 @@ export function createCombinedSeeker(
  * @returns the combined trims and each calibration's result; `readings` counts `measure` calls,
  *   never more than `maxReadings`.
  * @throws {OrthotoneError} INVALID_ARGUMENT for bad options.
+ * @example
+ * ```ts
+ * import { calibrateSidebandAndCarrier, createAnalyzer, createVirtualExciter, homebrewBenchDevice } from 'orthotone';
+ *
+ * // An invented bench: a virtual hand-built exciter read by a simulated analyzer (on a real bench,
+ * // `measure` sets the trims on the exciter and reads a receiver or a spectrum analyzer).
+ * const exciter = createVirtualExciter(homebrewBenchDevice(), { sampleRate: 48000, seed: 1 });
+ * const analyzer = createAnalyzer(exciter, { seed: 2, noiseDb: 0.2 });
+ * const r = await calibrateSidebandAndCarrier({
+ *   measure: (t) => {
+ *     const { sidebandDbc, carrierDbc } = analyzer.readBoth(1000, t, 0.5);
+ *     return { sidebandDb: sidebandDbc, carrierDb: carrierDbc };
+ *   },
+ *   toneAmplitude: 0.5,
+ *   maxReadings: 80,
+ * });
+ * console.log(r.trims, `${r.readings} readings`);
+ * ```
  */
 export async function calibrateSidebandAndCarrier(
   options: CombinedCalibrationOptions,
 ): Promise<CombinedCalibrationResult> {
   const core = createCombinedSeeker(options);
-  const session = await runSession(core, functionSource(options.measure), {
+  const source = functionSource(options.measure);
+  const check = options.check;
+  const session = await runSession(core, check ? { ...source, check } : source, {
     signal: options.signal,
+    timeoutSeconds: options.timeoutSeconds,
     maxReadings: options.maxReadings,
     onReading: (h) => {
       options.onReading?.({
@@ -272,5 +303,6 @@ export async function calibrateSidebandAndCarrier(
       });
     },
   });
-  return core.result(session.lastError);
+  const r = core.result(session.lastError);
+  return session.refusal !== undefined ? { ...r, refusal: session.refusal } : r;
 }

@@ -11,21 +11,21 @@
  * centred on the mean null) spends about 60% of the budget; then the per-tone fits, refined with the
  * rest of the budget by jumps and ring probes around the tone whose null is least certain.
  *
- * Correction design: with trims zero, the corrected Q of a tone at ω has the phasor
- * `e^{jωD}·(−j·H_QQ(ω) + H_QI(ω))`, D = (L−1)/2, while the ideal correction is
- * `Q' = α(ω)·Q + β(ω)·I` with `α + jβ = G(ω)·e^{jφ(ω)}`. Taking `H_QQ = α·e^{−jωD}` and
- * `H_QI = β·e^{−jωD}` in the form `e^{−jωD}·(C(ω) − j·S(ω))` (cosine series from symmetric taps,
- * sine series from antisymmetric ones) and fitting α and β by least squares over the band gives
- * the pair: `α = C_QQ + S_QI`, `β = C_QI − S_QQ`. References: widely-linear frequency-selective I/Q correction, Anttila,
- * Valkama & Renfors, IEEE TCAS-II 55(4), Apr 2008; delay-based compensation of frequency-dependent
- * imbalance, Kiss & Prodanov, IEEE TCAS-I 51(6), 2004; least-squares FIR design on a frequency
- * grid, Parks & Burrus, Digital Filter Design (1987), ch. 3.
+ * The correction FIR pair is designed in design/correction.ts (FIR design; references there).
+ * Delay-based compensation of frequency-dependent imbalance: Kiss & Prodanov, IEEE TCAS-I 51(6), 2004.
  */
 import { OrthotoneError } from '../core/errors.js';
+import { weightedLeastSquares } from '../core/small-linear.js';
 import type { Correction, Trims } from '../core/trims.js';
 import { ZERO_TRIMS } from '../core/trims.js';
-import { degToRad, radToDeg } from '../core/units.js';
+import { degToRad } from '../core/units.js';
 import { requireFinite, requireInteger, requirePositive, requireSampleRate } from '../core/validate.js';
+import {
+  designCorrection,
+  equivalentTrims,
+  evaluateImbalanceModel,
+  type ImbalanceModel,
+} from '../design/correction.js';
 import { createNullSeeker, type NullSeeker, type StopReason } from './null-seeker.js';
 import {
   fitNullSurface,
@@ -34,9 +34,18 @@ import {
   type SurfacePoint,
   surfaceDb,
 } from './quadratic-fit.js';
-import { functionSource, runSession, type SavedSeeker, type Seeker } from './session.js';
+import {
+  functionSource,
+  type ReadingSource,
+  runSession,
+  type SavedSeeker,
+  type Seeker,
+  type TrimApplier,
+} from './session.js';
 import { SIDEBAND_CURVATURE, sidebandPoint, sidebandTrims } from './sideband.js';
-import { weightedLeastSquares } from './small-linear.js';
+
+// The correction's design and evaluation live in design/correction.ts (FIR design is design's job).
+export { designCorrection, equivalentTrims, evaluateImbalanceModel, type ImbalanceModel };
 
 /** Options of {@link calibrateMultitone}. */
 export interface MultitoneOptions {
@@ -68,6 +77,20 @@ export interface MultitoneOptions {
   verifyReadings?: number;
   signal?: AbortSignal;
   onReading?: (step: { index: number; trims: Trims; levelsDb: number[] }) => void;
+  /**
+   * Where the search's readings come from, instead of `measure` (a typed prompt or a command from
+   * the CLI: it may answer retry, undo or stop). `measure` still serves the verification.
+   */
+  source?: ReadingSource<readonly number[]>;
+  /** Sets the trims before each reading of the search (a device). Default: the source does. */
+  applier?: TrimApplier;
+  /** Time allowed for one reading of the search, seconds. Default: none. */
+  timeoutSeconds?: number;
+  /**
+   * Called when a reading failed (before it is retried).
+   * @throws anything: passed on as the calibration's rejection.
+   */
+  onFailure?: (error: unknown, index: number) => void;
 }
 
 /** The fitted null of one tone. */
@@ -80,18 +103,6 @@ export interface ToneOptimum {
   uncertainty: number;
   /** Fitted floor of this tone's readings, dBc. */
   floorDb: number;
-}
-
-/** Smooth model of the required correction versus frequency. */
-export interface ImbalanceModel {
-  /** `gainDb(f) = g0 + g1·(f/f0)² + g2·(f0/f)²` coefficients, dB. */
-  gainDb: [number, number, number];
-  /** `phase(f) = p0 + p1·f + p2/f` coefficients (rad, rad/Hz, rad·Hz). */
-  phase: [number, number, number];
-  /** Reference frequency f0, Hz (geometric centre of the tones). */
-  f0: number;
-  /** The linear-phase term as the channel skew it compensates: Q lagging I by this, seconds. */
-  skewSeconds: number;
 }
 
 /** Readings at the calibration tones with the designed correction applied. */
@@ -135,71 +146,10 @@ export interface MultitoneResult {
   readings: number;
   history: { index: number; trims: Trims; levelsDb: number[] }[];
   stopReason: StopReason;
+  /** Set when the search ended early: a person quit, the input ended, it was aborted or readings kept failing. */
+  cutShort?: 'quit' | 'end-of-input' | 'aborted' | 'failed' | 'refused';
   /** The final check with the correction applied (absent when skipped or the run was aborted). */
   verification?: MultitoneVerification;
-}
-
-/**
- * Evaluates an imbalance model: the gain and phase trim that nulls a tone at `hz` (Hz, > 0).
- * @returns `{ gainDb, phaseDeg }` in dB and degrees (non-finite at `hz` = 0).
- * @throws never
- */
-export function evaluateImbalanceModel(m: ImbalanceModel, hz: number): { gainDb: number; phaseDeg: number } {
-  const r = hz / m.f0;
-  return {
-    gainDb: m.gainDb[0] + m.gainDb[1] * r * r + m.gainDb[2] / (r * r),
-    phaseDeg: radToDeg(m.phase[0] + m.phase[1] * hz + m.phase[2] / hz),
-  };
-}
-
-/**
- * The gain and phase trim a correction (after `trims`) is equivalent to for a tone at `hz`: the
- * whole path at that one frequency, so a model that knows only scalar trims can evaluate it.
- * @param correction the FIR pair (or undefined for none).
- * @param trims the trims before it (gain and phase used).
- * @param hz tone frequency, Hz.
- * @param sampleRate Hz.
- * @returns trims with gainDb in dB and phaseDeg in degrees; the other trims as given.
- * Method: the correction's FIR pair evaluated at one frequency (see the file header).
- * @throws never (the correction is not re-validated: give one that passed `validateCorrection`).
- */
-export function equivalentTrims(
-  correction: Correction | undefined,
-  trims: Partial<Trims>,
-  hz: number,
-  sampleRate: number,
-): Trims {
-  const t = { ...ZERO_TRIMS, ...trims };
-  if (!correction) return t;
-  const w = (2 * Math.PI * hz) / sampleRate;
-  const g = 10 ** (t.gainDb / 20);
-  const p = degToRad(t.phaseDeg);
-  // Q' = a0·Q + b0·I; phasor of Q' = −j·a0 + b0 (I = cos, Q = sin).
-  const a0 = g * Math.cos(p);
-  const b0 = g * Math.sin(p);
-  const d = (correction.qFromQ.length - 1) / 2;
-  let hqRe = 0;
-  let hqIm = 0;
-  let hiRe = 0;
-  let hiIm = 0;
-  for (let k = 0; k < correction.qFromQ.length; k++) {
-    const c = Math.cos(w * (k - d));
-    const s = -Math.sin(w * (k - d));
-    hqRe += correction.qFromQ[k]! * c;
-    hqIm += correction.qFromQ[k]! * s;
-    hiRe += correction.qFromI[k]! * c;
-    hiIm += correction.qFromI[k]! * s;
-  }
-  // X = H_QQ·(b0 − j·a0) + H_QI (I' = I has phasor 1), delay D removed.
-  const xRe = hqRe * b0 + hqIm * a0 + hiRe;
-  const xIm = hqIm * b0 - hqRe * a0 + hiIm;
-  const alpha = -xIm;
-  const beta = xRe;
-  return {
-    ...t,
-    gainDb: 20 * Math.log10(Math.hypot(alpha, beta)),
-    phaseDeg: radToDeg(Math.atan2(beta, alpha)),
-  };
 }
 
 /**
@@ -234,70 +184,6 @@ export function fitImbalanceModel(tones: readonly ToneOptimum[]): ImbalanceModel
   const g = [gs?.[0] ?? 0, gs?.[1] ?? 0, gs?.[2] ?? 0] as [number, number, number];
   const p = [ps?.[0] ?? 0, (ps?.[1] ?? 0) / f0, (ps?.[2] ?? 0) * f0] as [number, number, number];
   return { gainDb: g, phase: p, f0, skewSeconds: p[1] / (2 * Math.PI) };
-}
-
-/**
- * Designs the correction FIR pair realising a model over a band, by least squares on a grid.
- * @param model gain and phase versus frequency.
- * @param band [lo, hi] Hz.
- * @param sampleRate Hz.
- * @param taps odd length.
- * @throws {OrthotoneError} INVALID_ARGUMENT for an even or too short length or a bad band.
- */
-export function designCorrection(
-  model: ImbalanceModel,
-  band: readonly [number, number],
-  sampleRate: number,
-  taps: number,
-): Correction {
-  requireSampleRate(sampleRate);
-  requireInteger('taps', taps, 1, 255);
-  if (taps % 2 === 0) throw new OrthotoneError('INVALID_ARGUMENT', `taps ${taps} must be odd`, taps);
-  const [lo, hi] = band;
-  if (!(lo > 0 && hi > lo && hi < sampleRate / 2)) {
-    throw new OrthotoneError('INVALID_ARGUMENT', `band [${lo}, ${hi}] Hz must satisfy 0 < lo < hi < fs/2`);
-  }
-  const m = (taps - 1) / 2;
-  const grid = 128;
-  const rows: number[][] = [];
-  const ya: number[] = [];
-  const yb: number[] = [];
-  for (let i = 0; i < grid; i++) {
-    // Log-spaced grid: the band spans a decade and errors matter equally per octave.
-    const f = lo * (hi / lo) ** (i / (grid - 1));
-    const w = (2 * Math.PI * f) / sampleRate;
-    const row: number[] = [];
-    for (let k = 0; k <= m; k++) row.push(Math.cos(k * w));
-    for (let k = 1; k <= m; k++) row.push(Math.sin(k * w));
-    rows.push(row);
-    const e = evaluateImbalanceModel(model, f);
-    const G = 10 ** (e.gainDb / 20);
-    const ph = degToRad(e.phaseDeg);
-    ya.push(G * Math.cos(ph));
-    yb.push(G * Math.sin(ph));
-  }
-  const ones = rows.map(() => 1);
-  const n = 2 * m + 1;
-  // α = A_c + B_s and β = B_c − A_s (cosine parts from symmetric taps, sine parts from
-  // antisymmetric taps); a light ridge keeps the series bounded outside the band.
-  const ca =
-    weightedLeastSquares(rows, ya, ones, n, 1e-10) ?? Float64Array.from({ length: n }, (_, k) => +(k === 0));
-  const cb = weightedLeastSquares(rows, yb, ones, n, 1e-10) ?? new Float64Array(n);
-  const qFromQ = new Array<number>(taps).fill(0);
-  const qFromI = new Array<number>(taps).fill(0);
-  qFromQ[m] = ca[0]!;
-  qFromI[m] = cb[0]!;
-  for (let k = 1; k <= m; k++) {
-    const aC = ca[k]!; // A_c
-    const bS = ca[m + k]!; // B_s
-    const bC = cb[k]!; // B_c
-    const aS = -cb[m + k]!; // A_s
-    qFromQ[m + k] = (aC + aS) / 2;
-    qFromQ[m - k] = (aC - aS) / 2;
-    qFromI[m + k] = (bC + bS) / 2;
-    qFromI[m - k] = (bC - bS) / 2;
-  }
-  return { qFromQ, qFromI };
 }
 
 /**
@@ -337,17 +223,16 @@ export async function calibrateMultitone(options: MultitoneOptions): Promise<Mul
   for (const [i, b] of band.entries()) requireFinite(`band[${i}]`, b);
   const start: Trims = { ...ZERO_TRIMS, ...(o.start ?? {}) };
   const refiner = createMultitoneSeeker({ tonesCount: o.tonesHz.length, start, noiseDb, maxReadings });
-  const session = await runSession(
-    refiner,
-    functionSource((t) => o.measure(t)),
-    {
-      signal: o.signal,
-      maxReadings,
-      onReading: (h) => {
-        if (h.levels) o.onReading?.({ index: h.index, trims: h.trims, levelsDb: [...h.levels] });
-      },
+  const session = await runSession(refiner, o.source ?? functionSource((t) => o.measure(t)), {
+    signal: o.signal,
+    applier: o.applier,
+    timeoutSeconds: o.timeoutSeconds,
+    onFailure: o.onFailure,
+    maxReadings,
+    onReading: (h) => {
+      if (h.levels) o.onReading?.({ index: h.index, trims: h.trims, levelsDb: [...h.levels] });
     },
-  );
+  });
   const history: MultitoneResult['history'] = session.history.map((h) => ({
     index: h.index,
     trims: h.trims,
@@ -420,6 +305,7 @@ export async function calibrateMultitone(options: MultitoneOptions): Promise<Mul
     readings: history.length,
     history,
     stopReason,
+    ...(session.cutShort ? { cutShort: session.cutShort } : {}),
     ...(verification ? { verification } : {}),
   };
 }

@@ -183,28 +183,3 @@ export function validateProfile(doc: unknown): CalibrationProfile {
   if (d.note !== undefined && typeof d.note !== 'string') bad('note must be text');
   return d as unknown as CalibrationProfile;
 }
-
-/**
- * Serialises a profile as pretty-printed JSON (numbers round-trip exactly), after validating it.
- * @throws {OrthotoneError} INVALID_DOCUMENT when the profile is not valid (see {@link validateProfile}).
- */
-export function profileToJson(p: CalibrationProfile): string {
-  return `${JSON.stringify(validateProfile(p), null, 2)}\n`;
-}
-
-/**
- * Parses and validates a profile.
- * @throws {OrthotoneError} INVALID_DOCUMENT when the text is not JSON or not a valid profile.
- */
-export function parseProfileJson(text: string): CalibrationProfile {
-  let doc: unknown;
-  try {
-    doc = JSON.parse(text);
-  } catch (e) {
-    throw new OrthotoneError(
-      'INVALID_DOCUMENT',
-      `calibration profile is not valid JSON (${(e as Error).message}): give a file written by 'orthotone calibrate --profile'`,
-    );
-  }
-  return validateProfile(doc);
-}

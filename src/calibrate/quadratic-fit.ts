@@ -14,7 +14,7 @@
  * Optimization, 2nd ed., §10.3; M-estimation by iteratively reweighted least squares with Huber and
  * Tukey weights, Huber & Ronchetti, Robust Statistics, 2nd ed., §7.
  */
-import { invert, solveInPlace, weightedLeastSquares } from './small-linear.js';
+import { invert, solveInPlace, weightedLeastSquares } from '../core/small-linear.js';
 
 /** A null surface `P = c·q(x − cx, y − cy) + N` (power ratio, readings in dB). */
 export interface NullSurface {

@@ -120,8 +120,9 @@ export interface ReadingSource<L> {
    */
   read(trims: Trims, context: ReadingContext): L | SessionCommand | Promise<L | SessionCommand>;
   /**
-   * Optional guard run on every good reading: a message when the run must not go on (e.g. the
-   * wanted tone is missing or too weak in live mode). The session then stops with `refused`.
+   * Optional guard run on every reading that did not throw (non-finite levels included): a message
+   * when the run must not go on (e.g. the wanted tone is missing or too weak in live mode, or a
+   * level is NaN). The session then stops with `refused`, keeping the best so far.
    * @throws never (return the message instead).
    */
   check?(levels: L, trims: Trims): string | undefined;
@@ -317,6 +318,8 @@ export async function runSession<L>(
       cutShort = answer.why ?? 'quit';
       break;
     }
+    // The guard sees every answer (a NaN too: live runs stop on it with a message).
+    if (error === undefined && source.check) refusal = source.check(answer as L, trims);
     const good = error === undefined && levelsFinite(answer);
     if (!good) {
       if (error === undefined) {
@@ -331,7 +334,6 @@ export async function runSession<L>(
       options.onFailure?.(error, index);
     } else failures = 0;
     const levels = good ? (answer as L) : undefined;
-    if (good && source.check) refusal = source.check(levels as L, trims);
     seeker.tell(trims, levels, error);
     const step: SessionStep<L> = {
       index: history.length + 1,
@@ -445,5 +447,37 @@ export function mapSource<A, B>(source: ReadingSource<A>, f: (a: A) => B): Readi
       const a = await source.read(trims, ctx);
       return isCommand(a) ? a : f(a as A);
     },
+  };
+}
+
+/** Levels a live reading gives: both nulls in dBc and, when known, the wanted tone in dBFS. */
+export interface LiveLevels {
+  sidebandDb: number;
+  carrierDb: number;
+  /** Level of the wanted tone, dBFS (AES17), when the reading knows it. */
+  wantedDbfs?: number;
+}
+
+/**
+ * The guard of live runs (reading a receiver): refuses to go on when a level is not a number, when
+ * the wanted tone is missing or weaker than `minWantedDbfs`, or when the "unwanted" sideband reads
+ * above the wanted tone (the receiver hears the other sideband, or only noise). Each message says
+ * what to check.
+ * @param minWantedDbfs weakest usable wanted tone, dBFS (default −60).
+ * @returns a `check` for a {@link ReadingSource}.
+ * @throws never
+ */
+export function liveGuard(minWantedDbfs = -60): (levels: LiveLevels) => string | undefined {
+  return (l) => {
+    if (!l || !Number.isFinite(l.sidebandDb) || !Number.isFinite(l.carrierDb)) {
+      return `a reading gave no level (sideband ${String(l?.sidebandDb)}, carrier ${String(l?.carrierDb)}): check that the receiver audio reaches the input and that the generator is playing`;
+    }
+    if (l.wantedDbfs !== undefined && !(l.wantedDbfs >= minWantedDbfs)) {
+      return `the wanted tone reads ${Number.isFinite(l.wantedDbfs) ? `${l.wantedDbfs.toFixed(1)} dBFS` : 'nothing'}, below ${minWantedDbfs} dBFS: check that the receiver is tuned to the transmission and its audio reaches the input, then raise the level`;
+    }
+    if (l.sidebandDb > 0) {
+      return `the unwanted sideband reads ${l.sidebandDb.toFixed(1)} dB above the wanted tone: check the receiver's sideband and tuning offset (or that a signal is present at all)`;
+    }
+    return undefined;
   };
 }

@@ -119,8 +119,17 @@ export function sidebandAxes(hw: HardwareTrimOptions = {}): TrimAxes {
  * @throws {OrthotoneError} INVALID_ARGUMENT for bad options (never for a failed reading or an
  *   abort: those end the run with `stopReason` `measurement-failed` or `aborted`).
  * @example
- * const r = await calibrateSideband({ measure: (t) => analyzer.unwantedDbc(t), maxReadings: 12 });
- * generator.setTrims(r.trims);
+ * ```ts
+ * import { calibrateSideband, createAnalyzer, createVirtualExciter, homebrewBenchDevice } from 'orthotone';
+ *
+ * // An invented bench: a virtual hand-built exciter read by a simulated analyzer (on a real bench,
+ * // `measure` sets the trims on the exciter and reads a receiver or a spectrum analyzer).
+ * const exciter = createVirtualExciter(homebrewBenchDevice(), { sampleRate: 48000, seed: 1 });
+ * const analyzer = createAnalyzer(exciter, { seed: 2, noiseDb: 0.2 });
+ * const r = await calibrateSideband({ measure: (t) => analyzer.readSideband(1000, t), maxReadings: 40 });
+ * console.log(`unwanted sideband ${r.startLevelDb.toFixed(1)} -> ${r.levelDb.toFixed(1)} dBc in ${r.readings} readings`);
+ * // then run the generator with r.trims (gainDb, phaseDeg)
+ * ```
  */
 export function calibrateSideband(options: TrimCalibrationOptions): Promise<TrimCalibrationResult> {
   return runTrimCalibration(options, sidebandAxes(options ?? {}));

@@ -257,7 +257,8 @@ export function resultOf(
   const best = seeker.best();
   const e = seeker.estimate();
   const first = seeker.readings().find((r) => Number.isFinite(r.db));
-  const trims = axes.toTrims(best.point, start);
+  // The start exactly (no round trip through the coordinates) when nothing beat it.
+  const trims = best.source === 'start' ? { ...start } : axes.toTrims(best.point, start);
   const finite = Object.values(trims).every(Number.isFinite);
   return {
     trims: finite ? trims : { ...start },
@@ -315,7 +316,7 @@ export function createTrimSeeker(
     },
     best() {
       const b = inner.best();
-      return { trims: axes.toTrims(b.point, start), levels: b.levelDb };
+      return { trims: b.source === 'start' ? { ...start } : axes.toTrims(b.point, start), levels: b.levelDb };
     },
     save(): SavedSeeker {
       const st = inner.save();

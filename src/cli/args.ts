@@ -248,3 +248,16 @@ export function inCliWords<T>(fn: () => T, names?: Readonly<Record<string, strin
     throw e;
   }
 }
+
+/**
+ * Parses a seed option: a whole number from 0 to 4294967295 (seeds are unsigned 32-bit integers;
+ * −1, 1.5 or 1e30 would otherwise be folded silently into another seed). `fallback` when absent.
+ * @throws {UsageError} `--NAME x must be a whole number from 0 to 4294967295`.
+ */
+export function seedOpt(name: string, v: unknown, fallback: number): number {
+  const x = numberOpt(name, v) ?? fallback;
+  if (!Number.isInteger(x) || x < 0 || x > 0xffffffff) {
+    throw new UsageError(`--${name} ${x} must be a whole number from 0 to 4294967295`);
+  }
+  return x;
+}

@@ -10,9 +10,11 @@ import { dirname, resolve } from 'node:path';
 import { carrierAxes } from '../calibrate/carrier.js';
 import { createCombinedSeeker } from '../calibrate/combined.js';
 import type { Diagnosis } from '../calibrate/diagnosis.js';
-import { createProfile, type ProfileReading, profileToJson } from '../calibrate/profile.js';
+import { calibrateMultitone, equivalentTrims } from '../calibrate/multitone.js';
+import { createProfile, type ProfileReading } from '../calibrate/profile.js';
 import {
   mapSource,
+  type ReadingSource,
   runSession,
   type SavedSeeker,
   type Seeker,
@@ -31,12 +33,13 @@ import {
   validateHardware,
 } from '../calibrate/trim-calibration.js';
 import { cautionsText } from '../core/cautions.js';
-import { OrthotoneError } from '../core/errors.js';
-import { type Trims, ZERO_TRIMS } from '../core/trims.js';
+import { isOrthotoneError, OrthotoneError } from '../core/errors.js';
+import { type Correction, type Trims, ZERO_TRIMS } from '../core/trims.js';
 import { requireSampleRate } from '../core/validate.js';
 import type { Network } from '../design/network.js';
 import { parseNetworkJson } from '../export/network-json.js';
 import { profileToCHeader } from '../export/profile-header.js';
+import { profileToJson } from '../export/profile-json.js';
 import { assertDistinctFiles, writeFileAtomic } from '../node/files.js';
 import { createAnalyzer } from '../simulate/analyzer.js';
 import { createVirtualExciter, type VirtualExciter } from '../simulate/exciter.js';
@@ -75,10 +78,18 @@ where the readings come from:
                          wait --settle MS (default 200, at least the device's ramp) before the
                          reading; the best trims are left on the device at the end. The levels
                          still come from one of the three above. --device-timeout MS: one answer
-                         (default 1000)
+                         (default 1000); --device-reconnect MS: how long to wait for a device that
+                         went away (default 5000) before ending the run with the best so far
 
 options:
   --what W               sideband | carrier | both (default both: sideband first, then carrier)
+                         | band: across the band, a correction filter on Q from readings of
+                         several tones at once (--tones); --prompt asks one level per tone,
+                         --measure-command gets OT_QUANTITY=band and OT_TONES_HZ and prints one
+                         level per tone
+  --tones HZ,...         tones of --what band (default 5 tones spread over --band)
+  --band LO:HI           band of the correction, Hz (default the network's, else 300:3000)
+  --taps N               correction length, odd (default 31)
   --together             with --what both: read the sideband and the carrier at every step (one
                          analyzer display shows both; each reading serves both nulls, so one
                          budget covers the two). --prompt then asks for two numbers, e.g.
@@ -136,6 +147,9 @@ const OPTIONS = {
   profile: { type: 'string' },
   header: { type: 'string' },
   session: { type: 'string' },
+  tones: { type: 'string' },
+  band: { type: 'string' },
+  taps: { type: 'string' },
   resume: { type: 'string' },
   timeout: { type: 'string' },
   format: { type: 'string' },
@@ -333,9 +347,12 @@ export async function run(argv: string[], extras: CalibrateExtras = {}): Promise
   if (modes !== 1) {
     throw new UsageError('calibrate needs exactly one of --simulate, --prompt or --measure-command CMD');
   }
-  const what = choiceOpt('what', v.what, ['sideband', 'carrier', 'both'], 'both');
+  const what = choiceOpt('what', v.what, ['sideband', 'carrier', 'both', 'band'], 'both');
   const format = choiceOpt('format', v.format, ['table', 'json'], 'table');
   const together = v.together === true;
+  if (what === 'band' && (v.resume !== undefined || v.session !== undefined)) {
+    throw new UsageError('--what band does not save sessions yet: drop --session and --resume');
+  }
   if (together && what !== 'both') {
     throw new UsageError(
       `--together reads the sideband and the carrier at each step: use it with --what both, not ${what}`,
@@ -490,6 +507,31 @@ export async function run(argv: string[], extras: CalibrateExtras = {}): Promise
     onUndo: (d: { index: number } | undefined) =>
       out(d ? `  dropped reading ${d.index}\n` : '  nothing to undo\n'),
   };
+  if (what === 'band') {
+    try {
+      return await runBand({
+        v,
+        out,
+        format,
+        sampleRate,
+        network,
+        analyzer,
+        exciter,
+        simAmplitude,
+        noiseDb,
+        maxReadings,
+        timeoutSeconds,
+        signal: ctl.signal,
+        input,
+        files,
+        extras,
+        interrupted: () => interrupted,
+      });
+    } finally {
+      input?.close();
+      process.off('SIGINT', onSigint);
+    }
+  }
   const saved: Record<string, SavedSeeker> = { ...(resumed?.nulls ?? {}) };
   const saveSession = (key: string, s: Seeker<unknown>): void => {
     saved[key] = s.save();
@@ -764,4 +806,186 @@ export async function run(argv: string[], extras: CalibrateExtras = {}): Promise
   out(`\n${cautionsText()}\n`);
   if (interrupted) return 130;
   return cutShort ? 3 : 0;
+}
+
+/** What {@link runBand} needs from `run`. */
+interface BandContext {
+  v: Record<string, unknown>;
+  out: (s: string) => void;
+  format: string;
+  sampleRate: number;
+  network: Network | undefined;
+  analyzer: ReturnType<typeof createAnalyzer> | undefined;
+  exciter: VirtualExciter | undefined;
+  simAmplitude: number;
+  noiseDb: number;
+  maxReadings: number;
+  timeoutSeconds: number;
+  signal: AbortSignal;
+  input: ReturnType<typeof lineInput> | undefined;
+  files: { profile?: string | undefined; header?: string | undefined };
+  extras: CalibrateExtras;
+  interrupted: () => boolean;
+}
+
+/**
+ * `calibrate --what band`: the multi-tone calibration (calibrateMultitone) with the CLI's reading
+ * source; prints the per-tone nulls and the correction, writes the profile with the correction.
+ * @returns the exit status (0 done, 3 cut short, 130 Ctrl-C).
+ * @throws {UsageError} for bad --tones, --band or --taps.
+ */
+async function runBand(c: BandContext): Promise<number> {
+  const { v, out, sampleRate } = c;
+  const bandOpt = v.band as string | undefined;
+  let band: [number, number] = c.network ? [c.network.band[0], c.network.band[1]] : [300, 3000];
+  if (bandOpt !== undefined) {
+    const parts = bandOpt.split(':').map((x) => numberOpt('band', x)!);
+    if (parts.length !== 2 || !(parts[0]! > 0 && parts[1]! > parts[0]! && parts[1]! < sampleRate / 2)) {
+      throw new UsageError(`--band ${bandOpt} must be LO:HI in Hz with 0 < LO < HI < ${sampleRate / 2}`);
+    }
+    band = [parts[0]!, parts[1]!];
+  }
+  const tonesHz =
+    v.tones !== undefined
+      ? String(v.tones)
+          .split(',')
+          .map((x) => numberOpt('tones', x)!)
+      : Array.from({ length: 5 }, (_, k) => Math.round(band[0] * (band[1] / band[0]) ** (k / 4)));
+  if (tonesHz.length < 2 || !tonesHz.every((f) => f > 0 && f < sampleRate / 2)) {
+    throw new UsageError(
+      `--tones ${tonesHz.join(',')} must list at least 2 tones in Hz below ${sampleRate / 2}`,
+    );
+  }
+  const taps = numberOpt('taps', v.taps ?? '31')!;
+  if (!(Number.isInteger(taps) && taps % 2 === 1 && taps >= 1 && taps <= 255)) {
+    throw new UsageError(`--taps ${taps} must be an odd whole number from 1 to 255`);
+  }
+  out(
+    `\n== across the band: ${tonesHz.length} tones at ${tonesHz.join(', ')} Hz, correction of ${taps} taps over ${band[0]}-${band[1]} Hz ==\n`,
+  );
+  const K = tonesHz.length;
+  const an = c.analyzer;
+  const simRead = (t: Trims, corr?: Correction): number[] =>
+    tonesHz.map((f) => an!.readSideband(f, equivalentTrims(corr, t, f, sampleRate), c.simAmplitude));
+  const fmtGP = (t: Trims) =>
+    `gain ${t.gainDb >= 0 ? '+' : ''}${t.gainDb.toFixed(4)} dB, phase ${t.phaseDeg >= 0 ? '+' : ''}${t.phaseDeg.toFixed(4)}°`;
+  const source: ReadingSource<readonly number[]> = an
+    ? { read: (t) => simRead(t) }
+    : c.input
+      ? promptSource({
+          input: c.input,
+          output: process.stdout,
+          count: K,
+          label: 'band reading',
+          describe: fmtGP,
+          applied: c.extras.applier !== undefined,
+          question: `unwanted sideband of each tone (${tonesHz.join(', ')} Hz), dB, in that order`,
+        })
+      : commandSource({
+          command: v['measure-command'] as string,
+          env: { OT_QUANTITY: 'band', OT_TONES_HZ: tonesHz.join(',') },
+          count: K,
+        });
+  const r = await calibrateMultitone({
+    measure: (t, corr) => (an ? simRead(t, corr) : tonesHz.map(() => Number.NaN)),
+    source,
+    ...(c.extras.applier ? { applier: c.extras.applier } : {}),
+    tonesHz,
+    sampleRate,
+    band,
+    taps,
+    noiseDb: c.noiseDb,
+    maxReadings: Math.max(4, c.maxReadings),
+    verifyReadings: an ? 1 : 0,
+    signal: c.signal,
+    timeoutSeconds: c.timeoutSeconds,
+    onFailure: (e, index) => out(`  reading ${index} failed: ${(e as Error)?.message ?? 'no value'}\n`),
+  }).catch((e: unknown) => {
+    if (isOrthotoneError(e, 'MEASUREMENT_FAILED')) {
+      throw new UsageError(`${e.message}: too few readings for a correction; nothing was written`);
+    }
+    throw e;
+  });
+  const table: string[][] = [['#', 'setting', ...tonesHz.map((f) => `${f} Hz dB`)]];
+  for (const h of r.history)
+    table.push([
+      String(h.index),
+      fmtGP(h.trims),
+      ...h.levelsDb.map((x) => (Number.isFinite(x) ? x.toFixed(2) : 'failed')),
+    ]);
+  out(formatTable(table));
+  const nulls: string[][] = [['tone Hz', 'null gain dB', 'null phase °', 'floor dBc']];
+  for (const t of r.tones)
+    nulls.push([String(t.frequencyHz), t.gainDb.toFixed(4), t.phaseDeg.toFixed(4), t.floorDb.toFixed(1)]);
+  out(`\nper-tone nulls\n${formatTable(nulls)}`);
+  out(
+    `model: skew ${(r.model.skewSeconds * 1e6).toFixed(3)} µs; predicted worst suppression over the band with the correction ${r.predictedWorstDb.toFixed(1)} dB\n`,
+  );
+  let trueWorst: { before: number; after: number } | undefined;
+  if (c.exciter) {
+    const grid = Array.from({ length: 40 }, (_, i) => band[0] * (band[1] / band[0]) ** (i / 39));
+    const worst = (corr: Correction | undefined, t: Trims) =>
+      Math.min(
+        ...grid.map(
+          (f) => -c.exciter!.response(f, equivalentTrims(corr, t, f, sampleRate), c.simAmplitude).unwantedDbc,
+        ),
+      );
+    trueWorst = { before: worst(undefined, ZERO_TRIMS), after: worst(r.correction, r.trims) };
+    out(
+      `true worst over ${band[0]}-${band[1]} Hz (the virtual exciter's noiseless response): ${trueWorst.before.toFixed(1)} dB before, ${trueWorst.after.toFixed(1)} dB with the correction\n`,
+    );
+  }
+  if (r.verification?.warning) out(`note: ${r.verification.warning}\n`);
+  const why = c.interrupted()
+    ? 'interrupted (Ctrl-C)'
+    : r.cutShort === 'end-of-input'
+      ? 'input ended'
+      : r.cutShort === 'failed'
+        ? 'readings kept failing'
+        : r.cutShort;
+  const note = r.cutShort
+    ? `cut short (${why}): the correction is fitted from ${r.readings} reading(s) only`
+    : undefined;
+  if (note) out(`${note}\n`);
+  const profile = createProfile({
+    sampleRate,
+    toneHz: tonesHz[Math.floor(K / 2)]!,
+    tonesHz,
+    trims: r.trims,
+    correction: r.correction,
+    readings: r.history.flatMap((h) =>
+      h.levelsDb.map((db, k) => ({
+        quantity: `tone:${tonesHz[k]}`,
+        trims: h.trims,
+        levelDb: Number.isFinite(db) ? db : null,
+      })),
+    ),
+    results: {
+      ...(trueWorst
+        ? { worstBandDb: trueWorst.after }
+        : Number.isFinite(r.predictedWorstDb)
+          ? { worstBandDb: r.predictedWorstDb }
+          : {}),
+      readingsUsed: r.readings,
+      source: trueWorst ? 'simulated' : 'fit',
+    },
+    ...(c.network ? { network: c.network } : {}),
+    ...(note ? { note } : {}),
+  });
+  if (c.files.profile) {
+    writeFileAtomic(c.files.profile, profileToJson(profile));
+    out(`wrote profile ${c.files.profile}\n`);
+  }
+  if (c.files.header) {
+    writeFileAtomic(c.files.header, profileToCHeader(profile));
+    out(`wrote C header ${c.files.header}\n`);
+  }
+  if (c.format === 'json') {
+    process.stdout.write(
+      `${JSON.stringify({ tonesHz, band, taps, readings: r.readings, stopReason: r.stopReason, ...(r.cutShort ? { cutShort: why } : {}), tones: r.tones, model: r.model, predictedWorstDb: r.predictedWorstDb, ...(trueWorst ? { trueWorstBeforeDb: trueWorst.before, trueWorstAfterDb: trueWorst.after } : {}), profile }, null, 2)}\n`,
+    );
+  }
+  out(`\n${cautionsText()}\n`);
+  if (c.interrupted()) return 130;
+  return r.cutShort ? 3 : 0;
 }

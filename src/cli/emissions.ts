@@ -6,7 +6,7 @@
  * virtual exciter (a tolerance preset, a network and a calibration profile).
  */
 import { readFile } from 'node:fs/promises';
-import { type CalibrationProfile, parseProfileJson } from '../calibrate/profile.js';
+import type { CalibrationProfile } from '../calibrate/profile.js';
 import { cautionsText, TRANSMIT_CAUTIONS } from '../core/cautions.js';
 import { OrthotoneError } from '../core/errors.js';
 import type { Network } from '../design/network.js';
@@ -15,6 +15,7 @@ import { RULE_SETS, ruleSetName } from '../emissions/limits.js';
 import { type OutputFilter, validateOutputFilter } from '../emissions/output-filter.js';
 import { captureProducts, simulateProducts, twoToneProducts } from '../emissions/products.js';
 import { parseNetworkJson } from '../export/network-json.js';
+import { parseProfileJson } from '../export/profile-json.js';
 import { benchReportHtml } from '../export/report.js';
 import { assertDistinctFiles, writeFileAtomic } from '../node/files.js';
 import { readIqWavFile } from '../node/wav.js';

@@ -44,6 +44,14 @@ const COMMANDS: Record<string, Command> = {
     summary: 'evaluate a network file: phase/gain error, suppression, group delay, cost',
     load: () => import('./analyze.js'),
   },
+  firmware: {
+    summary: 'write a C99 firmware kit (network and trims in float, Q31 or Q15) with host-check and README',
+    load: () => import('./firmware.js'),
+  },
+  'port-check': {
+    summary: "compare a firmware port's captured output with 'render --vectors' test vectors",
+    load: () => import('./port-check.js'),
+  },
   emissions: {
     summary:
       'check every emission (carrier, sideband, IMD, mixer harmonics) against limits; exit 1 if any fails',
@@ -95,6 +103,15 @@ async function main(argv: string[]): Promise<number> {
   }
   const mod = await cmd.load();
   return runGuarded(() => mod.run(rest));
+}
+
+// A reader that stops early (`orthotone analyze … | head`) closes the pipe: that ends the run
+// quietly, as the reader wanted, instead of an EPIPE stack trace.
+for (const stream of [process.stdout, process.stderr]) {
+  stream.on('error', (e: NodeJS.ErrnoException) => {
+    if (e.code === 'EPIPE') process.exit(0);
+    throw e;
+  });
 }
 
 main(process.argv.slice(2)).then(

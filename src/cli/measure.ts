@@ -105,6 +105,16 @@ function toneRow(name: string, r: ToneReading, refDbfs?: number): string[] {
   ];
 }
 
+/**
+ * A suppression figure shown against what the capture can read: beyond that limit the component is
+ * under the floor, and the figure is the floor's, not the device's.
+ */
+function beyond(db: number, readableDb: number, what: string): string {
+  return db > readableDb
+    ? `more than ${fixed(readableDb, 1)} dB (the ${what} is below the floor this capture can read)`
+    : `${fixed(db, 2)} dB`;
+}
+
 const HEAD = ['component', 'Hz', 'dBFS', 'dBc', 'above floor dB'];
 
 /**
@@ -212,6 +222,8 @@ export async function run(argv: string[]): Promise<number> {
   let json: unknown;
   if (v.tone !== undefined) {
     const toneHz = numberOpt('tone', v.tone)!;
+    if (!(toneHz > 0 && toneHz < fs / 2))
+      throw new UsageError(`--tone ${toneHz} Hz must lie above 0 Hz and below Nyquist ${fs / 2} Hz`);
     if (!v.iq && offset === undefined) {
       throw new UsageError('--tone needs --iq (I/Q capture) or --offset HZ (receiver audio, carrier at HZ)');
     }
@@ -240,8 +252,11 @@ export async function run(argv: string[]): Promise<number> {
       ]) +
       '\n' +
       formatPairs([
-        ['opposite-sideband suppression', `${fixed(r.sidebandSuppressionDb, 2)} dB`],
-        ['carrier suppression', `${fixed(r.carrierSuppressionDb, 2)} dB`],
+        [
+          'opposite-sideband suppression',
+          beyond(r.sidebandSuppressionDb, r.sidebandMeasurableDb, 'sideband'),
+        ],
+        ['carrier suppression', beyond(r.carrierSuppressionDb, r.carrierMeasurableDb, 'carrier')],
         ['floor near the wanted tone', `${fixed(r.floorDbc, 1)} dBc per bin`],
         [
           'largest suppression readable',

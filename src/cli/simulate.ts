@@ -10,7 +10,7 @@ import { createWavWriter, openWavReader, type WavReader } from '../node/wav.js';
 import { createVirtualExciter } from '../simulate/exciter.js';
 import { drawDevice, HOMEBREW_BENCH_SEED, TOLERANCE_PRESETS } from '../simulate/model.js';
 import { predictedSuppression } from '../simulate/response.js';
-import { choiceOpt, inCliWords, lookupOpt, numberOpt, parseCommand, UsageError } from './args.js';
+import { choiceOpt, inCliWords, lookupOpt, numberOpt, parseCommand, seedOpt, UsageError } from './args.js';
 import { fixed, formatPairs, formatTable } from './table.js';
 
 const HELP = `usage: orthotone simulate IN.wav --out OUT.wav [options]
@@ -62,8 +62,8 @@ export async function run(argv: string[]): Promise<number> {
   const format = choiceOpt('format', v.format, ['table', 'json'], 'table');
   const presetName = (v.preset ?? 'homebrew-bench') as string;
   const preset = lookupOpt('preset', presetName, TOLERANCE_PRESETS, 'homebrew-bench');
-  const deviceSeed = numberOpt('device-seed', v['device-seed'] ?? String(HOMEBREW_BENCH_SEED))!;
-  const seed = numberOpt('seed', v.seed ?? '1')!;
+  const deviceSeed = seedOpt('device-seed', v['device-seed'], HOMEBREW_BENCH_SEED);
+  const seed = seedOpt('seed', v.seed, 1);
   const floorDbc = numberOpt('floor', v.floor ?? '-130')!;
   const harmonic = numberOpt('harmonic', v.harmonic ?? '1')!;
   const offset = numberOpt('offset', v.offset);

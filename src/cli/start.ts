@@ -7,15 +7,16 @@
  * transmitting cautions.
  */
 import { mkdir } from 'node:fs/promises';
-import { join, resolve } from 'node:path';
+import { resolve } from 'node:path';
 import { calibrateSidebandAndCarrier } from '../calibrate/combined.js';
-import { createProfile, type ProfileReading, profileToJson } from '../calibrate/profile.js';
+import { createProfile, type ProfileReading } from '../calibrate/profile.js';
 import { cautionsText } from '../core/cautions.js';
 import { ZERO_TRIMS } from '../core/trims.js';
 import { designNetwork } from '../design/design-network.js';
 import { networkToCHeader } from '../export/c-header.js';
 import { networkToJson } from '../export/network-json.js';
 import { profileToCHeader } from '../export/profile-header.js';
+import { profileToJson } from '../export/profile-json.js';
 import { createQuadratureGenerator } from '../generate/quadrature-generator.js';
 import { createSignalSource } from '../generate/sources.js';
 import { writeFileSet } from '../node/files.js';
@@ -23,7 +24,7 @@ import { encodeWav } from '../node/wav.js';
 import { createAnalyzer } from '../simulate/analyzer.js';
 import { createVirtualExciter } from '../simulate/exciter.js';
 import { HOMEBREW_BENCH_SEED, homebrewBenchDevice } from '../simulate/model.js';
-import { numberOpt, parseCommand } from './args.js';
+import { parseCommand, seedOpt } from './args.js';
 import { formatTable } from './table.js';
 
 const HELP = `usage: orthotone start [--out DIR] [--seed N]
@@ -64,7 +65,7 @@ export async function run(argv: string[]): Promise<number> {
     return 0;
   }
   const outDir = resolve((v.out as string | undefined) ?? 'out');
-  const seed = numberOpt('seed', v.seed ?? '1')!;
+  const seed = seedOpt('seed', v.seed, 1);
   const say = (s: string): void => {
     process.stdout.write(s);
   };

@@ -6,13 +6,13 @@
  * 2: bad input.
  */
 
-import { parseProfileJson } from '../calibrate/profile.js';
 import type { ReadingSource, SessionCommand } from '../calibrate/session.js';
 import { cautionsText, TRANSMIT_CAUTIONS } from '../core/cautions.js';
 import type { Trims } from '../core/trims.js';
 import type { Network } from '../design/network.js';
 import { judgeDrift, type VerifyReading } from '../emissions/verify.js';
 import { parseNetworkJson } from '../export/network-json.js';
+import { parseProfileJson } from '../export/profile-json.js';
 import { benchReportHtml } from '../export/report.js';
 import { assertDistinctFiles, writeFileAtomic } from '../node/files.js';
 import { createAnalyzer } from '../simulate/analyzer.js';

@@ -5,6 +5,8 @@
  */
 import { OrthotoneError } from './errors.js';
 import { requireFinite } from './validate.js';
+
+/** The trims applied after the 90° network, in the order and units of this file's header. */
 export interface Trims {
   /** Q gain relative to I, dB. */
   gainDb: number;

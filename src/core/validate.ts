@@ -147,6 +147,30 @@ export function requireBand(band: unknown, sampleRate: number): [number, number]
 }
 
 /**
+ * The fields of `o` whose value is not `undefined` (only `keys`, when given), as a new object, so
+ * that spreading it over defaults keeps the defaults where the caller left a field undefined.
+ * Checks no keys (see {@link withDefaults} for a merge that refuses unknown keys).
+ * @param o the partial object (undefined gives `{}`).
+ * @param keys the only keys to copy (default: all own keys).
+ * @returns a new object; `o` is not changed.
+ * Method: plain field copy.
+ * @throws never
+ * @internal
+ */
+export function stripUndefined<T extends object>(
+  o: Partial<T> | undefined,
+  keys?: readonly (keyof T)[],
+): Partial<T> {
+  const out: Partial<T> = {};
+  if (!o) return out;
+  for (const k of keys ?? (Object.keys(o) as (keyof T)[])) {
+    const v = o[k];
+    if (v !== undefined) out[k] = v;
+  }
+  return out;
+}
+
+/**
  * Edit distance between two words: the fewest single-character insertions, deletions,
  * substitutions or swaps of neighbours that turn one into the other (optimal string alignment,
  * Damerau 1964, CACM 7(3):171; Levenshtein 1966). Written here because it is a dozen lines and
@@ -217,19 +241,13 @@ export function rejectUnknownKeys(what: string, options: unknown, known: readonl
  * key that is neither in `defaults` nor in `optionalKeys` (see {@link rejectUnknownKeys}).
  * Validates no values: callers validate the merged result.
  * @throws {OrthotoneError} INVALID_ARGUMENT for an unknown key, naming the nearest known one.
+ * @internal
  */
 export function withDefaults<T extends object>(
   defaults: Readonly<T>,
   partial: Partial<T> | undefined,
   optionalKeys: readonly string[] = [],
 ): T {
-  const out = { ...defaults } as T;
-  if (partial) {
-    rejectUnknownKeys('the options', partial, [...Object.keys(defaults), ...optionalKeys]);
-    for (const k of Object.keys(partial) as (keyof T)[]) {
-      const v = partial[k];
-      if (v !== undefined) out[k] = v as T[keyof T];
-    }
-  }
-  return out;
+  if (partial) rejectUnknownKeys('the options', partial, [...Object.keys(defaults), ...optionalKeys]);
+  return { ...defaults, ...stripUndefined(partial) } as T;
 }

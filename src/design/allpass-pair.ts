@@ -286,6 +286,13 @@ function validatePairSpec(spec: AllpassPairSpec): {
  *   sections fall short.
  * Reference: Darlington, BSTJ 29:94, 1950; Orchard, Wireless Engineer 27:72, 1950 (closed form);
  * bilinear transform with prewarping; O. Niemitalo (music-dsp, 2001) for the z⁻² structure.
+ * @example
+ * ```ts
+ * import { designAllpassPair } from 'orthotone';
+ *
+ * const pair = designAllpassPair({ sampleRate: 48000, band: [300, 3000], targetDb: 60 });
+ * console.log(pair.sections, 'sections:', pair.branches.i.sections.map((s) => s.a.toFixed(4)).join(' '));
+ * ```
  */
 export function designAllpassPair(spec: AllpassPairSpec): AllpassPairDesign {
   const { fs, band, form, maxSections, sections, targetDb: givenTarget } = validatePairSpec(spec);

@@ -20,6 +20,7 @@ import {
   suppressionFromResponse,
   validateNetwork,
 } from './network.js';
+import { allpassBranchResponseInto, firResponseInto, goldenSectionMax } from './response.js';
 
 /** The coefficient part of a network document: enough to evaluate it. */
 export type NetworkCoefficients =
@@ -84,70 +85,21 @@ const SUPPRESSION_CAP_DB = 300;
 /** A prepared evaluator: writes I and Q responses at ω (rad/sample) into `out` [iRe, iIm, qRe, qIm]. */
 type Evaluator = (w: number, out: Float64Array) => void;
 
-function allpassBranchInto(b: AllpassBranch, w: number, out: Float64Array, at: number): void {
-  let re = Math.cos(b.delay * w);
-  let im = -Math.sin(b.delay * w);
-  for (const s of b.sections) {
-    // (a + z^-m)/(1 + a z^-m) with z^-m = c − j·s
-    const c = Math.cos(s.order * w);
-    const sn = -Math.sin(s.order * w);
-    const nr = s.a + c;
-    const dr = 1 + s.a * c;
-    const di = s.a * sn;
-    const d = dr * dr + di * di;
-    const hr = (nr * dr + sn * di) / d;
-    const hi = (sn * dr - nr * di) / d;
-    const r = re * hr - im * hi;
-    im = re * hi + im * hr;
-    re = r;
-  }
-  out[at] = re;
-  out[at + 1] = im;
-}
-
-/**
- * FIR: the common factor e^{−jωD} (D = (N−1)/2) is removed from both branches, which changes no
- * ratio between them: I = 1, Q = Σ h_k e^{−jω(k−D)}, summed outward from the centre with a rotating
- * phasor (error grows as k·ε, not the 1/sin ω of a Chebyshev recurrence).
- */
-function firInto(taps: readonly number[], w: number, out: Float64Array): void {
-  const n = taps.length;
-  const d = (n - 1) / 2;
-  const c1 = Math.cos(w);
-  const s1 = Math.sin(w);
-  let re = taps[d] ?? 0;
-  let im = 0;
-  let c = 1;
-  let s = 0;
-  for (let j = 1; j <= d; j++) {
-    const cn = c * c1 - s * s1;
-    s = s * c1 + c * s1;
-    c = cn;
-    if (j % 64 === 0) {
-      // re-anchor the rotating phasor now and then
-      c = Math.cos(j * w);
-      s = Math.sin(j * w);
-    }
-    const hp = taps[d + j]!;
-    const hm = taps[d - j]!;
-    re += (hp + hm) * c;
-    im -= (hp - hm) * s;
-  }
-  out[0] = 1;
-  out[1] = 0;
-  out[2] = re;
-  out[3] = im;
-}
-
 function makeEvaluator(net: NetworkCoefficients): Evaluator {
   if (net.kind === 'fir') {
+    // The common factor e^{−jωD} (D = (N−1)/2) is removed from both branches, which changes no
+    // ratio between them: I = 1, Q = Σ h_k e^{−jω(k−D)}.
     const taps = net.taps;
-    return (w, out) => firInto(taps, w, out);
+    return (w, out) => {
+      out[0] = 1;
+      out[1] = 0;
+      firResponseInto(taps, w, out, 2);
+    };
   }
   const { i, q } = net.branches;
   return (w, out) => {
-    allpassBranchInto(i, w, out, 0);
-    allpassBranchInto(q, w, out, 2);
+    allpassBranchResponseInto(i, w, out, 0);
+    allpassBranchResponseInto(q, w, out, 2);
   };
 }
 
@@ -196,31 +148,9 @@ export function maximizeOnGrid(
   for (let k = 0; k < n; k++) if (v[k]! > best.value) best = { value: v[k]!, at: grid[k]!, refined: true };
   // A grid value above `stopAbove` already settles a yes/no question: skip the refinement.
   if (opts.stopAbove !== undefined && best.value > opts.stopAbove) return { ...best, refined: false };
-  const invPhi = (Math.sqrt(5) - 1) / 2;
   for (const k of peaks.slice(0, refine)) {
-    let a = grid[Math.max(0, k - 1)]!;
-    let b = grid[Math.min(n - 1, k + 1)]!;
-    let x1 = b - invPhi * (b - a);
-    let x2 = a + invPhi * (b - a);
-    let f1 = fn(x1);
-    let f2 = fn(x2);
-    for (let it = 0; it < iterations && b - a > 1e-13 * Math.abs(b); it++) {
-      if (f1 < f2) {
-        a = x1;
-        x1 = x2;
-        f1 = f2;
-        x2 = a + invPhi * (b - a);
-        f2 = fn(x2);
-      } else {
-        b = x2;
-        x2 = x1;
-        f2 = f1;
-        x1 = b - invPhi * (b - a);
-        f1 = fn(x1);
-      }
-    }
-    if (f1 > best.value) best = { value: f1, at: x1, refined: true };
-    if (f2 > best.value) best = { value: f2, at: x2, refined: true };
+    const g = goldenSectionMax(fn, grid[Math.max(0, k - 1)]!, grid[Math.min(n - 1, k + 1)]!, iterations);
+    if (g.value > best.value) best = { value: g.value, at: g.at, refined: true };
   }
   return best;
 }
@@ -292,6 +222,31 @@ function checkBandForFigures(net: NetworkCoefficients): void {
   }
 }
 
+function worstSuppressionOnGrid(net: NetworkCoefficients, grid: Float64Array): { value: number; at: number } {
+  const ev = makeEvaluator(net);
+  const buf = new Float64Array(4);
+  const k = (2 * Math.PI) / net.sampleRate;
+  return maximizeOnGrid((f) => {
+    ev(k * f, buf);
+    return -suppressionOf(buf);
+  }, grid);
+}
+
+/**
+ * The worst opposite-sideband suppression over the band, dB: exactly the `worstSuppressionDb` of
+ * {@link bandFigures} (same grid, same refinement), without the phase and gain searches. The FIR
+ * length search judges candidates by it, so the document's `predicted` figure is the one searched on.
+ * @param net the coefficient part of a network document.
+ * @returns worst suppression in dB (positive).
+ * @throws {OrthotoneError} INVALID_BAND when the band is not inside (0, fs/2].
+ * Reference: K. Schmidt, QEX Aug 1994 §2, as in `suppressionFromResponse`.
+ * @internal
+ */
+export function worstSuppressionDb(net: NetworkCoefficients): number {
+  checkBandForFigures(net);
+  return -worstSuppressionOnGrid(net, gridFor(net)).value;
+}
+
 /**
  * Worst-case figures over the band with the frequencies where they occur: a dense grid (log-tan
  * spaced for all-pass pairs, linear for FIR, both clustered toward the band edges) refined by
@@ -307,10 +262,7 @@ export function bandFigures(net: NetworkCoefficients): BandFigures {
   const buf = new Float64Array(4);
   const k = (2 * Math.PI) / net.sampleRate;
   const grid = gridFor(net);
-  const supp = maximizeOnGrid((f) => {
-    ev(k * f, buf);
-    return -suppressionOf(buf);
-  }, grid);
+  const supp = worstSuppressionOnGrid(net, grid);
   const phase = maximizeOnGrid((f) => {
     ev(k * f, buf);
     return Math.abs(phaseErrorDegFromResponse(responseOf(buf)));
@@ -458,6 +410,15 @@ const ANALYZE_DEFAULTS: Readonly<Omit<AnalyzeOptions, 'fromHz' | 'toHz'>> = Obje
  * @returns per-frequency arrays and band figures; group delays in samples.
  * @throws {OrthotoneError} INVALID_DOCUMENT for a bad document; INVALID_ARGUMENT for bad options.
  * Reference: suppression per K. Schmidt, QEX Aug 1994 §2.
+ * @example
+ * ```ts
+ * import { analyzeNetwork, designNetwork } from 'orthotone';
+ *
+ * const net = designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'allpass', targetDb: 60 });
+ * const a = analyzeNetwork(net, { points: 256 });
+ * console.log(`worst ${a.worst.suppressionDb.toFixed(1)} dB at ${a.worst.atHz.toFixed(0)} Hz`);
+ * // a.frequencyHz[k], a.suppressionDb[k], a.phaseErrorDeg[k]: one row per analysis frequency
+ * ```
  */
 export function analyzeNetwork(net: Network, options: Partial<AnalyzeOptions> = {}): NetworkAnalysis {
   validateNetwork(net);

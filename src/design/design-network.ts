@@ -16,11 +16,21 @@ import {
   requireSampleRate,
 } from '../core/validate.js';
 import { type AllpassPairDesign, designAllpassPair, MAX_DESIGN_TARGET_DB } from './allpass-pair.js';
-import { networkCost, predictFigures } from './analysis.js';
-import { designHilbertFir, type HilbertFirDesign, MAX_TAPS_LIMIT } from './hilbert-fir.js';
+import { networkCost, predictFigures, worstSuppressionDb } from './analysis.js';
+import {
+  designHilbertFir,
+  designHilbertFirJudged,
+  type HilbertFirDesign,
+  MAX_TAPS_LIMIT,
+} from './hilbert-fir.js';
 import type { AllpassNetwork, FirNetwork, Network } from './network.js';
 import { validateNetwork } from './network.js';
-import { COEFFICIENT_FORMATS, type CoefficientFormat, quantizeNetwork } from './quantize.js';
+import {
+  COEFFICIENT_FORMATS,
+  type CoefficientFormat,
+  quantizeCoefficient,
+  quantizeNetwork,
+} from './quantize.js';
 
 /** Spec for {@link designNetwork}. */
 export interface NetworkSpec {
@@ -258,19 +268,15 @@ function designFir(c: Checked, targetDb: number | undefined, design: Record<stri
     return net;
   }
   const target = targetDb ?? DEFAULT_TARGET_DB;
-  const first = designHilbertFir({ ...base, ...extra, targetDb: target });
-  let net = firDocument(c, first, design);
-  // The document's figures are our own evaluation; should they fall a hair short of the FIR
-  // designer's own, lengthen the filter (by 4 for a half-band design, keeping its end taps
-  // non-zero) until they meet the target.
-  // Rounding the coefficients (coefficientFormat) may cost more length than that.
-  const step = first.symmetricAboutQuarterRate ? 4 : 2;
-  const tries = c.format === undefined ? 8 : 64;
-  for (let t = 0; t < tries && net.predicted.worstSuppressionDb < target; t++) {
-    const taps = net.taps.length + step;
-    if (c.maxTaps !== undefined && taps > c.maxTaps) break;
-    net = firDocument(c, designHilbertFir({ ...base, ...extra, taps }), design);
-  }
+  // One length search: the FIR designer's, judged by the figure this document will carry (the
+  // independent evaluation of the taps, after rounding them to the coefficient format if one is
+  // given), so no second search has to lengthen the filter afterwards.
+  const judge = (taps: Float64Array): number => {
+    const t =
+      c.format === undefined ? Array.from(taps) : Array.from(taps, (x) => quantizeCoefficient(x, c.format!));
+    return worstSuppressionDb({ kind: 'fir', sampleRate: c.fs, band: c.band, taps: t });
+  };
+  const net = firDocument(c, designHilbertFirJudged({ ...base, ...extra, targetDb: target }, judge), design);
   shortfall(c, net, target, `taps ${net.taps.length}`, false);
   return net;
 }
@@ -421,6 +427,15 @@ function designAuto(c: Checked, design: Record<string, unknown>): Network {
  *   short of a given target; NO_CONVERGENCE if the FIR exchange fails.
  * Reference: Darlington, BSTJ 29:94 (1950) and Orchard, Wireless Engineer 27:72 (1950) for the
  * all-pass pair; McClellan, Parks & Rabiner (1973) and Kaiser (1974) for the FIR.
+ * @example
+ * ```ts
+ * import { designNetwork } from 'orthotone';
+ *
+ * // The cheapest 90° network for speech, 300–3000 Hz at 48 kHz, with at least 60 dB suppression.
+ * const net = designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'auto', targetDb: 60 });
+ * console.log(net.kind, net.predicted.worstSuppressionDb.toFixed(1), 'dB,', net.cost.multipliesPerSample, 'multiplies/sample');
+ * if (net.predicted.worstSuppressionDb < 60) throw new Error('target not met');
+ * ```
  */
 export function designNetwork(spec: NetworkSpec): Network {
   const c = checkSpec(spec);

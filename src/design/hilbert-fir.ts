@@ -32,6 +32,7 @@ import {
 } from '../core/validate.js';
 import { kaiserAttenuation, kaiserBeta, kaiserOrder, kaiserWindow } from './kaiser.js';
 import { remezExchange } from './remez.js';
+import { firResponseInto, goldenSectionMax } from './response.js';
 
 /** Specification of a Hilbert FIR. Give `taps`, `targetDb`, or both. */
 export interface HilbertFirSpec {
@@ -160,19 +161,10 @@ function nextPow2(n: number): number {
   return p;
 }
 
-/** S − jA at angular frequency w (rad/sample) by direct summation; taps centred at c. */
-function responseAt(taps: ArrayLike<number>, w: number): { s: number; a: number } {
-  const c = (taps.length - 1) / 2;
-  let s = 0;
-  let a = 0;
-  for (let k = 0; k < taps.length; k++) {
-    const t = taps[k]!;
-    if (t === 0) continue;
-    const m = k - c;
-    s += t * Math.cos(w * m);
-    a += t * Math.sin(w * m);
-  }
-  return { s, a };
+/** S − jA at angular frequency w (rad/sample), relative to the centre tap (the one FIR evaluator). */
+function responseAt(taps: ArrayLike<number>, w: number, buf: Float64Array): { s: number; a: number } {
+  firResponseInto(taps, w, buf, 0);
+  return { s: buf[0]!, a: -buf[1]! };
 }
 
 /**
@@ -224,8 +216,9 @@ export function evaluateHilbertFir(
   const dk = (k: number): number => Math.abs(-out[2 * k + 1]! - 1);
   let worst = 0;
   let ripple = 0;
+  const buf = new Float64Array(2);
   for (const f of [lo, hi]) {
-    const r = responseAt(taps, (2 * Math.PI * f) / sampleRate);
+    const r = responseAt(taps, (2 * Math.PI * f) / sampleRate, buf);
     worst = Math.max(worst, ratio(r.s, r.a));
     ripple = Math.max(ripple, Math.abs(r.a - 1));
   }
@@ -244,38 +237,16 @@ export function evaluateHilbertFir(
     }
   }
   const wOf = (k: number): number => (2 * Math.PI * k) / size;
-  const golden = (k: number, fn: (w: number) => number): number => {
-    let a = wOf(k - 1);
-    let b = wOf(k + 1);
-    const g = (Math.sqrt(5) - 1) / 2;
-    let c = b - g * (b - a);
-    let d = a + g * (b - a);
-    let fc = fn(c);
-    let fd = fn(d);
-    for (let it = 0; it < 14; it++) {
-      if (fc > fd) {
-        b = d;
-        d = c;
-        fd = fc;
-        c = b - g * (b - a);
-        fc = fn(c);
-      } else {
-        a = c;
-        c = d;
-        fc = fd;
-        d = a + g * (b - a);
-        fd = fn(d);
-      }
-    }
-    return Math.max(fc, fd);
-  };
+  // 14 steps narrow the two-bin bracket by 1/φ¹⁴ ≈ 1/843, ample for a 64·N-point grid.
+  const golden = (k: number, fn: (w: number) => number): number =>
+    goldenSectionMax(fn, wOf(k - 1), wOf(k + 1), 14, 0).value;
   const top = (ks: number[], val: (k: number) => number): number[] =>
     ks.sort((x, y) => val(y) - val(x)).slice(0, REFINED_PEAKS);
   for (const k of top(peaksQ, rk)) {
     worst = Math.max(
       worst,
       golden(k, (w) => {
-        const r = responseAt(taps, w);
+        const r = responseAt(taps, w, buf);
         return ratio(r.s, r.a);
       }),
     );
@@ -283,7 +254,7 @@ export function evaluateHilbertFir(
   for (const k of top(peaksD, dk)) {
     ripple = Math.max(
       ripple,
-      golden(k, (w) => Math.abs(responseAt(taps, w).a - 1)),
+      golden(k, (w) => Math.abs(responseAt(taps, w, buf).a - 1)),
     );
   }
   return {
@@ -315,6 +286,8 @@ export function kaiserHilbertTaps(numtaps: number, beta: number): Float64Array {
 interface Candidate {
   taps: Float64Array;
   evaluation: HilbertFirEvaluation;
+  /** The worst suppression that decides the length search (the judge's, else the evaluation's), dB. */
+  score: number;
   iterations?: number;
   converged?: boolean;
   roundOff?: boolean;
@@ -328,6 +301,18 @@ interface Plan {
   halfBand: boolean;
   method: 'remez' | 'kaiser';
   gridDensity: number;
+  judge: HilbertFirJudge | undefined;
+}
+
+/**
+ * The figure that decides the length search: the worst suppression (dB) a caller will report for
+ * these taps (e.g. after rounding them to a coefficient format, evaluated by its own evaluator).
+ * @internal
+ */
+export type HilbertFirJudge = (taps: Float64Array) => number;
+
+function scored(plan: Plan, c: Omit<Candidate, 'score'>): Candidate {
+  return { ...c, score: plan.judge ? plan.judge(c.taps) : c.evaluation.worstSuppressionDb };
 }
 
 function isSymmetric(band: [number, number], fs: number): boolean {
@@ -368,16 +353,16 @@ function designAt(plan: Plan, n: number, beta?: number): Candidate {
   if (plan.method === 'kaiser') {
     const b = beta ?? kaiserBeta(kaiserAttenuation(n, kaiserWidth(plan)));
     const taps = kaiserHilbertTaps(n, b);
-    return { taps, evaluation: evaluateHilbertFir(taps, plan.fs, plan.band), beta: b };
+    return scored(plan, { taps, evaluation: evaluateHilbertFir(taps, plan.fs, plan.band), beta: b });
   }
   const r = remezTaps(plan, n);
-  return {
+  return scored(plan, {
     taps: r.taps,
     evaluation: evaluateHilbertFir(r.taps, plan.fs, plan.band),
     iterations: r.iterations,
     converged: r.converged,
     roundOff: r.roundOff,
-  };
+  });
 }
 
 /** Candidate lengths are indexed: half-band 4i − 1, full type III 2i + 1 (i ≥ 1). */
@@ -426,7 +411,7 @@ function searchShortest(
       c = designAt(plan, lengthOf(plan, i), beta);
       cache.set(i, c);
     }
-    return c.evaluation.worstSuppressionDb >= targetDb;
+    return c.score >= targetDb;
   };
   let i0 = Math.min(Math.max(1, iStart), iMax);
   let pass: number;
@@ -500,8 +485,7 @@ function searchKaiser(
       bestCand = cache.get(i)!;
     } else if (bestIndex === undefined) {
       const c = cache.get(limit);
-      if (c && (!fallback || c.evaluation.worstSuppressionDb > fallback.evaluation.worstSuppressionDb))
-        fallback = c;
+      if (c && (!fallback || c.score > fallback.score)) fallback = c;
     }
   }
   if (bestIndex !== undefined && bestCand) return { index: bestIndex, cand: bestCand };
@@ -555,10 +539,34 @@ function finish(plan: Plan, cand: Candidate): HilbertFirDesign {
  *   UNREACHABLE_TARGET when the target is not met (naming the suppression reached and, when found,
  *   the taps needed); NO_CONVERGENCE when the Remez exchange yields non-finite taps.
  * @example
+ * ```ts
+ * import { designHilbertFir } from 'orthotone';
+ *
  * const d = designHilbertFir({ sampleRate: 48000, band: [300, 3000], targetDb: 60 });
- * // d.taps.length is the shortest 4K − 1 length reaching 60 dB over 300–3000 Hz
+ * // the shortest 4K − 1 length reaching 60 dB over 300–3000 Hz; I is a delay of d.delaySamples
+ * console.log(d.taps.length, 'taps,', d.worstSuppressionDb.toFixed(1), 'dB');
+ * ```
  */
 export function designHilbertFir(spec: HilbertFirSpec): HilbertFirDesign {
+  return designHilbertFirJudged(spec, undefined);
+}
+
+/**
+ * {@link designHilbertFir} whose length search is decided by `judge` (the caller's own figure for
+ * the taps) instead of the FIR designer's evaluation, so a caller that reports other figures (the
+ * network document's `predicted`, rounded coefficients) needs no second length search.
+ * @param spec as for {@link designHilbertFir}.
+ * @param judge worst suppression in dB the caller will report for the taps; undefined: the
+ *   designer's own evaluation.
+ * @returns as {@link designHilbertFir}.
+ * @throws {OrthotoneError} as {@link designHilbertFir}; the target is judged by `judge`.
+ * Method: as {@link designHilbertFir} (McClellan, Parks & Rabiner 1973; Kaiser 1974).
+ * @internal
+ */
+export function designHilbertFirJudged(
+  spec: HilbertFirSpec,
+  judge: HilbertFirJudge | undefined,
+): HilbertFirDesign {
   if (typeof spec !== 'object' || spec === null) {
     throw new OrthotoneError(
       'INVALID_ARGUMENT',
@@ -616,6 +624,7 @@ export function designHilbertFir(spec: HilbertFirSpec): HilbertFirDesign {
     halfBand,
     method,
     gridDensity,
+    judge,
   };
   const where = `over [${band[0]}, ${band[1]}] Hz at sampleRate ${fs}`;
   const iMax = maxIndex(plan, maxTaps);
@@ -627,13 +636,11 @@ export function designHilbertFir(spec: HilbertFirSpec): HilbertFirDesign {
       const a = 20 * Math.log10(10 ** (targetDb / 20) + 1);
       const options = [0, 0.5, 1, 2, 3].map((m) => kaiserBeta(a + m));
       options.push(kaiserBeta(kaiserAttenuation(taps, kaiserWidth(plan))));
-      cand = options
-        .map((b) => designAt(plan, taps, b))
-        .reduce((x, y) => (y.evaluation.worstSuppressionDb > x.evaluation.worstSuppressionDb ? y : x));
+      cand = options.map((b) => designAt(plan, taps, b)).reduce((x, y) => (y.score > x.score ? y : x));
     } else {
       cand = designAt(plan, taps);
     }
-    const met = targetDb !== undefined && cand.evaluation.worstSuppressionDb >= targetDb;
+    const met = targetDb !== undefined && cand.score >= targetDb;
     if (cand.converged === false && !met) {
       throw new OrthotoneError(
         'NO_CONVERGENCE',
@@ -660,11 +667,11 @@ export function designHilbertFir(spec: HilbertFirSpec): HilbertFirDesign {
       }
       throw new OrthotoneError(
         'UNREACHABLE_TARGET',
-        `taps ${taps} give ${fmt(cand.evaluation.worstSuppressionDb)} dB worst suppression ${where}, below targetDb ${targetDb} dB: ` +
+        `taps ${taps} give ${fmt(cand.score)} dB worst suppression ${where}, below targetDb ${targetDb} dB: ` +
           (needed !== undefined
             ? `use taps ${needed} or more, or lower the target`
             : `no length up to maxTaps ${maxTaps} reaches it; widen the band, raise maxTaps, or use an all-pass network`),
-        { targetDb, reachedDb: cand.evaluation.worstSuppressionDb, tapsNeeded: needed },
+        { targetDb, reachedDb: cand.score, tapsNeeded: needed },
       );
     }
     return finish(plan, cand);
@@ -697,9 +704,9 @@ function unreachable(
     : `upper edge ${plan.band[1]} Hz (${plan.fs / 2 - plan.band[1]} Hz below Nyquist)`;
   return new OrthotoneError(
     'UNREACHABLE_TARGET',
-    `targetDb ${target} dB is out of reach ${where} within maxTaps ${maxTaps}: ${best.taps.length} taps give ${fmt(best.evaluation.worstSuppressionDb)} dB ` +
+    `targetDb ${target} dB is out of reach ${where} within maxTaps ${maxTaps}: ${best.taps.length} taps give ${fmt(best.score)} dB ` +
       `(about ${est} taps would be needed; the ${which} sets the length). ` +
       'Widen the band (move that edge inward), raise maxTaps, or use an all-pass network.',
-    { targetDb: target, reachedDb: best.evaluation.worstSuppressionDb, maxTaps, tapsEstimate: est },
+    { targetDb: target, reachedDb: best.score, maxTaps, tapsEstimate: est },
   );
 }

@@ -5,6 +5,7 @@
  */
 import type { Complex } from '../core/complex.js';
 import { OrthotoneError } from '../core/errors.js';
+import { allpassBranchResponseInto, firResponseInto } from './response.js';
 
 /** One all-pass section. order 1: `(a + z⁻¹)/(1 + a·z⁻¹)`; order 2: `(a + z⁻²)/(1 + a·z⁻²)`. */
 export interface AllpassSection {
@@ -74,55 +75,34 @@ export interface BranchResponse {
   q: Complex;
 }
 
-function sectionResponse(s: AllpassSection, w: number): Complex {
-  // H = (a + z^-m) / (1 + a z^-m), z^-m = e^{-j m w}
-  const c = Math.cos(s.order * w);
-  const sn = -Math.sin(s.order * w);
-  const nr = s.a + c;
-  const ni = sn;
-  const dr = 1 + s.a * c;
-  const di = s.a * sn;
-  const d = dr * dr + di * di;
-  return { re: (nr * dr + ni * di) / d, im: (ni * dr - nr * di) / d };
-}
-
-function branchResponseAt(b: AllpassBranch, w: number): Complex {
-  let re = Math.cos(b.delay * w);
-  let im = -Math.sin(b.delay * w);
-  for (const s of b.sections) {
-    const h = sectionResponse(s, w);
-    const r = re * h.re - im * h.im;
-    im = re * h.im + im * h.re;
-    re = r;
-  }
-  return { re, im };
-}
-
 /**
  * Evaluates both branches of a network at `frequencyHz` directly from its coefficients
  * (z = e^{jω}, ω = 2πf/fs).
  * @param net the network document.
  * @param frequencyHz frequency in Hz, 0 ≤ f ≤ fs/2.
  * @returns the complex responses `{ i, q }`.
- * Method: direct evaluation of the transfer functions of DESIGN.md §3 on the unit circle.
+ * Method: direct evaluation of the transfer functions of DESIGN.md §3 on the unit circle (the
+ *   one evaluator in response.ts).
  * @throws never for a network that passed {@link validateNetwork}; the document is not re-checked
  *   here, so a malformed object may fail with a TypeError.
  */
 export function evaluateBranches(net: Network, frequencyHz: number): BranchResponse {
   const w = (2 * Math.PI * frequencyHz) / net.sampleRate;
+  const buf = new Float64Array(4);
   if (net.kind === 'fir') {
+    // Q relative to the centre delay D, then both branches delayed by D.
+    firResponseInto(net.taps, w, buf, 0);
     const d = (net.taps.length - 1) / 2;
-    let re = 0;
-    let im = 0;
-    for (let k = 0; k < net.taps.length; k++) {
-      const t = net.taps[k]!;
-      if (t === 0) continue;
-      re += t * Math.cos(w * k);
-      im -= t * Math.sin(w * k);
-    }
-    return { i: { re: Math.cos(w * d), im: -Math.sin(w * d) }, q: { re, im } };
+    const c = Math.cos(w * d);
+    const s = -Math.sin(w * d);
+    return {
+      i: { re: c, im: s },
+      q: { re: buf[0]! * c - buf[1]! * s, im: buf[0]! * s + buf[1]! * c },
+    };
   }
-  return { i: branchResponseAt(net.branches.i, w), q: branchResponseAt(net.branches.q, w) };
+  allpassBranchResponseInto(net.branches.i, w, buf, 0);
+  allpassBranchResponseInto(net.branches.q, w, buf, 2);
+  return { i: { re: buf[0]!, im: buf[1]! }, q: { re: buf[2]!, im: buf[3]! } };
 }
 
 /**

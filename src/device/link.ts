@@ -291,7 +291,27 @@ export class DeviceLink {
       p.settle({ reset: reason });
     } else if (this.open && !this.recovery) {
       this.resetSeen = reason;
+      this.kick();
     }
+  }
+
+  /**
+   * Recovers at once, in the command queue, rather than at the next command: the device gets its
+   * settings back while a reading may be under way. A failure stays in `lost` for the next command.
+   */
+  private kick(): void {
+    this.serial(async () => {
+      if (this.resetSeen === undefined && this.channel) return;
+      if (this.lost || !this.open) return;
+      const why = this.resetSeen ?? 'the stream is closed';
+      this.resetSeen = undefined;
+      this.recovery = this.recover(why);
+      try {
+        await this.recovery;
+      } finally {
+        this.recovery = undefined;
+      }
+    }).catch(() => undefined);
   }
 
   /** Sends one command and waits for its answer (no queueing, no recovery). */

@@ -12,6 +12,14 @@ import { type Network, validateNetwork } from '../design/network.js';
  * @param net a network document.
  * @returns JSON text ending in a newline.
  * @throws never for a network document (plain JSON data); it is serialised as given, not validated.
+ * @example
+ * ```ts
+ * import { designNetwork, networkToJson } from 'orthotone';
+ *
+ * const net = designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'allpass', targetDb: 60 });
+ * const text = networkToJson(net); // the network document, ready to save as network.json
+ * console.log(text.length, 'characters');
+ * ```
  */
 export function networkToJson(net: Network): string {
   return `${JSON.stringify(net, null, 2)}\n`;
@@ -21,6 +29,14 @@ export function networkToJson(net: Network): string {
  * Parses and validates a network document.
  * @param text JSON text of a network document, format version 1.
  * @throws {OrthotoneError} INVALID_DOCUMENT when the text is not JSON or not a valid document.
+ * @example
+ * ```ts
+ * import { designNetwork, networkToJson, parseNetworkJson } from 'orthotone';
+ *
+ * const text = networkToJson(designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'fir', targetDb: 50 }));
+ * const net = parseNetworkJson(text); // validated: a bad file throws OrthotoneError INVALID_DOCUMENT
+ * console.log(net.kind, net.sampleRate, 'Hz');
+ * ```
  */
 export function parseNetworkJson(text: string): Network {
   let doc: unknown;

@@ -474,8 +474,12 @@ function fillCore(
  * @throws {OrthotoneError} INVALID_ARGUMENT for an invalid spec or sample rate.
  * @example
  * ```ts
+ * import { createSignalSource } from 'orthotone';
+ *
  * const src = createSignalSource({ kind: 'two-tone', frequenciesHz: [700, 1900], levelDbfs: -7 }, 48000);
- * src.levels.pepDbfs; // −0.98 dBFS
+ * console.log(src.levels.pepDbfs.toFixed(2)); // −0.98 dBFS
+ * const block = new Float32Array(480);
+ * src.fill(block); // the next 10 ms
  * ```
  */
 export function createSignalSource(spec: SignalSpec, sampleRate: number): SignalSource {

@@ -82,8 +82,15 @@ export const DEFAULT_SIDEBAND_OPTIONS = Object.freeze({
  *
  * @example
  * ```ts
- * const r = measureSideband(i, q, 48000, { toneHz: 1000 });
- * // r.sidebandSuppressionDb ≈ 41.2 for a 1° phase error (REFERENCES.md §1)
+ * import { measureSideband } from 'orthotone';
+ *
+ * // An I/Q pair with a 1° phase error: Q lags I by 89° instead of 90°.
+ * const fs = 48000;
+ * const n = 48000;
+ * const i = Float32Array.from({ length: n }, (_, k) => 0.5 * Math.cos((2 * Math.PI * 1000 * k) / fs));
+ * const q = Float32Array.from({ length: n }, (_, k) => 0.5 * Math.sin((2 * Math.PI * 1000 * k) / fs + Math.PI / 180));
+ * const r = measureSideband(i, q, fs, { toneHz: 1000 });
+ * console.log(r.sidebandSuppressionDb.toFixed(1), 'dB'); // about 41.2 dB (REFERENCES.md §1)
  * ```
  * @param i I samples, or receiver audio, full-scale units.
  * @param q Q samples, or null for receiver audio.

@@ -18,6 +18,7 @@ import {
   requirePositive,
   requireRange,
   requireSampleRate,
+  stripUndefined,
 } from '../core/validate.js';
 import {
   createWindow,
@@ -404,10 +405,4 @@ export function floorNear(
   const mid = vals.length >> 1;
   const median = vals.length % 2 ? vals[mid]! : (vals[mid - 1]! + vals[mid]!) / 2;
   return median / gammaMedianToMean(s.equivalentAverages);
-}
-
-function stripUndefined<T extends object>(o: T): Partial<T> {
-  const out: Partial<T> = {};
-  for (const k of Object.keys(o) as (keyof T)[]) if (o[k] !== undefined) out[k] = o[k];
-  return out;
 }

@@ -367,10 +367,12 @@ export function analyzeTones(
  *
  * @example
  * ```ts
+ * import { measureTones } from 'orthotone';
+ *
  * const fs = 48000;
  * const x = Float32Array.from({ length: 65536 }, (_, n) => 0.5 * Math.sin((2 * Math.PI * 1000.3 * n) / fs));
  * const [r] = measureTones(x, fs, [1000]);
- * // r.levelDbfs ≈ −6.02, r.frequencyHz ≈ 1000.3
+ * console.log(r?.levelDbfs.toFixed(2), 'dBFS at', r?.frequencyHz.toFixed(2), 'Hz'); // −6.02 dBFS at 1000.30 Hz
  * ```
  * @param capture real samples or {i, q}, full-scale units.
  * @param sampleRate Hz.

@@ -65,6 +65,18 @@ export interface TwoToneReading {
  *   Nyquist), CAPTURE_TOO_SHORT, TONES_UNRESOLVED (the tone spacing needs longer frames).
  * Reference: REFERENCES.md §5 (PEP of two equal tones); products at m·f1 − (m−1)·f2, standard
  * intermodulation arithmetic.
+ * @example
+ * ```ts
+ * import { createSignalSource, measureTwoTone } from 'orthotone';
+ *
+ * // 700 and 1900 Hz (common practice, no source) through a slightly curved transfer: x + 0.01·x³.
+ * const src = createSignalSource({ kind: 'two-tone', frequenciesHz: [700, 1900], levelDbfs: -7 }, 48000);
+ * const x = new Float32Array(48000);
+ * src.fill(x);
+ * for (let k = 0; k < x.length; k++) x[k] = x[k]! + 0.01 * x[k]! ** 3;
+ * const r = measureTwoTone(x, 48000, [700, 1900]);
+ * console.log(r.products.map((p) => `${p.frequencyHz} Hz ${p.dbPep.toFixed(1)} dB below PEP`).join(", "));
+ * ```
  */
 export function measureTwoTone(
   capture: Capture,

@@ -895,6 +895,27 @@ export async function readWavFile(path: string, options: Partial<WavReadOptions>
 /**
  * Writes an I/Q pair as a stereo WAV file: left = I, right = Q (atomically, see {@link writeWavFile}).
  * @throws {OrthotoneError} BUFFER_MISMATCH when I and Q differ in length; as {@link writeWavFile}.
+ * @example
+ * ```ts
+ * import { mkdtempSync } from 'node:fs';
+ * import { tmpdir } from 'node:os';
+ * import { join } from 'node:path';
+ * import { createQuadratureGenerator, createSignalSource, designNetwork } from 'orthotone';
+ * import { readIqWavFile, writeIqWavFile } from 'orthotone/node';
+ *
+ * // One second of a 1000 Hz tone as I/Q (left I, right Q), written and read back.
+ * const net = designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'allpass', targetDb: 60 });
+ * const gen = createQuadratureGenerator(net);
+ * const audio = new Float32Array(48000);
+ * createSignalSource({ kind: 'tone', frequencyHz: 1000, levelDbfs: -6 }, 48000).fill(audio);
+ * const i = new Float32Array(48000);
+ * const q = new Float32Array(48000);
+ * gen.process(audio, i, q);
+ * const file = join(mkdtempSync(join(tmpdir(), 'iq-')), 'tone-iq.wav');
+ * await writeIqWavFile(file, i, q, 48000); // 32-bit float by default
+ * const back = await readIqWavFile(file);
+ * console.log(back.sampleRate, back.i.length, back.q.length);
+ * ```
  */
 export async function writeIqWavFile(
   path: string,
@@ -916,6 +937,27 @@ export async function writeIqWavFile(
  * Reads a stereo I/Q WAV file (left = I, right = Q).
  * @throws {OrthotoneError} INVALID_ARGUMENT when the file does not have exactly two channels; as
  *   {@link readWavFile}.
+ * @example
+ * ```ts
+ * import { mkdtempSync } from 'node:fs';
+ * import { tmpdir } from 'node:os';
+ * import { join } from 'node:path';
+ * import { createQuadratureGenerator, createSignalSource, designNetwork } from 'orthotone';
+ * import { readIqWavFile, writeIqWavFile } from 'orthotone/node';
+ *
+ * // One second of a 1000 Hz tone as I/Q (left I, right Q), written and read back.
+ * const net = designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'allpass', targetDb: 60 });
+ * const gen = createQuadratureGenerator(net);
+ * const audio = new Float32Array(48000);
+ * createSignalSource({ kind: 'tone', frequencyHz: 1000, levelDbfs: -6 }, 48000).fill(audio);
+ * const i = new Float32Array(48000);
+ * const q = new Float32Array(48000);
+ * gen.process(audio, i, q);
+ * const file = join(mkdtempSync(join(tmpdir(), 'iq-')), 'tone-iq.wav');
+ * await writeIqWavFile(file, i, q, 48000); // 32-bit float by default
+ * const back = await readIqWavFile(file);
+ * console.log(back.sampleRate, back.i.length, back.q.length);
+ * ```
  */
 export async function readIqWavFile(
   path: string,

@@ -7,7 +7,7 @@
 import { OrthotoneError } from '../core/errors.js';
 import { createRng } from '../core/rng.js';
 import type { Trims } from '../core/trims.js';
-import { requireFinite, requireRange } from '../core/validate.js';
+import { requireFinite, requireRange, stripUndefined } from '../core/validate.js';
 import type { VirtualExciter } from './exciter.js';
 
 /** Options of {@link createAnalyzer}. */
@@ -93,15 +93,21 @@ export interface Analyzer {
  *   with probability `failureRate`.
  * Reference: power addition of a level and a floor (incoherent sum); reading noise model of
  * DESIGN.md §6 (σ in dB).
+ * @example
+ * ```ts
+ * import { createAnalyzer, createVirtualExciter, homebrewBenchDevice } from 'orthotone';
+ *
+ * const exciter = createVirtualExciter(homebrewBenchDevice(), { sampleRate: 48000, seed: 1 });
+ * const analyzer = createAnalyzer(exciter, { seed: 2, noiseDb: 0.2 });
+ * const { sidebandDbc, carrierDbc } = analyzer.readBoth(1000, { gainDb: 0.2, phaseDeg: -1 });
+ * console.log(sidebandDbc.toFixed(1), carrierDbc.toFixed(1), 'dBc');
+ * ```
  */
 export function createAnalyzer(
   exciter: VirtualExciter,
   options: Partial<AnalyzerOptions> & { seed: number },
 ): Analyzer {
-  const o = {
-    ...DEFAULT_ANALYZER_OPTIONS,
-    ...Object.fromEntries(Object.entries(options ?? {}).filter(([, v]) => v !== undefined)),
-  } as AnalyzerOptions;
+  const o = { ...DEFAULT_ANALYZER_OPTIONS, ...stripUndefined(options) } as AnalyzerOptions;
   requireFinite('seed', o.seed);
   requireRange('floorDbc', o.floorDbc, -300, 0, 'dBc');
   requireRange('noiseDb', o.noiseDb, 0, 20, 'dB');

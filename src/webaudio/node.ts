@@ -27,7 +27,8 @@ import {
   type ToProcessor,
   TRIM_NAMES,
 } from './messages.js';
-import { createBlockSource, createRunningGenerator } from './runtime.js';
+import { createRunningGenerator } from './runtime.js';
+import { createBlockSource } from './test-source.js';
 import { loadWorkletModule, workletNodeConstructorFor } from './worklet-module.js';
 
 /** Options of {@link createQuadratureNode}. */
@@ -220,10 +221,18 @@ function checkCrossfade(v: unknown): number {
  *   context that needs `options.AudioWorkletNode`. Thrown before anything is loaded.
  * @example
  * ```ts
+ * import { createQuadratureNode, designNetwork } from 'orthotone';
+ *
+ * // Where your page serves the package's `orthotone/worklet` file (dist/worklet/processor.js).
+ * const workletUrl = '/orthotone/worklet/processor.js';
  * const ctx = new AudioContext({ sampleRate: 48000 });
  * const net = designNetwork({ sampleRate: 48000, band: [300, 3000], method: 'allpass', targetDb: 60 });
- * const q = await createQuadratureNode(ctx, net, { moduleUrl: workletUrl, source: { kind: 'tone', frequencyHz: 1000 } });
- * q.node.connect(ctx.destination); // left I, right Q
+ * const q = await createQuadratureNode(ctx, net, {
+ *   moduleUrl: workletUrl,
+ *   source: { kind: 'tone', frequencyHz: 1000 },
+ * });
+ * // The node is typed structurally (native, standardized-audio-context or node-web-audio-api).
+ * q.node.connect(ctx.destination as never); // left I, right Q
  * q.setTrims({ gainDb: 0.1, phaseDeg: -0.4 });
  * ```
  */

@@ -20,12 +20,8 @@ import type {
   ToProcessor,
 } from './messages.js';
 import { QUADRATURE_PARAMS, TRIM_NAMES } from './messages.js';
-import {
-  type BlockSource,
-  createBlockSource,
-  createRunningGenerator,
-  type RunningGenerator,
-} from './runtime.js';
+import { createRunningGenerator, type RunningGenerator } from './runtime.js';
+import { type BlockSource, createBlockSource } from './test-source.js';
 
 /** The parts of `AudioWorkletProcessor` the shell uses. */
 export interface ProcessorBase {

@@ -1,6 +1,6 @@
 /**
  * The generate/ kernels as the processor uses them: a running quadrature generator (network +
- * trims + sideband + correction) and block sources (the node input, silence, or a test signal).
+ * trims + sideband + correction). The block sources are in test-source.ts.
  * Also used on the main thread by the node factory to validate everything before the audio thread
  * sees it.
  */
@@ -8,8 +8,6 @@ import type { Correction, Trims } from '../core/trims.js';
 import type { Network } from '../design/network.js';
 import { createQuadratureGenerator, type QuadratureGenerator } from '../generate/quadrature-generator.js';
 import type { GeneratorStats, Sideband } from '../generate/trim-stage.js';
-import type { SourceSpec } from './messages.js';
-import { createTestSource } from './test-source.js';
 
 /** A generator plus the operations the processor needs. */
 export interface RunningGenerator {
@@ -53,36 +51,4 @@ export function createRunningGenerator(
   trims: Trims,
 ): RunningGenerator {
   return wrap(createQuadratureGenerator(network, { sideband, correction, trims }));
-}
-
-/** Fills a block with the source signal; `input` is the node's first input channel, if connected. */
-export interface BlockSource {
-  fill(out: Float32Array, input: Float32Array | undefined): void;
-  reset(): void;
-}
-
-const inputSource: BlockSource = {
-  fill(out, input) {
-    if (input && input.length === out.length) out.set(input);
-    else out.fill(0);
-  },
-  reset() {},
-};
-
-const silence: BlockSource = {
-  fill(out) {
-    out.fill(0);
-  },
-  reset() {},
-};
-
-/**
- * Creates the source a spec describes. Test sources are unit-level (peak 1 for a tone, PEP 1 for
- * two tones, RMS 1 for noise); the processor's `levelDb` sets the level.
- * @throws {OrthotoneError} INVALID_ARGUMENT for an unknown kind or a bad frequency or duration.
- */
-export function createBlockSource(spec: SourceSpec, sampleRate: number): BlockSource {
-  if (spec?.kind === 'input') return inputSource;
-  if (spec?.kind === 'silence') return silence;
-  return createTestSource(spec, sampleRate);
 }

@@ -1,18 +1,49 @@
 /**
- * The processor's internal test sources: generate/'s signal sources at unit level, with the level
- * applied afterwards by the node's `levelDb` AudioParam (so the level can be automated without
- * restarting the signal).
+ * The processor's block sources: the node input, silence, or a test signal. Test signals are
+ * generate/'s signal sources (and its multi-tone source) at unit level, with the level applied
+ * afterwards by the node's `levelDb` AudioParam (so the level can be automated without restarting
+ * the signal).
  */
 import { OrthotoneError } from '../core/errors.js';
-import { createSignalSource, type SignalSource, type SignalSpec } from '../generate/sources.js';
+import { createMultitoneSource } from '../generate/multitone-source.js';
+import { createSignalSource, type SignalSpec } from '../generate/sources.js';
 import type { SourceSpec } from './messages.js';
-import type { BlockSource } from './runtime.js';
 
 /** Two equal tones with a peak envelope (PEP) of 0 dBFS: each 6.02 dB below (20·log10(1/2)). */
 const HALF_DBFS = 20 * Math.log10(0.5);
 
-/** Most tones in a `multitone` source. */
-export const MAX_MULTITONE_TONES = 32;
+/** Fills a block with the source signal; `input` is the node's first input channel, if connected. */
+export interface BlockSource {
+  fill(out: Float32Array, input: Float32Array | undefined): void;
+  reset(): void;
+}
+
+const inputSource: BlockSource = {
+  fill(out, input) {
+    if (input && input.length === out.length) out.set(input);
+    else out.fill(0);
+  },
+  reset() {},
+};
+
+const silence: BlockSource = {
+  fill(out) {
+    out.fill(0);
+  },
+  reset() {},
+};
+
+/**
+ * Creates the source a spec describes. Test sources are unit-level (peak 1 for a tone, PEP 1 for
+ * two tones, RMS 1 for noise, sum of peaks 1 for several tones); the processor's `levelDb` sets
+ * the level.
+ * @throws {OrthotoneError} INVALID_ARGUMENT for an unknown kind or a bad frequency or duration.
+ */
+export function createBlockSource(spec: SourceSpec, sampleRate: number): BlockSource {
+  if (spec?.kind === 'input') return inputSource;
+  if (spec?.kind === 'silence') return silence;
+  return createTestSource(spec, sampleRate);
+}
 
 /**
  * The generate/ spec for a test source at unit level (tone peak 0 dBFS, two-tone PEP 0 dBFS so each
@@ -52,7 +83,10 @@ export function signalSpecFor(spec: Exclude<SourceSpec, { kind: 'multitone' }>):
  * @throws {OrthotoneError} INVALID_ARGUMENT for an unknown kind or values createSignalSource refuses.
  */
 export function createTestSource(spec: SourceSpec, sampleRate: number): BlockSource {
-  if (spec?.kind === 'multitone') return createMultitoneSource(spec.frequenciesHz, sampleRate);
+  if (spec?.kind === 'multitone') {
+    const m = createMultitoneSource(spec.frequenciesHz, sampleRate);
+    return { fill: (out) => m.fill(out), reset: () => m.reset() };
+  }
   const src = createSignalSource(signalSpecFor(spec), sampleRate);
   return {
     fill(out) {
@@ -60,76 +94,6 @@ export function createTestSource(spec: SourceSpec, sampleRate: number): BlockSou
     },
     reset() {
       src.reset();
-    },
-  };
-}
-
-/**
- * Starting phase of tone k (0-based) of K, radians: Schroeder's low-peak-factor phases
- * `φ_k = −π·k²/K` (M. R. Schroeder, "Synthesis of low-peak-factor signals and binary sequences
- * with low autocorrelation", IEEE Trans. Inf. Theory 16(1):85–89, 1970; from memory). They keep
- * the start of the signal, and tones on a harmonic grid throughout, well below the sum of the
- * amplitudes; tones off such a grid still come near it at times, which the 1/K levels allow for.
- * @throws never
- */
-export function multitonePhaseRad(k: number, count: number): number {
-  return (-Math.PI * k * k) / count;
-}
-
-/**
- * K equal tones, each of peak 1/K (so the sum never exceeds 1), with Schroeder phases: the sum of
- * K of generate/'s tone sources. The scratch block is allocated here and grown only if a longer
- * block than any before arrives (a render quantum is 128 frames), never per block.
- * @throws {OrthotoneError} INVALID_ARGUMENT for fewer than 2 or more than 32 tones, a repeated
- *   tone, or a frequency generate/ refuses (not in (0, fs/2)).
- */
-function createMultitoneSource(frequenciesHz: readonly number[], sampleRate: number): BlockSource {
-  if (
-    !Array.isArray(frequenciesHz) ||
-    frequenciesHz.length < 2 ||
-    frequenciesHz.length > MAX_MULTITONE_TONES
-  ) {
-    throw new OrthotoneError(
-      'INVALID_ARGUMENT',
-      `a multitone source needs 2 to ${MAX_MULTITONE_TONES} frequencies in Hz; got ${JSON.stringify(frequenciesHz)}`,
-      frequenciesHz,
-    );
-  }
-  if (new Set(frequenciesHz).size !== frequenciesHz.length) {
-    throw new OrthotoneError(
-      'INVALID_ARGUMENT',
-      `multitone frequencies must differ from each other; got ${JSON.stringify(frequenciesHz)}`,
-      frequenciesHz,
-    );
-  }
-  const count = frequenciesHz.length;
-  const levelDbfs = -20 * Math.log10(count);
-  const tones: SignalSource[] = frequenciesHz.map((f, k) => {
-    const phaseDeg = (multitonePhaseRad(k, count) * 180) / Math.PI;
-    try {
-      return createSignalSource({ kind: 'tone', frequencyHz: f, levelDbfs, phaseDeg }, sampleRate);
-    } catch (e) {
-      throw new OrthotoneError(
-        'INVALID_ARGUMENT',
-        `multitone frequenciesHz[${k}]: ${e instanceof Error ? e.message : String(e)}`,
-        f,
-      );
-    }
-  });
-  let scratch = new Float32Array(128);
-  return {
-    fill(out) {
-      const n = out.length;
-      if (scratch.length < n) scratch = new Float32Array(n);
-      const s = scratch.subarray(0, n);
-      tones[0]!.fill(out);
-      for (let k = 1; k < count; k++) {
-        tones[k]!.fill(s);
-        for (let j = 0; j < n; j++) out[j]! += s[j]!;
-      }
-    },
-    reset() {
-      for (const t of tones) t.reset();
     },
   };
 }

@@ -133,3 +133,86 @@ function nonFinite(r: unknown): string | null {
 function abortedReading(): OrthotoneError {
   return new OrthotoneError('ABORTED', 'the reading was aborted');
 }
+
+/**
+ * The Web Audio generator as a trim applier (the shape of calibrate/session.ts `TrimApplier`, which
+ * this layer does not import): sets the trims on the quadrature node with a short ramp and returns
+ * them as in force.
+ * @param node the generator.
+ * @param rampSeconds ramp of each change, seconds (default 0.01).
+ * @throws {OrthotoneError} INVALID_ARGUMENT when `node` is not a quadrature node or the ramp is out
+ *   of range (0…10 s).
+ */
+export function createGeneratorApplier(
+  node: Pick<QuadratureNode, 'setTrims'>,
+  rampSeconds = 0.01,
+): { apply(trims: Trims, signal: AbortSignal): Trims } {
+  if (!node || typeof node.setTrims !== 'function') {
+    throw new OrthotoneError('INVALID_ARGUMENT', 'node must be a quadrature node (createQuadratureNode)');
+  }
+  requireRange('rampSeconds', rampSeconds, 0, 10, 's');
+  return {
+    apply(trims) {
+      node.setTrims(trims, { rampSeconds });
+      return { ...trims };
+    },
+  };
+}
+
+/** Options of {@link createCaptureSource}. */
+export interface CaptureSourceOptions<T> {
+  /** Where the answer comes back (receiver audio or the I/Q). */
+  capture: Pick<CaptureNode, 'capture'>;
+  /** Sample rate of the capture, Hz. */
+  sampleRate: number;
+  /**
+   * Turns one capture into the level(s), dB; non-finite levels are passed on (the session's guard
+   * decides). May throw: the reading then fails.
+   * @throws anything: the reading then fails.
+   */
+  read: (capture: CaptureResult, sampleRate: number) => T;
+  /** Wait after the trims were applied, before capturing, seconds (ramp plus path latency). */
+  settleSeconds: number;
+  /** Capture length, seconds. */
+  captureSeconds: number;
+  /**
+   * Guard run on every reading (e.g. calibrate's `liveGuard`): a message stops the session.
+   * @throws never (return the message instead).
+   */
+  check?: (levels: T, trims: Trims) => string | undefined;
+}
+
+/**
+ * Web Audio capture as a reading source (the shape of calibrate/session.ts `ReadingSource`, which
+ * this layer does not import): waits `settleSeconds` counted on the audio thread, captures, and
+ * reads; the session's per-reading signal (abort, time-out) abandons the capture. Pair it with
+ * {@link createGeneratorApplier} (or a device's applier) in `runSession`.
+ * @throws {OrthotoneError} INVALID_ARGUMENT for a missing capture or read, a bad sample rate or a
+ *   duration out of range (settle 0…10 s; capture 1 ms…10 s).
+ */
+export function createCaptureSource<T>(o: CaptureSourceOptions<T>): {
+  read(trims: Trims, context: { signal: AbortSignal }): Promise<T>;
+  check?: (levels: T, trims: Trims) => string | undefined;
+} {
+  if (!o?.capture || typeof o.capture.capture !== 'function') {
+    throw new OrthotoneError('INVALID_ARGUMENT', 'capture must be a capture node (createCaptureNode)');
+  }
+  if (typeof o.read !== 'function') {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      'read must be a function (capture, sampleRate) => level in dB',
+    );
+  }
+  requireRange('sampleRate', o.sampleRate, 1000, 1e6, 'Hz');
+  requireRange('settleSeconds', o.settleSeconds, 0, 10, 's');
+  requireRange('captureSeconds', o.captureSeconds, 0.001, 10, 's');
+  const frames = Math.max(1, Math.round(o.captureSeconds * o.sampleRate));
+  const skipFrames = Math.round(o.settleSeconds * o.sampleRate);
+  return {
+    async read(_trims, context) {
+      const cap = await abortable(o.capture.capture(frames, { skipFrames }), context.signal, abortedReading);
+      return o.read(cap, o.sampleRate);
+    },
+    ...(o.check ? { check: o.check } : {}),
+  };
+}

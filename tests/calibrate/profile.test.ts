@@ -4,13 +4,10 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { designCorrection, equivalentTrims, fitImbalanceModel } from '../../src/calibrate/multitone.js';
-import {
-  createProfile,
-  parseProfileJson,
-  profileToJson,
-  validateProfile,
-} from '../../src/calibrate/profile.js';
+import { createProfile, validateProfile } from '../../src/calibrate/profile.js';
 import { profileToCHeader } from '../../src/export/profile-header.js';
+import { parseProfileJson, profileToJson } from '../../src/export/profile-json.js';
+import { validateCorrection } from '../../src/generate/correction.js';
 import { expectOrthotoneError } from '../support/errors.js';
 
 const model = fitImbalanceModel([
@@ -61,14 +58,17 @@ describe('correction filter design', () => {
   it('realises the fitted model: each tone sees the trims of its own null', () => {
     // The widely-linear pair must act, at each tone, as the gain/phase trim the model asks for
     // (Anttila, Valkama & Renfors 2008): check the equivalent trims against the model within
-    // 0.002 dB and 0.01° across the band (each alone ≥ 75 dB, REFERENCES.md §1).
+    // 0.002 dB and 0.015° across the band (each alone ≥ 75 dB: 10·log10(4/φ²) = 77.6 dB for
+    // φ = 0.015°, REFERENCES.md §1), with taps the generator accepts (plain least squares gave an
+    // absolute tap sum of 79 here, which it refuses; the ridge keeps it at 12 or less).
+    expect(() => validateCorrection(correction, 63)).not.toThrow();
     for (const f of [300, 500, 1000, 2000, 3000]) {
       const eq = equivalentTrims(correction, {}, f, 48000);
       const r = f / model.f0;
       const g = model.gainDb[0] + model.gainDb[1] * r * r + model.gainDb[2] / (r * r);
       const ph = ((model.phase[0] + model.phase[1] * f + model.phase[2] / f) * 180) / Math.PI;
       expect(Math.abs(eq.gainDb - g)).toBeLessThan(0.002);
-      expect(Math.abs(eq.phaseDeg - ph)).toBeLessThan(0.01);
+      expect(Math.abs(eq.phaseDeg - ph)).toBeLessThan(0.015);
     }
   });
   it('a pure delay of Q is read back as that skew (phase slope 2πfτ)', () => {

@@ -5,6 +5,7 @@ import { describe, expect, it } from 'vitest';
 import { calibrateCarrier } from '../../src/calibrate/carrier.js';
 import { calibrateSidebandAndCarrier, createCombinedSeeker } from '../../src/calibrate/combined.js';
 import {
+  liveGuard,
   type ReadingSource,
   runSession,
   type SessionCommand,
@@ -14,6 +15,7 @@ import { calibrateSideband, sidebandAxes } from '../../src/calibrate/sideband.js
 import { createTrimSeeker, seekerFor } from '../../src/calibrate/trim-calibration.js';
 import { createRng } from '../../src/core/rng.js';
 import type { Trims } from '../../src/core/trims.js';
+import { createCaptureSource, createGeneratorApplier } from '../../src/webaudio/trim-reader.js';
 import { analyzer, drawAnalyticDevice } from './analytic-exciter.js';
 
 const never = () => new Promise<never>(() => {});
@@ -162,5 +164,82 @@ describe('runSession', () => {
     expect(() => c2.restore({ format: 'x' })).toThrow(/not a combined/);
     const car = await calibrateCarrier({ measure: (t) => an.carrier(t), maxReadings: 5 });
     expect(car.readings).toBe(5);
+  });
+  it('live guard: no receiver signal stops at the first reading with a message, trims kept at the start (issue 9)', async () => {
+    // The page's failure: with no receiver signal it read +5.6 dBc and drove the trims far off.
+    for (const [levels, msg] of [
+      [{ sidebandDb: 5.6, carrierDb: 3, wantedDbfs: -95 }, /wanted tone reads -95.0 dBFS, below -60 dBFS/],
+      [
+        { sidebandDb: 5.6, carrierDb: 3, wantedDbfs: -20 },
+        /unwanted sideband reads 5.6 dB above the wanted tone/,
+      ],
+      [
+        { sidebandDb: Number.NaN, carrierDb: -30, wantedDbfs: -20 },
+        /gave no level .*check that the receiver audio/,
+      ],
+    ] as const) {
+      let calls = 0;
+      const r = await calibrateSidebandAndCarrier({
+        measure: () => {
+          calls++;
+          return levels;
+        },
+        start: { gainDb: 0.2, phaseDeg: 1 },
+        check: liveGuard(-60),
+      });
+      expect(calls).toBe(1);
+      expect(r.refusal).toMatch(msg);
+      expect(r.trims.gainDb).toBe(0.2);
+      expect(r.trims.phaseDeg).toBe(1);
+    }
+  });
+  it('hardware bounds hold every setting of a live run inside the range the user gave', async () => {
+    const dev = drawAnalyticDevice(createRng(12));
+    const an = analyzer(dev, { seed: 13 });
+    const seen: Trims[] = [];
+    await calibrateSidebandAndCarrier({
+      measure: (t) => {
+        seen.push(t);
+        return { sidebandDb: an.sideband(t), carrierDb: an.carrier(t) };
+      },
+      bounds: { gainDb: [-0.5, 0.5], phaseDeg: [-2, 2], dcI: [-0.02, 0.02], dcQ: [-0.02, 0.02] },
+    });
+    for (const t of seen) {
+      expect(Math.abs(t.gainDb)).toBeLessThanOrEqual(0.5 + 1e-9);
+      expect(Math.abs(t.phaseDeg)).toBeLessThanOrEqual(2 + 1e-9);
+      expect(Math.abs(t.dcI)).toBeLessThanOrEqual(0.02 + 1e-12);
+      expect(Math.abs(t.dcQ)).toBeLessThanOrEqual(0.02 + 1e-12);
+    }
+  });
+});
+
+describe('Web Audio capture as a reading source', () => {
+  it('drives a session: the applier sets the trims, the capture is read after the settle frames, and the guard sees NaN', async () => {
+    const set: Trims[] = [];
+    const node = { setTrims: (t: Partial<Trims>) => set.push({ ...(t as Trims) }) };
+    const skips: number[] = [];
+    let n = 0;
+    const capture = {
+      capture: (frames: number, o?: { skipFrames?: number }) => {
+        skips.push(o?.skipFrames ?? -1);
+        return Promise.resolve({ channels: [new Float32Array(frames)], sampleRate: 48000, startFrame: 0 });
+      },
+    };
+    const source = createCaptureSource<number>({
+      capture: capture as never,
+      sampleRate: 48000,
+      read: () => (++n < 4 ? -40 + n : Number.NaN),
+      settleSeconds: 0.05,
+      captureSeconds: 0.01,
+      check: (db) => (Number.isFinite(db) ? undefined : 'no level: check the receiver'),
+    });
+    const { seeker, start } = seekerFor({ measure: () => 0 }, sidebandAxes());
+    const ts = createTrimSeeker(seeker, sidebandAxes(), start);
+    const r = await runSession(ts, source, { applier: createGeneratorApplier(node) });
+    expect(skips.every((s) => s === 2400)).toBe(true);
+    expect(r.history.map((h) => h.trims)).toEqual(set);
+    expect(r.cutShort).toBe('refused');
+    expect(r.refusal).toMatch(/check the receiver/);
+    expect(r.history).toHaveLength(4);
   });
 });

@@ -260,3 +260,45 @@ describe('calibrate: outputs and seeds checked before the first reading', () => 
     expect(r.stdout).toMatch(/\[carrier reading 2 /);
   });
 });
+
+describe('calibrate --what band (issue 9 item 5)', () => {
+  it('--simulate on a skewed codec: a correction the profile carries, and the band deepens', () => {
+    const dir = tmp();
+    const r = cli([
+      'calibrate',
+      '--simulate',
+      '--what',
+      'band',
+      '--tolerance',
+      'skewSeconds=2e-6,couplingHighPassHz=20,antiImagingLowPassHz=20000,cornerPct=10',
+      '--max-readings',
+      '24',
+      '--format',
+      'json',
+      '--profile',
+      join(dir, 'p.json'),
+    ]);
+    expect(r.status, r.stderr).toBe(0);
+    const out = JSON.parse(r.stdout);
+    expect(out.readings).toBeLessThanOrEqual(24);
+    expect(out.trueWorstAfterDb).toBeGreaterThan(out.trueWorstBeforeDb + 15);
+    const p = validateProfile(JSON.parse(readFileSync(join(dir, 'p.json'), 'utf8')));
+    expect(p.correction?.qFromQ).toHaveLength(31);
+    expect(p.tonesHz).toEqual(out.tonesHz);
+    expect(p.readings.every((x) => x.quantity.startsWith('tone:'))).toBe(true);
+  });
+  it('--measure-command gets the tones and prints one level per tone; too few tones is refused', () => {
+    const bad = cli(['calibrate', '--simulate', '--what', 'band', '--tones', '1000']);
+    expect(bad.status).toBe(2);
+    expect(bad.stderr).toMatch(/--tones 1000 must list at least 2 tones/);
+    const r = cli([
+      'calibrate',
+      '--what',
+      'band',
+      '--measure-command',
+      'echo "$OT_QUANTITY $OT_TONES_HZ" >&2; echo -40 -41',
+    ]);
+    expect(r.status).toBe(2);
+    expect(r.stdout).toMatch(/is not 5 levels/);
+  });
+});

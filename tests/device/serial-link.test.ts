@@ -85,7 +85,8 @@ describe('device link over a real pseudo-terminal', () => {
     const link = await open(dev.path);
     await link.setTrims({ gainDb: 0.8, dcQ: 0.01 });
     dev.proc.kill('SIGUSR1'); // power-on state: trims zero
-    await new Promise((r) => setTimeout(r, 100));
+    // the link restores the trims on its own, without waiting for the next command
+    await expect.poll(() => readState(state).gainDb, { timeout: 3000 }).toBeCloseTo(0.8, 3);
     const t = await link.readTrims();
     expect(t.gainDb).toBeCloseTo(0.8, 3);
     expect(t.dcQ).toBeCloseTo(0.01, 4);

@@ -4,9 +4,10 @@ import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { createProfile, profileToJson } from '../../src/calibrate/profile.js';
+import { createProfile } from '../../src/calibrate/profile.js';
 import { designNetwork } from '../../src/design/design-network.js';
 import { networkToJson } from '../../src/export/network-json.js';
+import { profileToJson } from '../../src/export/profile-json.js';
 import { cli, writeTestWav } from '../support/cli.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'orthotone-emissions-'));

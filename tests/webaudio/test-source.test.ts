@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { OrthotoneError } from '../../src/core/errors.js';
-import { createBlockSource } from '../../src/webaudio/runtime.js';
+import { createBlockSource } from '../../src/webaudio/test-source.js';
 
 const FS = 48000;
 const TONES = [300, 530, 940, 1700, 3000];

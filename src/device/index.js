@@ -1,0 +1,3 @@
+export * from './link.js';
+export * from './protocol.js';
+export * from './streams.js';

@@ -12,16 +12,19 @@ import {
   readFileSync,
   rmSync,
   statfsSync,
+  symlinkSync,
   writeFileSync,
 } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { basename, dirname, join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import {
+  assertDistinctFiles,
   checkFreeSpace,
   createTextWriter,
   describeWriteError,
   temporaryPathFor,
+  writeFileAtomic,
   writeFileSet,
 } from '../../src/node/files.js';
 import { expectOrthotoneError } from '../support/errors.js';
@@ -178,5 +181,90 @@ describe('writeFileSet', () => {
       new RegExp(`cannot write ${d}`),
     );
     expect(readdirSync(d)).toEqual(['taken']);
+  });
+});
+
+describe('writeFileAtomic and assertDistinctFiles, the cases the CLI tests do not reach', () => {
+  it('writes text as UTF-8 bytes, whatever its characters', () => {
+    const p = join(dir, 'utf8.txt');
+    const text = 'gain 0.1 dB · phase 1° € \u{1F4E1}';
+    writeFileAtomic(p, text);
+    expect(readFileSync(p)).toEqual(Buffer.from(text, 'utf8'));
+    expect(readFileSync(p, 'utf8')).toBe(text);
+  });
+  it('two outputs that do not exist yet are the same file through a linked folder', () => {
+    const real = join(dir, 'real-out');
+    mkdirSync(real);
+    const link = join(dir, 'link-out');
+    symlinkSync(real, link);
+    expectOrthotoneError(
+      () =>
+        assertDistinctFiles(
+          [],
+          [
+            ['--out', join(real, 'x.wav')],
+            ['--vectors', join(link, 'x.wav')],
+          ],
+        ),
+      'OUTPUT_IS_INPUT',
+      new RegExp(
+        `^--vectors ${join(link, 'x.wav')} is also the output --out ${join(real, 'x.wav')}: writing it would destroy it; choose another file for --vectors$`,
+      ),
+    );
+    expect(() =>
+      assertDistinctFiles(
+        [],
+        [
+          ['--out', join(real, 'x.wav')],
+          ['--vectors', join(link, 'y.csv')],
+        ],
+      ),
+    ).not.toThrow();
+  });
+  it('outputs in a folder that does not exist are compared by path', () => {
+    const missing = join(dir, 'nowhere');
+    expectOrthotoneError(
+      () =>
+        assertDistinctFiles(
+          [],
+          [
+            ['--profile', join(missing, 'p.json')],
+            ['--header', join(missing, 'p.json')],
+          ],
+        ),
+      'OUTPUT_IS_INPUT',
+      /--header .* is also the output --profile/,
+    );
+    expect(() =>
+      assertDistinctFiles(
+        [],
+        [
+          ['--profile', join(missing, 'p.json')],
+          ['--header', join(missing, 'p.h')],
+        ],
+      ),
+    ).not.toThrow();
+  });
+  it('skips undefined entries and stdout ("-"), and tells apart same names in different missing folders', () => {
+    expect(() =>
+      assertDistinctFiles(
+        [['--input', undefined]],
+        [
+          ['--out', '-'],
+          ['--vectors', '-'],
+          ['--header', undefined],
+          ['--profile', undefined],
+        ],
+      ),
+    ).not.toThrow();
+    expect(() =>
+      assertDistinctFiles(
+        [],
+        [
+          ['--profile', join(dir, 'missing-a', 'p.json')],
+          ['--header', join(dir, 'missing-b', 'p.json')],
+        ],
+      ),
+    ).not.toThrow();
   });
 });

@@ -33,11 +33,18 @@ export default {
   // Static mutants (module-level constants, tables) would need every test re-run per mutant; they are
   // reported as Ignored, not counted in the score (tests/mutants.md says so).
   ignoreStatic: true,
-  reporters: ['clear-text', 'progress', 'json', 'html'],
+  // event-recorder writes each mutant's result as it is tested (reports/mutation/events-<scope>/), so
+  // survivors can be studied before a long run ends.
+  reporters: ['clear-text', 'progress', 'json', 'html', 'event-recorder'],
+  eventReporter: { baseDir: `reports/mutation/events-${tag}` },
   jsonReporter: { fileName: `reports/mutation/${tag}.json` },
   htmlReporter: { fileName: `reports/mutation/${tag}.html` },
   clearTextReporter: { allowColor: false, logTests: false, maxTestsToLog: 0 },
   ignorePatterns: ['dist', 'demo', 'firmware', 'bench', 'reports', '.vitest-report.json', 'tests/artifacts'],
+  // Incremental: a later run of the same scope reuses the results of mutants whose code and covering
+  // tests did not change (reports/mutation/<scope>.incremental.json).
+  incremental: true,
+  incrementalFile: `reports/mutation/${tag}.incremental.json`,
   tempDirName: `.stryker-tmp-${tag}`,
   cleanTempDir: true,
   thresholds: { high: 90, low: 85, break: null },

@@ -3,6 +3,7 @@
  * line (full scale +-1), and writes "i q" lines to stdout (full scale +-1, digits enough to
  * round-trip). Trims in the library's units, converted with the host helper:
  *   host-check [--gain-db DB] [--phase-deg DEG] [--dc-i FS] [--dc-q FS] [--skew-samples N] [--lower]
+ * Without trim options the kit's start-up trims apply (a profile's, when the kit was made with one).
  * Exit status 2 for a bad option or value (one line on stderr).
  */
 #include <errno.h>
@@ -30,7 +31,7 @@ int main(int argc, char **argv) {
   static ortho_t gen; /* static storage, not a global: only main sees it */
   ortho_trims_t trims;
   double gain_db = 0, phase_deg = 0, dc_i = 0, dc_q = 0, skew = 0;
-  int lower = 0, k;
+  int lower = 0, given = 0, k;
   ortho_sample_t in[BLOCK], oi[BLOCK], oq[BLOCK];
   char line[256];
   size_t n = 0;
@@ -40,6 +41,7 @@ int main(int argc, char **argv) {
     double *target = NULL;
     if (strcmp(argv[k], "--lower") == 0) {
       lower = 1;
+      given = 1;
       continue;
     }
     if (strcmp(argv[k], "--gain-db") == 0) target = &gain_db;
@@ -55,17 +57,19 @@ int main(int argc, char **argv) {
       return 2;
     }
     if (parse_number(argv[k], argv[k + 1], target) != 0) return 2;
+    given = 1;
     k++;
   }
-  ortho_init(&gen);
-  if (ortho_trims_from_units(&trims, gain_db, phase_deg, skew, dc_i, dc_q, lower) != 0) {
+  ortho_trims_neutral(&trims);
+  ortho_init(&gen); /* start-up trims: the profile's, when the kit was made with one */
+  if (given && ortho_trims_from_units(&trims, gain_db, phase_deg, skew, dc_i, dc_q, lower) != 0) {
     fprintf(stderr,
             "host-check: trims out of range (gain %g dB, phase %g deg, dc %g/%g FS, skew %g): keep |gain| <= 6 dB, "
             "|phase| <= 45 deg, |dc| <= 1, |skew| <= %d samples\n",
             gain_db, phase_deg, dc_i, dc_q, skew, ORTHO_MAX_SKEW);
     return 2;
   }
-  ortho_set_trims(&gen, &trims);
+  if (given) ortho_set_trims(&gen, &trims);
 
   for (;;) {
     const int more = fgets(line, sizeof line, stdin) != NULL;

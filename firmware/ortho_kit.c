@@ -5,10 +5,11 @@
  * All-pass sections use the one-multiplier form y[n] = a*(x[n] - y[n-m]) + x[n-m] (S. K. Mitra,
  * Digital Signal Processing, 4th ed., section 9.7). The FIR folds the type III antisymmetry and
  * skips zero taps: Q[n] = sum_k g_k*(x[n-c-k] - x[n-c+k]) over the non-zero g_k only.
- * Blocks are run section by section over chunks of ORTHO_CHUNK samples with the section's state
- * in locals, so each recursion's state stays in registers for the whole chunk.
+ * Blocks are run over chunks of ORTHO_CHUNK samples in passes (generated per network in
+ * ortho_sections.c), each taking up to four sections of both branches at once with their states
+ * in locals: the recursions of a pass overlap in the CPU instead of waiting on each other.
  */
-#include "ortho_kit.h"
+#include "ortho_arith.h"
 
 #if ORTHO_ARITH != ORTHO_ARITH_FLOAT
 /* The kit relies on arithmetic right shifts of negative values (implementation-defined in C99,
@@ -22,9 +23,6 @@ typedef char ortho_arithmetic_shift_check[((-8) >> 1) == -4 ? 1 : -1];
 #error "ORTHO_HEADROOM_BITS out of range"
 #endif
 
-static ortho_acc_t ortho_sat32(ortho_acc_t v) {
-  return v > 2147483647L ? (ortho_acc_t)2147483647L : v < -2147483647L - 1 ? (ortho_acc_t)(-2147483647L - 1) : v;
-}
 static ortho_acc_t ortho_sat_io(ortho_acc_t v) {
   return v > ORTHO_SMAX ? (ortho_acc_t)ORTHO_SMAX : v < ORTHO_SMIN ? (ortho_acc_t)ORTHO_SMIN : v;
 }
@@ -92,10 +90,16 @@ void ortho_set_trims(ortho_t *s, const ortho_trims_t *t) {
 }
 
 void ortho_init(ortho_t *s) {
-  ortho_trims_t t;
   ortho_reset(s);
-  ortho_trims_neutral(&t);
-  ortho_set_trims(s, &t);
+#if ORTHO_HAS_PROFILE
+  ortho_set_trims(s, &ORTHO_PROFILE_TRIMS);
+#else
+  {
+    ortho_trims_t t;
+    ortho_trims_neutral(&t);
+    ortho_set_trims(s, &t);
+  }
+#endif
 }
 
 /* ---- network input: sample to network word ---- */
@@ -114,77 +118,6 @@ static ortho_word_t ortho_to_network(ortho_sample_t x) {
 }
 
 #if ORTHO_KIND == ORTHO_KIND_ALLPASS
-/* One first-order section over a chunk, in place. */
-static void ortho_section1(ortho_word_t *buf, int n, ortho_coef_t a, ortho_word_t *st) {
-  int j;
-#if ORTHO_ARITH == ORTHO_ARITH_FLOAT
-  float x1 = st[0], y1 = st[2];
-  for (j = 0; j < n; j++) {
-    const float x = buf[j];
-    const float y = a * (x - y1) + x1;
-    x1 = x;
-    y1 = y;
-    buf[j] = y;
-  }
-#else
-  ortho_acc_t x1 = st[0], y1 = st[2];
-  for (j = 0; j < n; j++) {
-    const ortho_acc_t x = buf[j];
-    const ortho_acc_t p = (ortho_acc_t)a * ortho_sat32(x - y1);
-    const ortho_acc_t r = p >= 0 ? p >> ORTHO_F : -((-p) >> ORTHO_F);
-    const ortho_acc_t y = ortho_sat32(x1 + r);
-    x1 = x;
-    y1 = y;
-    buf[j] = (ortho_word_t)y;
-  }
-#endif
-  st[0] = (ortho_word_t)x1;
-  st[2] = (ortho_word_t)y1;
-}
-
-/* One second-order (z^-2) section over a chunk, in place. */
-static void ortho_section2(ortho_word_t *buf, int n, ortho_coef_t a, ortho_word_t *st) {
-  int j;
-#if ORTHO_ARITH == ORTHO_ARITH_FLOAT
-  float x1 = st[0], x2 = st[1], y1 = st[2], y2 = st[3];
-  for (j = 0; j < n; j++) {
-    const float x = buf[j];
-    const float y = a * (x - y2) + x2;
-    x2 = x1;
-    x1 = x;
-    y2 = y1;
-    y1 = y;
-    buf[j] = y;
-  }
-#else
-  ortho_acc_t x1 = st[0], x2 = st[1], y1 = st[2], y2 = st[3];
-  for (j = 0; j < n; j++) {
-    const ortho_acc_t x = buf[j];
-    const ortho_acc_t p = (ortho_acc_t)a * ortho_sat32(x - y2);
-    const ortho_acc_t r = p >= 0 ? p >> ORTHO_F : -((-p) >> ORTHO_F);
-    const ortho_acc_t y = ortho_sat32(x2 + r);
-    x2 = x1;
-    x1 = x;
-    y2 = y1;
-    y1 = y;
-    buf[j] = (ortho_word_t)y;
-  }
-#endif
-  st[0] = (ortho_word_t)x1;
-  st[1] = (ortho_word_t)x2;
-  st[2] = (ortho_word_t)y1;
-  st[3] = (ortho_word_t)y2;
-}
-
-static void ortho_branch(ortho_word_t *buf, int n, const ortho_coef_t *coef, const unsigned char *order,
-                         int count, ortho_word_t *st) {
-  int k;
-  for (k = 0; k < count; k++) {
-    if (order[k] == 1) ortho_section1(buf, n, coef[k], st + 4 * k);
-    else ortho_section2(buf, n, coef[k], st + 4 * k);
-  }
-}
-
 static void ortho_network(ortho_t *s, const ortho_sample_t *in, int n) {
   int j;
   for (j = 0; j < n; j++) {
@@ -204,8 +137,7 @@ static void ortho_network(ortho_t *s, const ortho_sample_t *in, int n) {
     s->work_q[j] = x;
 #endif
   }
-  ortho_branch(s->work_i, n, ORTHO_COEF_I, ORTHO_ORDER_I, ORTHO_SECTIONS_I, s->st_i);
-  ortho_branch(s->work_q, n, ORTHO_COEF_Q, ORTHO_ORDER_Q, ORTHO_SECTIONS_Q, s->st_q);
+  ortho_run_sections(s->work_i, s->work_q, n, s->st_i, s->st_q);
 #if ORTHO_ARITH == ORTHO_ARITH_FLOAT
   for (j = 0; j < n; j++) {
     s->work_i[j] = s->work_i[j] - ORTHO_ANTI_DENORMAL;

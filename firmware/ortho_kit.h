@@ -103,6 +103,13 @@ typedef struct {
   ortho_coef_t skew_taps[4]; /* Lagrange taps for the fraction, Q(C-2) (float: values) */
 } ortho_trims_t;
 
+#ifndef ORTHO_HAS_PROFILE
+#define ORTHO_HAS_PROFILE 0
+#endif
+#if ORTHO_HAS_PROFILE
+extern const ortho_trims_t ORTHO_PROFILE_TRIMS; /* start-up trims from a calibration profile */
+#endif
+
 /* All state of one generator: network state, trims, work arrays. Caller-owned, no pointers inside. */
 typedef struct {
 #if ORTHO_KIND == ORTHO_KIND_ALLPASS
@@ -126,7 +133,8 @@ typedef struct {
   ortho_word_t work_q[ORTHO_CHUNK];
 } ortho_t;
 
-/* Clears every state and sets neutral trims (G = 1, phi = 0, no DC, no skew, upper sideband). */
+/* Clears every state and sets the start-up trims: the profile's (ORTHO_HAS_PROFILE) or neutral
+ * (G = 1, phi = 0, no DC, no skew, upper sideband). */
 void ortho_init(ortho_t *s);
 /* Clears the signal state to silence; keeps the trims. */
 void ortho_reset(ortho_t *s);

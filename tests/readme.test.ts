@@ -37,7 +37,16 @@ describe('README examples, against the built package', () => {
       JSON.stringify({
         extends: join(root, 'tsconfig.json'),
         include: files,
-        compilerOptions: { noEmit: false, outDir: out, rootDir: dir, declaration: false, sourceMap: false },
+        // paths: {} so 'orthotone' resolves to the built package (package.json exports), not to src/ through
+        // the root tsconfig's mapping for the demo (which made tsc emit .js files into src/).
+        compilerOptions: {
+          noEmit: false,
+          outDir: out,
+          rootDir: dir,
+          declaration: false,
+          sourceMap: false,
+          paths: {},
+        },
       }),
     );
     const tsc = spawnSync(join(root, 'node_modules', '.bin', 'tsc'), ['-p', join(dir, 'tsconfig.json')], {

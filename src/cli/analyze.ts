@@ -3,10 +3,11 @@
  * suppression and group delay versus frequency, worst case, cost and quantisation.
  */
 import { analyzeNetwork } from '../design/analysis.js';
+import { analyzeKitArithmetic } from '../design/arithmetic-analysis.js';
 import { analysisToCsv } from '../export/csv.js';
 import { assertDistinctFiles, writeFileAtomic } from '../node/files.js';
 import { choiceOpt, inCliWords, numberOpt, parseCommand, UsageError } from './args.js';
-import { describeNetwork } from './design.js';
+import { arithmeticOpt, describeArithmetic, describeNetwork } from './design.js';
 import { disagreementWarning, loadNetworkFile } from './network-file.js';
 import { fixed, formatTable } from './table.js';
 
@@ -20,6 +21,8 @@ options:
   --points N       frequencies evaluated (default 25 for table, 2000 for json/csv)
   --from HZ        lowest frequency (default band lower edge / 2)
   --to HZ          highest frequency (default min(2 x band upper edge, Nyquist))
+  --arithmetic A   double (default) | float | q31 | q15: also report the firmware kit's arithmetic
+                   (image rejection, noise floor, headroom, zero-input limit cycles, cost)
   --format F       table (default) | json | csv
   --out FILE       write to FILE instead of standard output
   -h, --help       this help
@@ -41,6 +44,7 @@ export async function run(argv: string[]): Promise<number> {
       from: { type: 'string' },
       to: { type: 'string' },
       format: { type: 'string' },
+      arithmetic: { type: 'string' },
       out: { type: 'string' },
       help: { type: 'boolean', short: 'h' },
     },
@@ -65,6 +69,7 @@ export async function run(argv: string[]): Promise<number> {
     toHz: '--to',
     points: '--points',
   });
+  const arithmetic = arithmeticOpt(v.arithmetic);
   let out: string;
   if (format === 'json') {
     out = `${JSON.stringify(
@@ -77,6 +82,7 @@ export async function run(argv: string[]): Promise<number> {
         maxGainErrorDb: a.maxGainErrorDb,
         groupDelayDifference: a.groupDelayDifference,
         cost: a.cost,
+        ...(arithmetic === 'double' ? {} : { arithmetic: analyzeKitArithmetic(net, arithmetic) }),
         points: Array.from(a.frequencyHz, (f, k) => ({
           frequencyHz: f,
           phaseErrorDeg: a.phaseErrorDeg[k],
@@ -111,6 +117,7 @@ export async function run(argv: string[]): Promise<number> {
         ? ''
         : `\nWARNING: the file's stored figures disagree with its coefficients (the figures above are computed):\n${disagreements.map((d) => `  ${d}\n`).join('')}`;
     out = `${describeNetwork(net)}${note}\n${formatTable(rows)}(* outside the design band)\n`;
+    if (arithmetic !== 'double') out += `\n${describeArithmetic(net, arithmetic)}`;
   }
   if (format !== 'table' && disagreements.length > 0)
     process.stderr.write(`${disagreementWarning(file, disagreements)}\n`);

@@ -78,7 +78,8 @@ where the readings come from:
                          wait --settle MS (default 200, at least the device's ramp) before the
                          reading; the best trims are left on the device at the end. The levels
                          still come from one of the three above. --device-timeout MS: one answer
-                         (default 1000)
+                         (default 1000); --device-reconnect MS: how long to wait for a device that
+                         went away (default 5000) before ending the run with the best so far
 
 options:
   --what W               sideband | carrier | both (default both: sideband first, then carrier)

@@ -3,12 +3,15 @@
  * readable table, the JSON network document, a C header or CSV.
  */
 import { analyzeNetwork } from '../design/analysis.js';
+import { analyzeKitArithmetic } from '../design/arithmetic-analysis.js';
 import { designNetwork, type NetworkSpec } from '../design/design-network.js';
+import { KIT_ARITHMETICS, KIT_WORD_LENGTHS, type KitArithmetic } from '../design/kit-arithmetic.js';
 import type { Network } from '../design/network.js';
 import { quantizationReport } from '../design/quantize.js';
 import { networkToCHeader } from '../export/c-header.js';
 import { networkToCsv } from '../export/csv.js';
 import { networkToJson } from '../export/network-json.js';
+import type { GeneratorArithmetic } from '../generate/quadrature-generator.js';
 import { writeFileAtomic } from '../node/files.js';
 import { choiceOpt, inCliWords, numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
 import { fixed, formatPairs } from './table.js';
@@ -22,12 +25,15 @@ options:
   --band LO:HI           audio band in Hz (default 300:3000)
   --method M             fir | allpass | auto (default auto: the cheapest network meeting the target)
   --target DB            suppression target in dB over the band (default 60 when no size is given)
-  --taps N               FIR length (odd); with --method fir
-  --sections N           all-pass sections, both branches together; with --method allpass
+  --taps N               FIR length (odd, 3 to 16383); implies --method fir
+  --sections N           all-pass sections, both branches together; implies --method allpass
   --fir-method M         remez (equiripple, default) | kaiser (windowed)
   --form F               all-pass form: first-order | second-order (z^-2, band symmetric about fs/4)
   --coefficients F       float64 (default) | float32 | q31 | q15: the format your firmware runs;
                          the target is then met after rounding, and the document holds the rounded values
+  --arithmetic A         double (default) | float | q31 | q15: the firmware kit arithmetic; the
+                         size search meets the target with its coefficients, and the table adds
+                         its image rejection, noise floor, headroom and limit-cycle figures
   --format F             table (default) | json | c | csv
   --name ID              identifier prefix in the C header (default ot)
   --out FILE             write to FILE instead of standard output
@@ -83,6 +89,17 @@ export function specFromOptions(v: Record<string, unknown>): NetworkSpec {
       'float64',
     );
   }
+  // --arithmetic: the size search meets the target with the coefficients the kit runs.
+  const arithmetic = arithmeticOpt(v.arithmetic);
+  if (arithmetic !== 'double') {
+    const fmt = arithmetic === 'float' ? 'float32' : arithmetic;
+    if (spec.coefficientFormat !== undefined && spec.coefficientFormat !== fmt) {
+      throw new UsageError(
+        `--coefficients ${spec.coefficientFormat} does not match --arithmetic ${arithmetic} (which runs ${fmt} coefficients): drop one`,
+      );
+    }
+    spec.coefficientFormat = fmt;
+  }
   return spec;
 }
 
@@ -97,7 +114,57 @@ export const DESIGN_OPTIONS = {
   'fir-method': { type: 'string' },
   form: { type: 'string' },
   coefficients: { type: 'string' },
+  arithmetic: { type: 'string' },
 } as const;
+
+/**
+ * Parses `--arithmetic`: double (default, the library's runtime) or a firmware kit arithmetic.
+ * @throws {UsageError} for any other word.
+ */
+export function arithmeticOpt(v: unknown): GeneratorArithmetic {
+  return choiceOpt('arithmetic', v, ['double', ...KIT_ARITHMETICS] as const, 'double');
+}
+
+/**
+ * The arithmetic analysis of a network in a kit arithmetic, as readable lines (dB, dBFS, bits).
+ * @throws {OrthotoneError} INVALID_DOCUMENT for an invalid network (from `analyzeKitArithmetic`).
+ */
+export function describeArithmetic(net: Network, arithmetic: KitArithmetic): string {
+  const a = analyzeKitArithmetic(net, arithmetic);
+  const w = KIT_WORD_LENGTHS[arithmetic];
+  return formatPairs([
+    [
+      'arithmetic',
+      arithmetic === 'float'
+        ? 'float (IEEE single) throughout'
+        : `${arithmetic}: ${w.sampleBits}-bit samples, ${w.coefficientBits}-bit coefficients, 32-bit states with ${a.headroomBits} headroom bits, 64-bit accumulators`,
+    ],
+    [
+      'image rejection',
+      `${a.imageRejectionDb.toFixed(2)} dB worst, at ${a.imageRejectionAtHz.toFixed(1)} Hz (kit coefficients)`,
+    ],
+    [
+      'noise floor',
+      `${a.noiseFloorDbfs.toFixed(1)} dBFS per channel (${a.noiseDensityDbfsPerHz.toFixed(1)} dBFS/Hz; network alone ${a.networkNoiseDbfs.toFixed(1)} dBFS), white-noise model`,
+    ],
+    [
+      'headroom',
+      `peak gain ${a.peakGain.toFixed(2)} (L1); a full-scale input can reach ${a.outputPeakDbfs.toFixed(1)} dBFS at the output`,
+    ],
+    [
+      'zero input',
+      arithmetic === 'float'
+        ? 'states settle at the 1e-20 anti-denormal offset, cancelled at the output'
+        : a.limitCycleFree
+          ? `no limit cycle: every state is exactly 0 within ${a.zeroInputSettleSamples} samples`
+          : `limit cycle dead band up to ${a.deadBandLsb} LSB`,
+    ],
+    [
+      'cost',
+      `${a.operationsPerSample.multiplies} multiplies, ${a.operationsPerSample.additions} additions per sample; about ${a.cyclesPerSampleEstimate} cycles/sample on a 32-bit MCU with single-cycle MAC`,
+    ],
+  ]);
+}
 
 /**
  * A readable summary of a network: what it is (size, band in Hz), what it allows (worst suppression
@@ -183,6 +250,24 @@ export function renderNetwork(net: Network, format: string, name?: string): stri
 }
 
 /**
+ * The warning appended to `design --format c`'s "wrote" line when a format the header carries
+ * (float32, Q31, Q15) misses the target after rounding, pointing at `--coefficients`; empty when
+ * all meet it or there is no target (a size was given without one).
+ * @throws {OrthotoneError} INVALID_DOCUMENT for an invalid network (from `quantizationReport`).
+ */
+export function roundingWarning(net: Network, spec: NetworkSpec): string {
+  const sizeGiven = spec.taps !== undefined || spec.sections !== undefined;
+  const target = spec.targetDb ?? (sizeGiven ? undefined : 60);
+  if (target === undefined) return '';
+  const q = quantizationReport(net);
+  const names = { float32: 'float32', q31: 'Q31', q15: 'Q15' } as const;
+  const short = (['float32', 'q31', 'q15'] as const).filter((f) => q[f].worstSuppressionDb < target);
+  if (short.length === 0) return '';
+  const list = short.map((f) => `${names[f]} ${q[f].worstSuppressionDb.toFixed(2)} dB`).join(', ');
+  return `; warning: after rounding, ${list} miss the ${target} dB target: design with --coefficients ${short[short.length - 1]} for the format your firmware runs`;
+}
+
+/**
  * Runs `orthotone design`; returns the exit status.
  * @throws {UsageError} for bad options; OrthotoneError from `designNetwork` (INVALID_ARGUMENT,
  *   INVALID_BAND, UNREACHABLE_TARGET, NO_CONVERGENCE) and the renderers; a Node file-system error
@@ -200,12 +285,18 @@ export async function run(argv: string[]): Promise<number> {
     process.stdout.write(HELP);
     return 0;
   }
-  const net = inCliWords(() => designNetwork(specFromOptions(v)));
-  const text = renderNetwork(net, (v.format as string | undefined) ?? 'table', v.name as string | undefined);
+  const spec = specFromOptions(v);
+  const net = inCliWords(() => designNetwork(spec));
+  const format = (v.format as string | undefined) ?? 'table';
+  const arithmetic = arithmeticOpt(v.arithmetic);
+  let text = renderNetwork(net, format, v.name as string | undefined);
+  if (format === 'table' && arithmetic !== 'double') text += `\n${describeArithmetic(net, arithmetic)}`;
   if (typeof v.out === 'string') {
     writeFileAtomic(v.out, text);
     process.stderr.write(
-      `orthotone: wrote ${v.out} (${net.kind}, worst suppression ${net.predicted.worstSuppressionDb.toFixed(2)} dB)\n`,
+      `orthotone: wrote ${v.out} (${net.kind}, worst suppression ${net.predicted.worstSuppressionDb.toFixed(2)} dB)${
+        format === 'c' ? roundingWarning(net, spec) : ''
+      }\n`,
     );
   } else {
     process.stdout.write(text);

@@ -280,13 +280,13 @@ export function deviceApplier(link: DeviceLink, settleMs: number): TrimApplier {
 }
 
 /**
- * `orthotone calibrate --device PATH [--settle MS] [--device-timeout MS] …`: opens the link, runs
+ * `orthotone calibrate --device PATH [--settle MS] [--device-timeout MS] [--device-reconnect MS] …`: opens the link, runs
  * the calibration with a {@link deviceApplier}, then sets the best trims on the device. The
  * remaining options are calibrate's own (levels from --prompt, --measure-command or --simulate).
  * @param argv calibrate's arguments, including --device.
  * @param calibrate calibrate's `run`.
  * @returns calibrate's exit status; 1 when the device cannot be reached at the start.
- * @throws {UsageError} for a bad --settle or --device-timeout.
+ * @throws {UsageError} for a bad --settle, --device-timeout or --device-reconnect.
  */
 export async function calibrateOnDevice(
   argv: string[],
@@ -296,6 +296,10 @@ export async function calibrateOnDevice(
   const path = takeOption(args, 'device')!;
   const settleMs = numberOpt('settle', takeOption(args, 'settle') ?? '200')!;
   const timeoutMs = numberOpt('device-timeout', takeOption(args, 'device-timeout') ?? '1000')!;
+  const reconnectMs = numberOpt('device-reconnect', takeOption(args, 'device-reconnect') ?? '5000')!;
+  if (!(reconnectMs >= 0 && reconnectMs <= 600_000)) {
+    throw new UsageError(`--device-reconnect ${reconnectMs} ms must be from 0 to 600000`);
+  }
   if (!(settleMs >= 0 && settleMs <= 60_000))
     throw new UsageError(`--settle ${settleMs} ms must be from 0 to 60000`);
   if (!(timeoutMs >= 10)) throw new UsageError(`--device-timeout ${timeoutMs} ms must be at least 10`);
@@ -305,6 +309,7 @@ export async function calibrateOnDevice(
   try {
     link = await openDeviceLink(serialConnector(path), {
       timeoutMs,
+      reconnectMs,
       onEvent: (e) => {
         if (e.type === 'reset') note(`  device reset (${e.reason}): reconnecting`);
         if (e.type === 'reapplied') note('  device back: greeted, version checked, trims re-applied');

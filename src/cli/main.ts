@@ -44,6 +44,14 @@ const COMMANDS: Record<string, Command> = {
     summary: 'evaluate a network file: phase/gain error, suppression, group delay, cost',
     load: () => import('./analyze.js'),
   },
+  firmware: {
+    summary: 'write a C99 firmware kit (network and trims in float, Q31 or Q15) with host-check and README',
+    load: () => import('./firmware.js'),
+  },
+  'port-check': {
+    summary: "compare a firmware port's captured output with 'render --vectors' test vectors",
+    load: () => import('./port-check.js'),
+  },
   emissions: {
     summary:
       'check every emission (carrier, sideband, IMD, mixer harmonics) against limits; exit 1 if any fails',

@@ -7,10 +7,12 @@
 import { cautionsText } from '../core/cautions.js';
 import { isOrthotoneError } from '../core/errors.js';
 import type { Trims } from '../core/trims.js';
-import { validateTrims } from '../core/trims.js';
+import { validateTrims, ZERO_TRIMS } from '../core/trims.js';
 import { ampToDb, dbToAmp, powToDb } from '../core/units.js';
 import { designNetwork } from '../design/design-network.js';
+import { kitPlan, kitTrimWords } from '../design/kit-arithmetic.js';
 import type { Network } from '../design/network.js';
+import { KitModel } from '../generate/fixed-point.js';
 import { predictCarrierDbc, predictOutputPeaks, predictSuppressionDb } from '../generate/prediction.js';
 import { createQuadratureGenerator } from '../generate/quadrature-generator.js';
 import { createSignalSource, type SignalLevels, type SignalSpec, signalLevels } from '../generate/sources.js';
@@ -33,7 +35,7 @@ import {
   seedOpt,
   UsageError,
 } from './args.js';
-import { DESIGN_OPTIONS, specFromOptions } from './design.js';
+import { arithmeticOpt, DESIGN_OPTIONS, specFromOptions } from './design.js';
 import { disagreementWarning, loadNetworkFile } from './network-file.js';
 import { fixed, formatPairs } from './table.js';
 
@@ -66,6 +68,13 @@ output:
                          (RF64 when the data passes the 4 GiB limit of a plain WAV)
   --vectors FILE.csv     also write test vectors for a firmware port: n,input,i,q per sample
                          (float32 values, 9 significant digits; trims and network as above)
+arithmetic:
+  --arithmetic A         double (default) | float | q31 | q15: run the firmware kit's arithmetic,
+                         bit-exact with 'orthotone firmware' kits (without a network file, the
+                         design also meets --target with that arithmetic's coefficients); --vectors
+                         then holds the kit's exact output in round-trip digits
+  --max-skew N           the kit's skew stage size, whole samples (as 'firmware --max-skew';
+                         default: the skew rounded up)
   --json                 print the report as JSON
 design options (without a network file):
   --rate HZ --band LO:HI --method fir|allpass|auto --target DB --taps N --sections N
@@ -208,6 +217,7 @@ export async function run(argv: string[]): Promise<number> {
       out: { type: 'string' },
       encoding: { type: 'string' },
       vectors: { type: 'string' },
+      'max-skew': { type: 'string' },
       json: { type: 'boolean' },
       help: { type: 'boolean', short: 'h' },
     },
@@ -273,7 +283,7 @@ async function renderWith(
   let disagreements: string[] = [];
   const file = positionals[0];
   if (file !== undefined) {
-    const designGiven = Object.keys(DESIGN_OPTIONS).filter((k) => v[k] !== undefined);
+    const designGiven = Object.keys(DESIGN_OPTIONS).filter((k) => k !== 'arithmetic' && v[k] !== undefined);
     if (designGiven.length > 0) {
       throw new UsageError(
         `a network file was given: drop the design options (--${designGiven.join(', --')})`,
@@ -376,8 +386,28 @@ async function renderWith(
   const width = { uint8: 1, int16: 2, int24: 3, int32: 4, float32: 4, float64: 8 }[encoding];
   const dataBytes = frames * 2 * width;
   checkFreeSpace(outFile, dataBytes + 1024, '--out');
+  // A vectors row is at most about 50 characters (index and three 9-digit values).
+  if (vectorsFile !== undefined) checkFreeSpace(vectorsFile, frames * 50, '--vectors');
 
-  const gen = createQuadratureGenerator(net, { trims, sideband });
+  const arithmetic = arithmeticOpt(v.arithmetic);
+  const maxSkew = numberOpt('max-skew', v['max-skew']) ?? Math.ceil(Math.abs(trims.skewSamples ?? 0));
+  const gen = createQuadratureGenerator(
+    net,
+    arithmetic === 'double' ? { trims, sideband } : { trims, sideband, arithmetic, maxSkewSamples: maxSkew },
+  );
+  // With a kit arithmetic the vectors hold the kit's own output exactly (Q31 does not fit the
+  // float32 samples the generator returns), in digits that round-trip a double.
+  const kit =
+    arithmetic === 'double' || vectorsFile === undefined
+      ? null
+      : new KitModel(
+          kitPlan(net, arithmetic),
+          maxSkew,
+          kitTrimWords({ ...ZERO_TRIMS, ...trims }, sideband === 'lower', arithmetic, maxSkew),
+        );
+  const kx = new Float64Array(kit ? BLOCK : 0);
+  const ki = new Float64Array(kit ? BLOCK : 0);
+  const kq = new Float64Array(kit ? BLOCK : 0);
   // Realised levels are read back from what is written; the tone readback keeps one window of it.
   const settle = Math.min(Math.floor(frames / 2), Math.round(0.05 * fs) + 4 * gen.trimLatencySamples);
   const nRead = Math.min(frames - settle, 1 << 17);
@@ -429,7 +459,15 @@ async function renderWith(
         winI.set(i.subarray(from - o, to - o), from - settle);
         winQ.set(q.subarray(from - o, to - o), from - settle);
       }
-      if (vectors) {
+      if (vectors && kit) {
+        for (let k = 0; k < n; k++) kx[k] = kit.sampleFromFullScale(x[k]!);
+        kit.processSamples(kx, ki, kq, n);
+        let text = '';
+        for (let k = 0; k < n; k++) {
+          text += `${o + k},${String(x[k]!)},${String(kit.sampleToFullScale(ki[k]!))},${String(kit.sampleToFullScale(kq[k]!))}\n`;
+        }
+        vectors.write(text);
+      } else if (vectors) {
         let text = '';
         for (let k = 0; k < n; k++) text += `${o + k},${g(x[k]!)},${g(i[k]!)},${g(q[k]!)}\n`;
         vectors.write(text);

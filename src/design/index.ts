@@ -22,6 +22,11 @@ export {
   predictFigures,
 } from './analysis.js';
 export {
+  analyzeKitArithmetic,
+  type KitArithmeticAnalysis,
+  type KitOperations,
+} from './arithmetic-analysis.js';
+export {
   designCorrection,
   equivalentTrims,
   evaluateImbalanceModel,
@@ -35,6 +40,17 @@ export {
   hilbertRippleFromSuppression,
   hilbertSuppressionFromRipple,
 } from './hilbert-fir.js';
+export {
+  KIT_ARITHMETICS,
+  KIT_WORD_LENGTHS,
+  type KitArithmetic,
+  type KitBranch,
+  type KitPlan,
+  type KitTrimWords,
+  type KitWordLengths,
+  kitPlan,
+  kitTrimWords,
+} from './kit-arithmetic.js';
 export {
   type AllpassBranch,
   type AllpassNetwork,

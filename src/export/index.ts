@@ -3,6 +3,12 @@
 
 export { type CHeaderOptions, networkToCHeader } from './c-header.js';
 export { analysisToCsv, networkToCsv } from './csv.js';
+export {
+  FIRMWARE_SOURCE_FILES,
+  type FirmwareKit,
+  type FirmwareKitOptions,
+  firmwareKitFiles,
+} from './firmware-kit.js';
 export { networkToJson, parseNetworkJson } from './network-json.js';
 export { type ProfileHeaderOptions, profileToCHeader } from './profile-header.js';
 export { parseProfileJson, profileToJson } from './profile-json.js';

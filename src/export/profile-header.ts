@@ -6,26 +6,46 @@
  */
 
 import { type CalibrationProfile, validateProfile } from '../calibrate/profile.js';
+import { OrthotoneError } from '../core/errors.js';
+import { kitTrimWords } from '../design/kit-arithmetic.js';
 import { cArray, cFloat, requireCIdentifier } from './c-format.js';
 
 /** Options of {@link profileToCHeader}. */
 export interface ProfileHeaderOptions {
   /** Prefix of every identifier, a C identifier (default `ot`). */
   name?: string;
+  /** Word length of the codec the DC counts are given for, bits 8–32 (default 24). */
+  codecBits?: number;
 }
 
 /**
  * Renders a calibration profile as a C header.
  * @param profile a valid profile.
- * @param options identifier prefix.
+ * @param options identifier prefix; codecBits, the word length the DC codec counts are given for.
  * @returns the header text.
- * @throws {OrthotoneError} INVALID_ARGUMENT when `name` is not a C identifier; INVALID_DOCUMENT for
- *   an invalid profile.
+ * @throws {OrthotoneError} INVALID_ARGUMENT when `name` is not a C identifier or `codecBits` is not
+ *   8–32; INVALID_DOCUMENT for an invalid profile.
+ * Reference: trims of DESIGN.md §4; fixed-point forms as the firmware kit (design/kit-arithmetic.ts).
  */
 export function profileToCHeader(profile: CalibrationProfile, options: ProfileHeaderOptions = {}): string {
   const p = validateProfile(profile);
   const name = requireCIdentifier(options.name ?? 'ot');
   const up = name.toUpperCase();
+  const codecBits = options.codecBits ?? 24;
+  if (!Number.isInteger(codecBits) || codecBits < 8 || codecBits > 32) {
+    throw new OrthotoneError(
+      'INVALID_ARGUMENT',
+      `codecBits ${codecBits} must be a whole number of bits from 8 to 32 (e.g. 16 or 24)`,
+      codecBits,
+    );
+  }
+  // The firmware kit's own values (design/kit-arithmetic.ts): G·cos φ and G·sin φ in Q14 (q15 kit,
+  // int16) and Q30 (q31 kit, int32), range ±2; DC in output counts. Sideband is kept apart.
+  const noSkew = { ...p.trims, skewSamples: 0 };
+  const k15 = kitTrimWords(noSkew, false, 'q15', 0);
+  const k31 = kitTrimWords(noSkew, false, 'q31', 0);
+  const codecFs = 2 ** (codecBits - 1);
+  const counts = (v: number) => Math.sign(v) * Math.min(codecFs - 1, Math.floor(Math.abs(v) * codecFs + 0.5));
   const guard = `${up}_CALIBRATION_H`;
   const r = p.results;
   const fig = (label: string, v: number | undefined): string[] =>
@@ -59,6 +79,22 @@ export function profileToCHeader(profile: CalibrationProfile, options: ProfileHe
     `#define ${up}_CAL_DC_I ${cFloat(p.trims.dcI)}`,
     `#define ${up}_CAL_DC_Q ${cFloat(p.trims.dcQ)}`,
     `#define ${up}_CAL_CORRECTION_TAPS ${p.correction ? p.correction.qFromQ.length : 0}`,
+    '',
+    '/* The same trims as fixed-point values, for the orthotone firmware kit (ortho_trims_t) and for',
+    ' * firmware of your own. G*cos(phi) and G*sin(phi): q15 kit int16 Q14 (16384 = 1.0), q31 kit',
+    ' * int32 Q30 (2^30 = 1.0), range +-2; rounded to nearest, ties away from zero. DC in output',
+    ` * counts: 16-bit (q15 kit), 32-bit (q31 kit) and ${codecBits}-bit codec counts (full scale = 2^${codecBits - 1}). */`,
+    `#define ${up}_CAL_Q15_GAIN_COS ${k15.gainCos}`,
+    `#define ${up}_CAL_Q15_GAIN_SIN ${k15.gainSin}`,
+    `#define ${up}_CAL_Q15_DC_I ${k15.dcI}`,
+    `#define ${up}_CAL_Q15_DC_Q ${k15.dcQ}`,
+    `#define ${up}_CAL_Q31_GAIN_COS ${k31.gainCos}L`,
+    `#define ${up}_CAL_Q31_GAIN_SIN ${k31.gainSin}L`,
+    `#define ${up}_CAL_Q31_DC_I ${k31.dcI}L`,
+    `#define ${up}_CAL_Q31_DC_Q ${k31.dcQ}L`,
+    `#define ${up}_CAL_CODEC_BITS ${codecBits}`,
+    `#define ${up}_CAL_CODEC_DC_I ${counts(p.trims.dcI)}L`,
+    `#define ${up}_CAL_CODEC_DC_Q ${counts(p.trims.dcQ)}L`,
     '',
   ];
   if (p.correction) {

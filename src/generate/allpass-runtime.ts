@@ -350,12 +350,103 @@ function runQuad2(bi: BranchState, bq: BranchState, s: number, io: PassIo): void
   sq[o + 7] = qy12;
 }
 
+/**
+ * First-order section s of both branches in one pass (two independent recursions per loop).
+ * Each recursion computes exactly what {@link runSection} computes.
+ */
+function runPair1(bi: BranchState, bq: BranchState, s: number, io: PassIo): void {
+  const { inI, inQ, offI, offQ, add, outI, outQ, oo, sub, n } = io;
+  const si = bi.st;
+  const sq = bq.st;
+  const o = 4 * s;
+  const a0 = bi.coef[s]!;
+  const b0 = bq.coef[s]!;
+  let ix0 = si[o]!;
+  let iy0 = si[o + 2]!;
+  let qx0 = sq[o]!;
+  let qy0 = sq[o + 2]!;
+  for (let j = 0; j < n; j++) {
+    const xi = inI[offI + j]! + add;
+    const xq = inQ[offQ + j]! + add;
+    const ti = a0 * (xi - iy0) + ix0;
+    const tq = b0 * (xq - qy0) + qx0;
+    ix0 = xi;
+    iy0 = ti;
+    qx0 = xq;
+    qy0 = tq;
+    outI[oo + j] = ti - sub;
+    outQ[oo + j] = tq - sub;
+  }
+  si[o] = ix0;
+  si[o + 2] = iy0;
+  sq[o] = qx0;
+  sq[o + 2] = qy0;
+}
+
+/**
+ * First-order sections s and s+1 of branch `two` and section s of branch `one` in one pass (three
+ * recursions per loop): the tail of a network whose branches differ by one section. Each recursion
+ * computes exactly what {@link runSection} computes.
+ */
+function runTri1(
+  two: BranchState,
+  one: BranchState,
+  s: number,
+  inT: Float64Array,
+  offT: number,
+  outT: Float64Array,
+  inO: Float64Array,
+  offO: number,
+  outO: Float64Array,
+  io: PassIo,
+): void {
+  const { add, oo, sub, n } = io;
+  const st = two.st;
+  const so = one.st;
+  const o = 4 * s;
+  const a0 = two.coef[s]!;
+  const a1 = two.coef[s + 1]!;
+  const b0 = one.coef[s]!;
+  let x0 = st[o]!;
+  let y0 = st[o + 2]!;
+  let x1 = st[o + 4]!;
+  let y1 = st[o + 6]!;
+  let u0 = so[o]!;
+  let v0 = so[o + 2]!;
+  for (let j = 0; j < n; j++) {
+    const xt = inT[offT + j]! + add;
+    const xo = inO[offO + j]! + add;
+    const t = a0 * (xt - y0) + x0;
+    const w = b0 * (xo - v0) + u0;
+    x0 = xt;
+    y0 = t;
+    u0 = xo;
+    v0 = w;
+    const r = a1 * (t - y1) + x1;
+    x1 = t;
+    y1 = r;
+    outT[oo + j] = r - sub;
+    outO[oo + j] = w - sub;
+  }
+  st[o] = x0;
+  st[o + 2] = y0;
+  st[o + 4] = x1;
+  st[o + 6] = y1;
+  so[o] = u0;
+  so[o + 2] = v0;
+}
+
 /** Plan step kinds: which pass kernel runs at section index s. */
 const HEX1 = 0;
 const QUAD1 = 1;
 const QUAD2 = 2;
 const SINGLES = 3;
 const THROUGH = 4;
+const PAIR1 = 5;
+/** Sections s, s+1 of I and s of Q (first order). */
+const TRI1_I = 6;
+/** Sections s, s+1 of Q and s of I (first order). */
+const TRI1_Q = 7;
 
 /** True when sections s…s+count−1 of both branches exist and all have order `order`. */
 function uniform(bi: BranchState, bq: BranchState, s: number, count: number, order: number): boolean {
@@ -365,8 +456,23 @@ function uniform(bi: BranchState, bq: BranchState, s: number, count: number, ord
 }
 
 /**
+ * True when branch `two` ends with first-order sections s, s+1 and branch `one` with a first-order
+ * section s (the tail of branches that differ by one section).
+ */
+function tail(two: BranchState, one: BranchState, s: number): boolean {
+  return (
+    two.order.length === s + 2 &&
+    one.order.length === s + 1 &&
+    two.order[s] === 1 &&
+    two.order[s + 1] === 1 &&
+    one.order[s] === 1
+  );
+}
+
+/**
  * Execution plan, made once: greedily the widest pass that fits at each section index (six
- * first-order sections, then four of either order, else each branch's section on its own).
+ * first-order sections, then four of either order, then the three-section tail of branches that
+ * differ by one, then a pair, else each branch's section on its own).
  */
 function makePlan(bi: BranchState, bq: BranchState): { kind: Uint8Array; index: Int32Array } {
   const kinds: number[] = [];
@@ -386,6 +492,15 @@ function makePlan(bi: BranchState, bq: BranchState): { kind: Uint8Array; index: 
     } else if (uniform(bi, bq, s, 2, 2)) {
       kinds.push(QUAD2);
       s += 2;
+    } else if (tail(bi, bq, s)) {
+      kinds.push(TRI1_I);
+      s += 2;
+    } else if (tail(bq, bi, s)) {
+      kinds.push(TRI1_Q);
+      s += 2;
+    } else if (uniform(bi, bq, s, 1, 1)) {
+      kinds.push(PAIR1);
+      s += 1;
     } else {
       kinds.push(SINGLES);
       s += 1;
@@ -437,6 +552,9 @@ export function createAllpassRuntime(branches: { i: AllpassBranch; q: AllpassBra
     if (kind === HEX1) runHex1(bi, bq, s, io);
     else if (kind === QUAD1) runQuad1(bi, bq, s, io);
     else if (kind === QUAD2) runQuad2(bi, bq, s, io);
+    else if (kind === PAIR1) runPair1(bi, bq, s, io);
+    else if (kind === TRI1_I) runTri1(bi, bq, s, io.inI, io.offI, io.outI, io.inQ, io.offQ, io.outQ, io);
+    else if (kind === TRI1_Q) runTri1(bq, bi, s, io.inQ, io.offQ, io.outQ, io.inI, io.offI, io.outI, io);
     else {
       const { inI, inQ, offI, offQ, add, outI, outQ, oo, sub, n } = io;
       if (s < ni) runSection(bi, s, inI, offI, add, outI, oo, sub, n);

@@ -2,6 +2,7 @@
 // checks the two agree). Everything else here is internal: import it from its own file.
 
 export { CORRECTION_MAX_ABS_SUM, DEFAULT_MAX_CORRECTION_TAPS, validateCorrection } from './correction.js';
+export { KitModel, renderKit } from './fixed-point.js';
 export { createMultitoneSource, MAX_MULTITONE_TONES, type MultitoneSource } from './multitone-source.js';
 export type { NetworkRuntime } from './network-runtime.js';
 export {
@@ -13,6 +14,7 @@ export {
 export {
   createNetworkRuntime,
   createQuadratureGenerator,
+  type GeneratorArithmetic,
   type QuadratureGenerator,
   type QuadratureGeneratorOptions,
 } from './quadrature-generator.js';

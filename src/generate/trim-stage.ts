@@ -566,25 +566,8 @@ export class TrimStage {
       const dq = cur[4]!;
       const ioff = this.kc + this.bulk;
       const sBase = this.kc + this.steadyInt;
-      let peak = stats.peak;
-      for (let j = 0; j < n; j++) {
-        const p = wp + j;
-        const ii = iIn[j]!;
-        hI[p] = ii;
-        hQ[p] = a * qIn[j]! + b * ii;
-        let vi = hI[p - ioff]! + di;
-        let vq = hQ[p - sBase]! + dq;
-        const ai = Math.abs(vi);
-        const aq = Math.abs(vq);
-        if (!(ai >= OUTPUT_FLUSH && ai <= 1)) vi = guard(vi, stats);
-        if (!(aq >= OUTPUT_FLUSH && aq <= 1)) vq = guard(vq, stats);
-        if (ai > peak) peak = Math.min(ai, OUTPUT_LIMIT);
-        if (aq > peak) peak = Math.min(aq, OUTPUT_LIMIT);
-        outI[o + j] = vi;
-        outQ[o + j] = vq;
-      }
+      steadyPass(hI, hQ, iIn, qIn, n, wp, a, b, di, dq, ioff, sBase, outI, outQ, o, stats);
       this.wp = wp + n;
-      stats.peak = peak;
       stats.samplesOut += 2 * n;
       return;
     }
@@ -724,6 +707,53 @@ export class TrimStage {
     stats.peak = peak;
     stats.samplesOut += 2 * n;
   }
+}
+
+/**
+ * The steady pass (steady trims, no correction, whole-sample skew) as a small function of its own,
+ * which V8 optimises better than the same loop inside the large `processChunk`: step 1 into the
+ * histories, the delayed reads, DC and the guard. The peak is clamped to OUTPUT_LIMIT once after
+ * the loop (the min of a max is the max of the mins), and the guard is entered only when a sample
+ * needs it: the same output and counts as the general path.
+ */
+function steadyPass(
+  hI: Float64Array,
+  hQ: Float64Array,
+  iIn: Float64Array,
+  qIn: Float64Array,
+  n: number,
+  wp: number,
+  a: number,
+  b: number,
+  di: number,
+  dq: number,
+  ioff: number,
+  sBase: number,
+  outI: Float32Array,
+  outQ: Float32Array,
+  o: number,
+  stats: GeneratorStats,
+): void {
+  let peak = stats.peak;
+  for (let j = 0; j < n; j++) {
+    const p = wp + j;
+    const ii = iIn[j]!;
+    hI[p] = ii;
+    hQ[p] = a * qIn[j]! + b * ii;
+    let vi = hI[p - ioff]! + di;
+    let vq = hQ[p - sBase]! + dq;
+    const ai = Math.abs(vi);
+    const aq = Math.abs(vq);
+    const m = ai > aq ? ai : aq;
+    if (m > peak) peak = m;
+    if (!(ai >= OUTPUT_FLUSH && aq >= OUTPUT_FLUSH && m <= 1)) {
+      if (!(ai >= OUTPUT_FLUSH && ai <= 1)) vi = guard(vi, stats);
+      if (!(aq >= OUTPUT_FLUSH && aq <= 1)) vq = guard(vq, stats);
+    }
+    outI[o + j] = vi;
+    outQ[o + j] = vq;
+  }
+  stats.peak = Math.min(peak, OUTPUT_LIMIT);
 }
 
 /**

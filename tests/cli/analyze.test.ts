@@ -81,6 +81,16 @@ describe('orthotone analyze: figures from the coefficients', () => {
     expect(Math.abs(headline(t.stdout) - ownWorstDb(good, 4000))).toBeLessThan(0.05);
   });
 
+  it('render shows the computed figure, not the 999 dB the file claims, and warns', () => {
+    const p = file('claims.json', { ...good, predicted: { ...good.predicted, worstSuppressionDb: 999 } });
+    const r = cli(['render', p, '--tone', '1000', '--duration', '0.1', '--out', join(dir, 'claims.wav')]);
+    expect(r.status, r.stderr).toBe(0);
+    const shown = Number(/worst suppression ([\d.]+) dB over the band \(computed/.exec(r.stdout)![1]);
+    expect(Math.abs(shown - ownWorstDb(good, 4000))).toBeLessThan(0.05);
+    expect(r.stdout).not.toMatch(/999/);
+    expect(r.stderr).toMatch(/worst suppression: stored says 999\.00 dB, computed from the coefficients/);
+  });
+
   it('a file that agrees shows no warning', () => {
     const t = cli(['analyze', file('good.json', good)]);
     expect(t.status).toBe(0);

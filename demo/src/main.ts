@@ -123,9 +123,8 @@ saveBtn.addEventListener('click', () => {
   }
 });
 document.getElementById('file-bar')!.append(openBtn, saveBtn, fileStatus.el);
-document
-  .getElementById('file-bar')!
-  .append(reportControls({ session: () => sessionToJson(parts), calibration: () => controlsState(cal.el) }));
+// The bench report download sits under the panels (the header stays compact).
+app.after(reportControls({ session: () => sessionToJson(parts), calibration: () => controlsState(cal.el) }));
 
 window.addEventListener('hashchange', () => show(location.hash.slice(1)));
 show(location.hash.slice(1));

@@ -100,8 +100,14 @@ export function reportControls(src: ReportSources): HTMLElement {
     }, 30);
   });
   return h(
-    'div',
-    { class: 'report-bar', id: 'report-bar' },
+    'section',
+    { class: 'report-bar panel', id: 'report-bar', 'aria-label': 'Bench report' },
+    h('h2', {}, 'Bench report'),
+    h(
+      'p',
+      { class: 'hint' },
+      'One printable HTML file: the network, the trims, every emission against 47 CFR 97.307(d) after an output filter designed for the carrier, and the cautions.',
+    ),
     field('Report carrier, MHz', carrier),
     btn,
     status.el,

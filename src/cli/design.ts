@@ -25,8 +25,8 @@ options:
   --band LO:HI           audio band in Hz (default 300:3000)
   --method M             fir | allpass | auto (default auto: the cheapest network meeting the target)
   --target DB            suppression target in dB over the band (default 60 when no size is given)
-  --taps N               FIR length (odd); with --method fir
-  --sections N           all-pass sections, both branches together; with --method allpass
+  --taps N               FIR length (odd, 3 to 16383); implies --method fir
+  --sections N           all-pass sections, both branches together; implies --method allpass
   --fir-method M         remez (equiripple, default) | kaiser (windowed)
   --form F               all-pass form: first-order | second-order (z^-2, band symmetric about fs/4)
   --coefficients F       float64 (default) | float32 | q31 | q15: the format your firmware runs;

@@ -38,11 +38,12 @@ function median(xs: number[]): number {
 
 // No retry. The rare failure that a retry hid (1 run in 4 in CI; 1 in 12 here, reproduced by running
 // the in-page multi-tone calibration 12 times in a row) was a real one: the correction filter designed
-// from the per-tone nulls (designCorrection, src/calibrate/multitone.ts) is a least-squares fit over
+// from the per-tone nulls (designCorrection, then in src/calibrate/multitone.ts) was a least-squares fit over
 // 300–3000 Hz only, nearly unconstrained elsewhere, so when noisy readings put curvature into the
 // fitted model its 31 taps blow up ("correction absolute tap sum 21.2 exceeds 16") and the node refuses
 // it. The readings differ from run to run because each capture starts at a different point of the
-// tones. The fix (a ridge raised until the tap sum is bounded) belongs to the calibration code.
+// tones. Fixed in the calibration code (issue 9): the ridge is raised until the tap sum is bounded
+// (designCorrection, now src/design/correction.ts).
 describe('demo page', () => {
   it('loads without console errors, shows the cautions, and designs a network', async () => {
     const { page, errors } = browser;

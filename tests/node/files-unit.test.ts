@@ -245,4 +245,26 @@ describe('writeFileAtomic and assertDistinctFiles, the cases the CLI tests do no
       ),
     ).not.toThrow();
   });
+  it('skips undefined entries and stdout ("-"), and tells apart same names in different missing folders', () => {
+    expect(() =>
+      assertDistinctFiles(
+        [['--input', undefined]],
+        [
+          ['--out', '-'],
+          ['--vectors', '-'],
+          ['--header', undefined],
+          ['--profile', undefined],
+        ],
+      ),
+    ).not.toThrow();
+    expect(() =>
+      assertDistinctFiles(
+        [],
+        [
+          ['--profile', join(dir, 'missing-a', 'p.json')],
+          ['--header', join(dir, 'missing-b', 'p.json')],
+        ],
+      ),
+    ).not.toThrow();
+  });
 });

@@ -1,3 +1,0 @@
-export * from './link.js';
-export * from './protocol.js';
-export * from './streams.js';

@@ -4,7 +4,7 @@
 // package.json `exports`), and print what the README says they print.
 // dist/ is rebuilt first when older than src/ (tests/support/dist-setup.ts).
 import { spawnSync } from 'node:child_process';
-import { mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { ROOT as root } from './support/built.js';
@@ -53,7 +53,13 @@ describe('README examples, against the built package', () => {
       encoding: 'utf8',
     });
     expect(tsc.status, tsc.stdout + tsc.stderr).toBe(0);
-    // The compiled import still names the package, not a source path.
+    // Only the examples were compiled: nothing was emitted beside the sources (a tsc that followed
+    // 'orthotone' into src/ once wrote 87 .js files there), and the import still names the package.
+    expect(
+      readdirSync(out)
+        .filter((f) => f.endsWith('.js'))
+        .sort(),
+    ).toEqual(blocks.map((_, k) => `example-${k}.js`).sort());
     expect(readFileSync(join(out, 'example-0.js'), 'utf8')).toMatch(/from 'orthotone'/);
   });
 

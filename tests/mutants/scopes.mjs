@@ -16,11 +16,13 @@ export const SCOPES = {
     tests: ['tests/generate/trim-stage.test.ts', 'tests/generate/quadrature-generator.test.ts'],
   },
   seeker: {
-    // The null seeker's evidence and stop rules: trusted() … checkStop() (lines as of the issue 9 merge;
-    // see tests/mutants.md). trim-calibration.test.ts (54 s) is left out: too slow per mutant.
-    mutate: ['src/calibrate/null-seeker.ts:459-728'],
+    // The null seeker's evidence rules (seeker-evidence.ts) and its stop rules (checkStop, lines 35–89 of
+    // seeker-plan.ts), as split by issue 9's rewrite. trim-calibration.test.ts (54 s) is left out: too
+    // slow per mutant.
+    mutate: ['src/calibrate/seeker-evidence.ts', 'src/calibrate/seeker-plan.ts:35-89'],
     tests: ['tests/calibrate/null-seeker.test.ts', 'tests/calibrate/target-stop.test.ts'],
   },
+
   remez: {
     mutate: ['src/design/remez.ts'],
     tests: ['tests/design/remez.test.ts'],

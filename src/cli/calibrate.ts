@@ -55,10 +55,18 @@ import { commandSource, lineInput, promptSource } from './calibrate-sources.js';
 import { createProgress } from './progress.js';
 import { formatTable } from './table.js';
 
+/** Plain words for the seeker's reading roles in the printed table. */
+const ROLE_WORDS: Record<'start' | 'probe' | 'jump', string> = {
+  start: 'start',
+  probe: 'test point',
+  jump: 'fitted null',
+};
+
 const HELP = `usage: orthotone calibrate (--simulate | --prompt | --measure-command CMD) [options]
 
 Finds the gain/phase trims that null the unwanted sideband and the DC trims that null the carrier,
-from a handful of level readings (each reading is one sample of a known bowl; the null is fitted).
+from a handful of level readings (each reading is one point on a known curved surface around the
+null, so the null is found by fitting those points, not by turning knobs).
 
 where the readings come from:
   --simulate             a virtual exciter drawn from --preset and --device-seed, read by a simulated
@@ -101,7 +109,7 @@ options:
                          or the network's)
   --network FILE         the 90° network document in use: its rate is the calibration's, and the
                          profile carries it
-  --tone-amplitude A     peak tone level, full scale 1, if known (fixes the carrier bowl's curvature)
+  --tone-amplitude A     peak tone level, full scale 1, if known (fixes how fast the carrier level rises away from its null)
   --max-readings N       budget per null (default 16)
   --steps K=V,...        hardware trims with fixed steps, in their own units, e.g.
                          gainDb=0.05,phaseDeg=0.1,dcI=0.001,dcQ=0.001: every setting asked for lies on the grid
@@ -687,16 +695,16 @@ export async function run(argv: string[], extras: CalibrateExtras = {}): Promise
         stepsOf(core, session.history),
         (session as { lastError?: unknown }).lastError,
       );
-      const table: string[][] = [['#', 'role', 'setting', 'read dB', 'weight']];
+      const table: string[][] = [['#', 'reading', 'setting', 'read dB', 'used in fit']];
       const rs = core.readings();
       session.history.forEach((h, k) => {
         const r = rs[k];
         table.push([
           String(k + 1),
-          r?.role ?? '',
+          r === undefined ? '' : ROLE_WORDS[r.role],
           fmtTrims(q, h.trims),
           h.levels !== undefined ? h.levels.toFixed(2) : 'failed',
-          r?.weight === undefined ? '' : r.weight.toFixed(2),
+          r?.weight === undefined ? '' : r.weight === 0 ? 'no (outlier)' : `${Math.round(r.weight * 100)} %`,
         ]);
         // The trims in force at each reading, exactly as the reading source saw them.
         profileReadings.push({ quantity: q, trims: h.trims, levelDb: h.levels ?? null });

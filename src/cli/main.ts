@@ -12,29 +12,9 @@ interface Command {
 
 const COMMANDS: Record<string, Command> = {
   // Each command registers here: name → module.
-  device: {
-    summary: 'talk to a microcontroller over the link protocol: identify, trims, set, load, store',
-    load: () => import('./device.js'),
-  },
-  bridge: {
-    summary: 'serve a serial device to a browser page over a local WebSocket',
-    load: () => import('./bridge.js'),
-  },
   start: {
     summary: 'a first run: design, render a two-tone, calibrate a virtual exciter, write ./out',
     load: () => import('./start.js'),
-  },
-  calibrate: {
-    summary: 'null the unwanted sideband and the carrier from level readings (simulated, typed or scripted)',
-    load: () => import('./calibrate.js'),
-  },
-  measure: {
-    summary: 'read sideband, carrier, two-tone products or tone levels from a WAV capture',
-    load: () => import('./measure.js'),
-  },
-  simulate: {
-    summary: 'run an I/Q file through a virtual exciter and write what a receiver captures',
-    load: () => import('./simulate.js'),
   },
   design: {
     summary: 'design a Hilbert FIR or all-pass 90° network for a band and sample rate',
@@ -44,6 +24,10 @@ const COMMANDS: Record<string, Command> = {
     summary: 'evaluate a network file: phase/gain error, suppression, group delay, cost',
     load: () => import('./analyze.js'),
   },
+  render: {
+    summary: 'run a test signal or recording through a network and trims into an I/Q WAV',
+    load: () => import('./render.js'),
+  },
   firmware: {
     summary: 'write a C99 firmware kit (network and trims in float, Q31 or Q15) with host-check and README',
     load: () => import('./firmware.js'),
@@ -52,27 +36,44 @@ const COMMANDS: Record<string, Command> = {
     summary: "compare a firmware port's captured output with 'render --vectors' test vectors",
     load: () => import('./port-check.js'),
   },
-  emissions: {
-    summary:
-      'check every emission (carrier, sideband, IMD, mixer harmonics) against limits; exit 1 if any fails',
-    load: () => import('./emissions.js'),
+  device: {
+    summary: 'talk to a microcontroller over the link protocol: identify, trims, set, load, store',
+    load: () => import('./device.js'),
+  },
+  bridge: {
+    summary: 'serve a serial device to a browser page over a local WebSocket',
+    load: () => import('./bridge.js'),
+  },
+  simulate: {
+    summary: 'run an I/Q file through a virtual exciter and write what a receiver captures',
+    load: () => import('./simulate.js'),
+  },
+  measure: {
+    summary: 'read sideband, carrier, two-tone products or tone levels from a WAV capture',
+    load: () => import('./measure.js'),
+  },
+  calibrate: {
+    summary: 'null the unwanted sideband and the carrier from level readings (simulated, typed or scripted)',
+    load: () => import('./calibrate.js'),
   },
   verify: {
     summary: "a few readings at a saved profile's trims: has the exciter drifted, re-calibrate?",
     load: () => import('./verify.js'),
   },
+  emissions: {
+    summary:
+      'check every emission (carrier, sideband, IMD, mixer harmonics) against limits; exit 1 if any fails',
+    load: () => import('./emissions.js'),
+  },
   'output-filter': {
     summary: 'design the RF output low-pass ladder (Butterworth/Chebyshev, E12/E24 capacitors)',
     load: () => import('./output-filter.js'),
   },
-  render: {
-    summary: 'run a test signal or recording through a network and trims into an I/Q WAV',
-    load: () => import('./render.js'),
-  },
 };
 
 function usage(): string {
-  const rows = Object.entries(COMMANDS).map(([n, c]) => `  ${n.padEnd(10)} ${c.summary}`);
+  const width = Math.max(...Object.keys(COMMANDS).map((n) => n.length));
+  const rows = Object.entries(COMMANDS).map(([n, c]) => `  ${n.padEnd(width)}  ${c.summary}`);
   return [
     'orthotone: design, run, measure and calibrate 90° networks for phasing SSB and I/Q exciters',
     '',

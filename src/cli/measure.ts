@@ -257,7 +257,7 @@ export async function run(argv: string[]): Promise<number> {
           beyond(r.sidebandSuppressionDb, r.sidebandMeasurableDb, 'sideband'),
         ],
         ['carrier suppression', beyond(r.carrierSuppressionDb, r.carrierMeasurableDb, 'carrier')],
-        ['floor near the wanted tone', `${fixed(r.floorDbc, 1)} dBc per bin`],
+        ['floor near the wanted tone', `${fixed(r.floorDbc, 1)} dBc (noise in one spectrum line)`],
         [
           'largest suppression readable',
           `${fixed(r.sidebandMeasurableDb, 1)} dB (sideband), ${fixed(r.carrierMeasurableDb, 1)} dB (carrier)`,

@@ -73,7 +73,7 @@ describe('orthotone calibrate --simulate', () => {
     const r = cli(['calibrate', '--simulate', '--what', 'sideband', '--tolerance', 'resistorPct=1']);
     expect(r.status).toBe(0);
     expect(r.stdout).toMatch(/== sideband null: gain and phase trims ==/);
-    expect(r.stdout).toMatch(/#\s+role\s+setting\s+read dB/);
+    expect(r.stdout).toMatch(/#\s+reading\s+setting\s+read dB\s+used in fit/);
     expect(r.stdout).toMatch(/true end dB/);
     for (const c of TRANSMIT_CAUTIONS) expect(r.stdout).toContain(c);
   });

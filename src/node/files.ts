@@ -194,6 +194,67 @@ export interface TextWriter {
   abort(): void;
 }
 
+/** An open temporary file beside its destination, to be committed (renamed into place) or abandoned. */
+export interface AtomicTarget {
+  /** File descriptor of the temporary file, for plain or positional writes. */
+  readonly fd: number;
+  /**
+   * Flushes, closes and renames the temporary file over the destination.
+   * @throws the file system's error (the caller maps it; call `abort()` after a failure).
+   */
+  commit(): void;
+  /**
+   * Closes and removes the temporary file; the destination is left as it was. Safe to call twice.
+   * @throws never
+   */
+  abort(): void;
+}
+
+/**
+ * Opens a temporary file beside `path` for a write that will be renamed into place: the one
+ * mechanism under {@link createTextWriter} and the WAV writer. Method: write-then-rename (IEEE Std
+ * 1003.1, `rename()`), atomic within one file system.
+ * @param path destination file.
+ * @returns the open target.
+ * @throws {OrthotoneError} WRITE_FAILED when the temporary file cannot be created.
+ */
+export function openAtomicTarget(path: string): AtomicTarget {
+  const tmp = temporaryPathFor(path);
+  let fd: number | undefined;
+  try {
+    fd = openSync(tmp, 'wx', 0o644);
+  } catch (e) {
+    throw new OrthotoneError('WRITE_FAILED', describeWriteError(e, path), path);
+  }
+  const open = fd;
+  let settled = false;
+  return {
+    fd: open,
+    commit() {
+      fsyncSync(open);
+      closeSync(open);
+      fd = undefined;
+      renameSync(tmp, path);
+      settled = true;
+    },
+    abort() {
+      if (settled) return;
+      settled = true;
+      try {
+        if (fd !== undefined) closeSync(fd);
+      } catch {
+        // already failing; the first error is the one to report
+      }
+      fd = undefined;
+      try {
+        unlinkSync(tmp);
+      } catch {
+        // never created, or already gone
+      }
+    },
+  };
+}
+
 /**
  * Writes a long text file in pieces, atomically: to a temporary file in the same folder, renamed
  * over `path` by `close()`. Method: write-then-rename (IEEE Std 1003.1, `rename()`).
@@ -202,28 +263,8 @@ export interface TextWriter {
  * @throws {OrthotoneError} WRITE_FAILED when the temporary file cannot be created.
  */
 export function createTextWriter(path: string): TextWriter {
-  const tmp = temporaryPathFor(path);
-  let fd: number | undefined;
-  try {
-    fd = openSync(tmp, 'wx', 0o644);
-  } catch (e) {
-    throw new OrthotoneError('WRITE_FAILED', describeWriteError(e, path), path);
-  }
-  let done = false;
-  const abort = (): void => {
-    if (done) return;
-    done = true;
-    try {
-      if (fd !== undefined) closeSync(fd);
-    } catch {
-      // already failing
-    }
-    try {
-      unlinkSync(tmp);
-    } catch {
-      // gone
-    }
-  };
+  const target = openAtomicTarget(path);
+  const { abort } = target;
   const guard = (f: () => void): void => {
     try {
       f();
@@ -237,17 +278,11 @@ export function createTextWriter(path: string): TextWriter {
       const b = Buffer.from(text, 'utf8');
       guard(() => {
         let off = 0;
-        while (off < b.length) off += writeSync(fd!, b, off, b.length - off);
+        while (off < b.length) off += writeSync(target.fd, b, off, b.length - off);
       });
     },
     close() {
-      guard(() => {
-        fsyncSync(fd!);
-        closeSync(fd!);
-        fd = undefined;
-        renameSync(tmp, path);
-        done = true;
-      });
+      guard(target.commit);
     },
     abort,
   };

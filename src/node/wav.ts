@@ -36,7 +36,7 @@ import {
 import { endianness } from 'node:os';
 import { OrthotoneError } from '../core/errors.js';
 import { requireOneOf } from '../core/validate.js';
-import { describeWriteError, temporaryPathFor } from './files.js';
+import { describeWriteError, openAtomicTarget } from './files.js';
 
 /** Sample encodings this module writes. */
 export type WavEncoding = 'uint8' | 'int16' | 'int24' | 'int32' | 'float32' | 'float64';
@@ -667,13 +667,8 @@ export function createWavWriter(
   const maxData = options.maxDataBytes ?? Number.MAX_SAFE_INTEGER;
   const rf64Above = Math.min(RIFF_LIMIT, options.rf64AboveBytes ?? RIFF_LIMIT);
   const width = encodingLayout(enc).bits / 8;
-  const tmp = temporaryPathFor(path);
-  let fd: number | undefined;
-  try {
-    fd = openSync(tmp, 'wx', 0o644);
-  } catch (e) {
-    throw new OrthotoneError('WRITE_FAILED', describeWriteError(e, path), path);
-  }
+  const target = openAtomicTarget(path);
+  const fd = target.fd;
   const headLen = headerBytes(nc, fs, enc, 0, 0).length;
   const block = new Uint8Array(new ArrayBuffer(BLOCK_FRAMES * nc * width + 8));
   const st = { clipped: 0, over: 0, peak: 0 };
@@ -681,18 +676,8 @@ export function createWavWriter(
   let dataBytes = 0;
   let finished = false;
   const abort = (): void => {
-    if (finished) return;
     finished = true;
-    try {
-      if (fd !== undefined) closeSync(fd);
-    } catch {
-      // already failing
-    }
-    try {
-      unlinkSync(tmp);
-    } catch {
-      // never created
-    }
+    target.abort();
   };
   const failWrite = (e: unknown): never => {
     abort();
@@ -738,7 +723,7 @@ export function createWavWriter(
         for (let o = 0; o < n; o += BLOCK_FRAMES) {
           const m = Math.min(BLOCK_FRAMES, n - o);
           const bytes = encodeBlock(chans, o, m, enc, block, st);
-          sink.write(fd!, block, bytes, headLen + dataBytes);
+          sink.write(fd, block, bytes, headLen + dataBytes);
           dataBytes += bytes;
           frames += m;
         }
@@ -749,14 +734,11 @@ export function createWavWriter(
     close() {
       if (finished) fail('close after close or abort');
       try {
-        if (dataBytes % 2 === 1) sink.write(fd!, new Uint8Array(1), 1, headLen + dataBytes);
+        if (dataBytes % 2 === 1) sink.write(fd, new Uint8Array(1), 1, headLen + dataBytes);
         const head = headerBytes(nc, fs, enc, dataBytes, frames, rf64Above);
         if (head.length !== headLen) throw new Error('internal: header length changed');
-        sink.write(fd!, head, headLen, 0);
-        fsyncSync(fd!);
-        closeSync(fd!);
-        fd = undefined;
-        renameSync(tmp, path);
+        sink.write(fd, head, headLen, 0);
+        target.commit();
         finished = true;
       } catch (e) {
         failWrite(e);

@@ -425,6 +425,26 @@ function centroidTrims(r: MultitoneResult, start: Trims): Trims {
   };
 }
 
+/**
+ * Waits until a freshly opened input delivers a steady signal: an input stream starts some time
+ * after it is connected (silence first, then the device's start-up), and a reading whose window
+ * straddles that start misreads the sideband through the changed window shape. Reads 0.1 s blocks
+ * until two in a row agree in RMS within 0.5 dB (at most 2 s); a silent or unsteady input is left to
+ * the run's own guards, which name the problem.
+ */
+async function waitForSteadyInput(capture: CaptureNode, sampleRate: number): Promise<void> {
+  const frames = Math.round(0.1 * sampleRate);
+  let last = Number.NaN;
+  for (let k = 0; k < 20; k++) {
+    const x = (await capture.capture(frames)).channels[0]!;
+    let e = 0;
+    for (let n = 0; n < x.length; n++) e += x[n]! * x[n]!;
+    const db = 10 * Math.log10(e / x.length + 1e-30);
+    if (db > -120 && Math.abs(db - last) < 0.5) return;
+    last = db;
+  }
+}
+
 /** A capture node for receiver audio from the sound card input (getUserMedia), mono. */
 export async function receiverCapture(
   running: Running,
@@ -444,6 +464,7 @@ export async function receiverCapture(
   src.connect(capture.node as unknown as AudioNode);
   (capture.node as unknown as AudioNode).connect(sink);
   sink.connect(running.ctx.destination);
+  await waitForSteadyInput(capture, running.ctx.sampleRate);
   return {
     capture,
     stop() {

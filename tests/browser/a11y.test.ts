@@ -5,30 +5,12 @@
  * serious or critical violation. One browser launch for the file.
  */
 import { createRequire } from 'node:module';
-import { join } from 'node:path';
-import type { ViteDevServer } from 'vite';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { type Browser, launchChromium, startVite } from './support/chromium.js';
-import { REPO_ROOT } from './support/worklet-build.js';
+import { describe, expect, it } from 'vitest';
+import { useDemoPage } from './support/chromium.js';
 
 const AXE_PATH = createRequire(import.meta.url).resolve('axe-core/axe.min.js');
 
-let browser: Browser;
-let vite: ViteDevServer;
-let base = '';
-
-beforeAll(async () => {
-  const v = await startVite({ configFile: join(REPO_ROOT, 'demo/vite.config.ts') });
-  vite = v.server;
-  base = v.url;
-  browser = await launchChromium();
-  await browser.page.setViewportSize({ width: 1366, height: 768 });
-});
-
-afterAll(async () => {
-  await browser?.close();
-  await vite?.close();
-});
+const demo = useDemoPage({ width: 1366, height: 768 });
 
 interface Finding {
   id: string;
@@ -39,7 +21,7 @@ interface Finding {
 
 /** Runs axe on the whole document (hidden panels are skipped by axe itself) and returns its findings. */
 async function audit(): Promise<Finding[]> {
-  const { page } = browser;
+  const { page } = demo.browser;
   if (!(await page.evaluate(() => 'axe' in window))) await page.addScriptTag({ path: AXE_PATH });
   return page.evaluate(async () => {
     const axe = (window as unknown as { axe: { run(ctx: Document): Promise<{ violations: unknown[] }> } })
@@ -65,8 +47,8 @@ const serious = (f: Finding[]) => f.filter((v) => v.impact === 'serious' || v.im
 
 describe('demo page accessibility (axe-core in Chromium)', () => {
   it('panel 1, design: no serious or critical violation, before and after a design', async () => {
-    const { page, errors } = browser;
-    await page.goto(`${base}/#design`);
+    const { page, errors } = demo.browser;
+    await page.goto(`${demo.base}/#design`);
     await page.waitForSelector('#panel-design .uplot');
     const first = await audit();
     console.log('axe, design panel:', JSON.stringify(first.map((v) => [v.id, v.impact, v.nodes.length])));
@@ -89,8 +71,8 @@ describe('demo page accessibility (axe-core in Chromium)', () => {
   });
 
   it('panel 2, generate: no serious or critical violation, stopped and running', async () => {
-    const { page, errors } = browser;
-    await page.goto(`${base}/#generate`);
+    const { page, errors } = demo.browser;
+    await page.goto(`${demo.base}/#generate`);
     await page.waitForSelector('#panel-generate:not([hidden])');
     const first = await audit();
     console.log('axe, generate panel:', JSON.stringify(first.map((v) => [v.id, v.impact, v.nodes.length])));
@@ -103,8 +85,8 @@ describe('demo page accessibility (axe-core in Chromium)', () => {
   });
 
   it('panel 3, calibrate: no serious or critical violation, before and after a run', async () => {
-    const { page, errors } = browser;
-    await page.goto(`${base}/#calibrate`);
+    const { page, errors } = demo.browser;
+    await page.goto(`${demo.base}/#calibrate`);
     await page.waitForSelector('#panel-calibrate:not([hidden])');
     const first = await audit();
     console.log('axe, calibrate panel:', JSON.stringify(first.map((v) => [v.id, v.impact, v.nodes.length])));

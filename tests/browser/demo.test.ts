@@ -1,34 +1,7 @@
-/**
- * The demo page (demo/, Vite) in headless Chromium: loads without console errors, each panel works
- * and is photographed (tests/artifacts/, git-ignored), and the in-page calibration loop — the live
- * generator node, its trims set through AudioParams with settling between readings, the virtual
- * exciter of simulate/ and calibrateSidebandAndCarrier of calibrate/ — reaches the calibration
- * issue's figure: sideband and carrier at least 70 dB down (median over units) within 10 readings.
- * One browser launch for the file.
- */
-import { join } from 'node:path';
-import type { ViteDevServer } from 'vite';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { artifactPath, type Browser, launchChromium, startVite } from './support/chromium.js';
-import { REPO_ROOT } from './support/worklet-build.js';
+import { describe, expect, it } from 'vitest';
+import { artifactPath, type Browser, useDemoPage } from './support/chromium.js';
 
-let browser: Browser;
-let vite: ViteDevServer;
-let base = '';
-
-beforeAll(async () => {
-  const v = await startVite({ configFile: join(REPO_ROOT, 'demo/vite.config.ts') });
-  vite = v.server;
-  base = v.url;
-  browser = await launchChromium();
-  // Tall enough that each panel fits above the fixed cautions bar in one viewport screenshot.
-  await browser.page.setViewportSize({ width: 1280, height: 1500 });
-});
-
-afterAll(async () => {
-  await browser?.close();
-  await vite?.close();
-});
+const demo = useDemoPage({ width: 1280, height: 1500 });
 
 function median(xs: number[]): number {
   const s = [...xs].sort((a, b) => a - b);
@@ -46,8 +19,8 @@ function median(xs: number[]): number {
 // (designCorrection, now src/design/correction.ts).
 describe('demo page', () => {
   it('loads without console errors, shows the cautions, and designs a network', async () => {
-    const { page, errors } = browser;
-    await page.goto(`${base}/#design`);
+    const { page, errors } = demo.browser;
+    await page.goto(`${demo.base}/#design`);
     await page.waitForSelector('#panel-design .uplot');
     const cautions = await page.textContent('#cautions');
     expect(cautions).toContain('licence');
@@ -74,7 +47,7 @@ describe('demo page', () => {
   });
 
   it('generates: starts audio and the monitor reads the predicted suppression', async () => {
-    const { page, errors } = browser;
+    const { page, errors } = demo.browser;
     await page.click('#design-use');
     await page.waitForSelector('#panel-generate:not([hidden])');
     await page.click('#gen-start');
@@ -117,7 +90,7 @@ describe('demo page', () => {
   });
 
   it('reads a two-tone test in the monitor: each tone 6.02 dB below PEP, IMD3/IMD5 at the floor', async () => {
-    const { page, errors } = browser;
+    const { page, errors } = demo.browser;
     // The trade's test tones 700 and 1900 Hz (common practice, no source).
     await page.selectOption('#gen-source', 'two-tone');
     await page.fill('#gen-f1', '1900');
@@ -145,8 +118,8 @@ describe('demo page', () => {
   });
 
   it('calibrates against the virtual exciter: ≥ 70 dB sideband and carrier (median) within 10 readings', async () => {
-    const { page, errors } = browser;
-    await page.goto(`${base}/#calibrate`);
+    const { page, errors } = demo.browser;
+    await page.goto(`${demo.base}/#calibrate`);
     const results: { readings: number; sidebandDb: number; carrierDb: number }[] = [];
     for (const seed of [711, 1, 2, 3, 4]) {
       await page.fill('#cal-seed', String(seed));
@@ -171,7 +144,7 @@ describe('demo page', () => {
   it('calibrates across the band: the correction filter beats the best single trims on a bench with skew', {
     timeout: 120_000,
   }, async () => {
-    const { page, errors } = browser;
+    const { page, errors } = demo.browser;
     await page.selectOption('#cal-kind', 'multi');
     expect(await page.inputValue('#cal-bench')).toBe('skew-bench');
     await page.fill('#cal-seed', '5');

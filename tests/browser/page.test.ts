@@ -8,31 +8,15 @@
 import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import type { ViteDevServer } from 'vite';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 // The package's public entry (files move between folders; the public names stay).
 import { createProfile, designNetwork, profileToJson, TOLERANCE_PRESETS } from '../../src/index.js';
-import { type Browser, launchChromium, startVite } from './support/chromium.js';
+import { type Browser, useDemoPage } from './support/chromium.js';
 import { REPO_ROOT } from './support/worklet-build.js';
 
 const W = 1366;
 const H = 768;
-let browser: Browser;
-let vite: ViteDevServer;
-let base = '';
-
-beforeAll(async () => {
-  const v = await startVite({ configFile: join(REPO_ROOT, 'demo/vite.config.ts') });
-  vite = v.server;
-  base = v.url;
-  browser = await launchChromium();
-  await browser.page.setViewportSize({ width: W, height: H });
-});
-
-afterAll(async () => {
-  await browser?.close();
-  await vite?.close();
-});
+const demo = useDemoPage({ width: W, height: H });
 
 type Page = Browser['page'];
 
@@ -47,7 +31,7 @@ let visits = 0;
 /** Loads the page afresh (a new query string: a hash change alone would keep the old page) on `panel`. */
 async function open(page: Page, panel: string): Promise<void> {
   visits += 1;
-  await page.goto(`${base}/?visit=${visits}#${panel}`);
+  await page.goto(`${demo.base}/?visit=${visits}#${panel}`);
   await page.waitForSelector(`#panel-${panel}:not([hidden])`);
   await page.evaluate(() => window.scrollTo(0, 0));
 }
@@ -70,8 +54,8 @@ describe('the demo uses the package as a user would', () => {
 
 describe('demo page at 1366×768', () => {
   it('shows the cautions, folds them to one line on request, remembers it, and covers nothing', async () => {
-    const { page, errors } = browser;
-    await page.goto(`${base}/#design`);
+    const { page, errors } = demo.browser;
+    await page.goto(`${demo.base}/#design`);
     await page.evaluate(() => localStorage.clear());
     await open(page, 'design');
     const text = await page.textContent('#cautions');
@@ -98,7 +82,7 @@ describe('demo page at 1366×768', () => {
   });
 
   it('marks the active tab with aria-current, names every control, and announces every status line', async () => {
-    const { page, errors } = browser;
+    const { page, errors } = demo.browser;
     for (const panel of ['design', 'generate', 'calibrate']) {
       await open(page, panel);
       const current = await page.$$eval('.tabs a[aria-current=page]', (a) =>
@@ -132,8 +116,8 @@ describe('demo page at 1366×768', () => {
 
   for (const folded of [false, true]) {
     it(`keeps each button's status line beside it and above the fold (cautions ${folded ? 'folded' : 'open'})`, async () => {
-      const { page, errors } = browser;
-      await page.goto(`${base}/#design`);
+      const { page, errors } = demo.browser;
+      await page.goto(`${demo.base}/#design`);
       await page.evaluate((f) => localStorage.setItem('orthotone.cautions.collapsed', f ? '1' : '0'), folded);
       const pairs: [string, string, string][] = [
         ['design', '#design-run', '#design-status'],
@@ -158,7 +142,7 @@ describe('demo page at 1366×768', () => {
   }
 
   it('clears stale figures when a design fails, and shows the error beside the Design button', async () => {
-    const { page, errors } = browser;
+    const { page, errors } = demo.browser;
     await open(page, 'design');
     await expect.poll(() => page.textContent('#design-status')).toContain('300–3000');
     expect(await page.textContent('#design-figures')).toContain('dB');
@@ -182,7 +166,7 @@ describe('demo page at 1366×768', () => {
   });
 
   it('designs off the main thread: a busy sign, and the page answers while a long design runs', async () => {
-    const { page, errors } = browser;
+    const { page, errors } = demo.browser;
     await open(page, 'design');
     await expect.poll(() => page.textContent('#design-status')).toContain('300–3000');
     // Q15 coefficients with a deep target: the length search takes seconds (it then fails).
@@ -214,7 +198,7 @@ describe('demo page at 1366×768', () => {
   });
 
   it('shows every option text whole, with the 24 and 32 kHz rates and the coefficient formats', async () => {
-    const { page } = browser;
+    const { page } = demo.browser;
     for (const panel of ['design', 'generate', 'calibrate']) {
       await open(page, panel);
       const cut = await page.$$eval(`#panel-${panel} select`, (list) => {
@@ -246,7 +230,7 @@ describe('demo page at 1366×768', () => {
   });
 
   it('plots: a readout under the pointer, drag to zoom, reset, and a text alternative from the data', async () => {
-    const { page, errors } = browser;
+    const { page, errors } = demo.browser;
     await open(page, 'design');
     await expect.poll(() => page.textContent('#design-status')).toContain('300–3000');
     const plot = page.locator('#design-plots figure.plot').first();
@@ -302,7 +286,7 @@ describe('demo page at 1366×768', () => {
   });
 
   it('uses the command line names: presets, the skew trim and the 1000 Hz default tone', async () => {
-    const { page } = browser;
+    const { page } = demo.browser;
     await open(page, 'calibrate');
     const benches = await page.$$eval('#cal-bench option', (o) =>
       o.map((e) => ({ value: (e as HTMLOptionElement).value, text: e.textContent ?? '' })),
@@ -327,7 +311,7 @@ describe('demo page at 1366×768', () => {
   });
 
   it('saves the session and opens it again; a file of the wrong kind gets a one-line error', async () => {
-    const { page, errors } = browser;
+    const { page, errors } = demo.browser;
     await open(page, 'design');
     await expect.poll(() => page.textContent('#design-status')).toContain('300–3000');
     await page.selectOption('#design-rate', '32000');
@@ -351,7 +335,7 @@ describe('demo page at 1366×768', () => {
     expect(saved.generator.toneHz).toBe(1234);
 
     // A fresh page: back to the defaults, then open the session.
-    await page.goto(`${base}/#generate`);
+    await page.goto(`${demo.base}/#generate`);
     await page.reload();
     await page.waitForSelector('#panel-generate:not([hidden])');
     expect(Number(await page.inputValue('#gen-f1'))).toBe(1000);
@@ -378,7 +362,7 @@ describe('demo page at 1366×768', () => {
   });
 
   it('opens a calibration profile: its network shown and used, its trims and correction filter applied', async () => {
-    const { page, errors } = browser;
+    const { page, errors } = demo.browser;
     // A profile as the command line or the page writes it: a 24 kHz FIR network, trims and a
     // 15-tap correction pair (an identity filter: a centre tap of 1 on Q, nothing from I).
     const net = designNetwork({ sampleRate: 24000, band: [300, 3000], method: 'fir', targetDb: 40 });

@@ -1,32 +1,15 @@
 // The demo page offers the bench report as a download: click, receive one self-contained HTML file
 // with the emission table and plots (headless Chromium, Vite started programmatically).
 import { readFileSync } from 'node:fs';
-import { join } from 'node:path';
-import type { ViteDevServer } from 'vite';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { type Browser, launchChromium, startVite } from '../browser/support/chromium.js';
-import { REPO_ROOT } from '../browser/support/worklet-build.js';
+import { describe, expect, it } from 'vitest';
+import { useDemoPage } from '../browser/support/chromium.js';
 
-let browser: Browser;
-let vite: ViteDevServer;
-let base = '';
-
-beforeAll(async () => {
-  const v = await startVite({ configFile: join(REPO_ROOT, 'demo/vite.config.ts') });
-  vite = v.server;
-  base = v.url;
-  browser = await launchChromium();
-});
-
-afterAll(async () => {
-  await browser?.close();
-  await vite?.close();
-});
+const demo = useDemoPage();
 
 describe('demo: download the bench report', () => {
   it('writes a self-contained report of the page network and trims at the given carrier', async () => {
-    const { page, errors } = browser;
-    await page.goto(`${base}/#design`);
+    const { page, errors } = demo.browser;
+    await page.goto(`${demo.base}/#design`);
     await page.waitForSelector('#report-download');
     await page.fill('#report-carrier', '7.1');
     const [dl] = await Promise.all([

@@ -10,6 +10,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { type BrowserContext, chromium, type Page } from 'playwright-core';
 import { createServer, type InlineConfig, type ViteDevServer } from 'vite';
+import { afterAll, beforeAll } from 'vitest';
 import { REPO_ROOT } from './worklet-build.js';
 
 export const CHROMIUM_PATH = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
@@ -87,4 +88,42 @@ export async function startVite(config: InlineConfig): Promise<{ server: ViteDev
 export function artifactPath(name: string): string {
   mkdirSync(ARTIFACTS, { recursive: true });
   return join(ARTIFACTS, name);
+}
+
+/** The demo page served by Vite and one Chromium, opened before a test file's tests and closed after. */
+export interface DemoPage {
+  /** The browser (valid inside tests, after the file's beforeAll has run). */
+  readonly browser: Browser;
+  /** Base URL of the demo page, e.g. http://127.0.0.1:5173. */
+  readonly base: string;
+}
+
+/**
+ * Registers beforeAll/afterAll hooks that serve demo/ with Vite and launch Chromium at `viewport`
+ * (Chromium's default when omitted), and returns their handles for the tests of the file.
+ */
+export function useDemoPage(viewport?: { width: number; height: number }): DemoPage {
+  let browser: Browser | undefined;
+  let vite: ViteDevServer | undefined;
+  let base = '';
+  beforeAll(async () => {
+    const v = await startVite({ configFile: join(REPO_ROOT, 'demo/vite.config.ts') });
+    vite = v.server;
+    base = v.url;
+    browser = await launchChromium();
+    if (viewport) await browser.page.setViewportSize(viewport);
+  });
+  afterAll(async () => {
+    await browser?.close();
+    await vite?.close();
+  });
+  return {
+    get browser() {
+      if (!browser) throw new Error('the demo page is not open: use it inside a test');
+      return browser;
+    },
+    get base() {
+      return base;
+    },
+  };
 }

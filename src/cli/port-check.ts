@@ -4,7 +4,7 @@
  * bit-exact, the first mismatch and the largest error. What a firmware author runs after porting.
  */
 import { readFileSync } from 'node:fs';
-import { numberOpt, parseCommand, UsageError } from './args.js';
+import { choiceOpt, numberOpt, parseCommand, UsageError } from './args.js';
 
 const HELP = `usage: orthotone port-check VECTORS.csv CAPTURE [options]
 
@@ -16,7 +16,7 @@ Exit status 0 when the capture matches (bit-exact, or within --tolerance), 1 whe
 options:
   --codes BITS       the capture holds integer codes of a BITS-bit word (e.g. 16: 32767 = 1.0)
   --tolerance X      accept errors up to X full-scale units (default 0: bit-exact)
-  --json             print the report as JSON
+  --format F         table (default) or json
   -h, --help         this help
 `;
 
@@ -134,7 +134,7 @@ export async function run(argv: string[]): Promise<number> {
     {
       codes: { type: 'string' },
       tolerance: { type: 'string' },
-      json: { type: 'boolean' },
+      format: { type: 'string' },
       help: { type: 'boolean', short: 'h' },
     },
     true,
@@ -150,13 +150,14 @@ export async function run(argv: string[]): Promise<number> {
   if (bits !== undefined && (!Number.isInteger(bits) || bits < 2 || bits > 32)) {
     throw new UsageError(`--codes ${bits} must be a word length in bits from 2 to 32 (e.g. 16)`);
   }
+  const format = choiceOpt('format', v.format, ['table', 'json'], 'table');
   const tolerance = numberOpt('tolerance', v.tolerance) ?? 0;
   if (tolerance < 0) throw new UsageError(`--tolerance ${tolerance} must be 0 or more full-scale units`);
   const [vecFile, capFile] = positionals as [string, string];
   const want = parseVectors(readFileSync(vecFile, 'utf8'), vecFile);
   const got = parseCapture(readFileSync(capFile, 'utf8'), capFile, bits === undefined ? 1 : 2 ** -(bits - 1));
   const r = comparePort(want, got, tolerance);
-  if (v.json) {
+  if (format === 'json') {
     process.stdout.write(`${JSON.stringify(r, null, 2)}\n`);
   } else {
     const out: string[] = [];

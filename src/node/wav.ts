@@ -23,16 +23,7 @@
  * Writes go to a temporary file in the destination's folder, renamed into place when complete: a
  * full disk or a crash leaves the previous file (or none), never a truncated one.
  */
-import {
-  closeSync,
-  fstatSync,
-  fsyncSync,
-  openSync,
-  readSync,
-  renameSync,
-  unlinkSync,
-  writeSync,
-} from 'node:fs';
+import { closeSync, fstatSync, openSync, readSync, writeSync } from 'node:fs';
 import { endianness } from 'node:os';
 import { OrthotoneError } from '../core/errors.js';
 import { requireOneOf } from '../core/validate.js';

@@ -68,7 +68,7 @@ function kitRoundTrip(arithmetic: 'q15' | 'q31', trims: string[]): void {
   const lsb = arithmetic === 'q15' ? 2 ** -15 : 2 ** -31;
   lines[1234] = `${a} ${Number(b) + lsb}`;
   writeFileSync(cap, `${lines.join('\n')}\n`);
-  r = cli(['port-check', vec, cap, '--json']);
+  r = cli(['port-check', vec, cap, '--format', 'json']);
   expect(r.status).toBe(1);
   const rep = JSON.parse(r.stdout);
   expect(rep.bitExact).toBe(false);

@@ -14,7 +14,13 @@
  */
 import { requireOneOf } from '../core/validate.js';
 import { analyzeNetwork } from './analysis.js';
-import { KIT_ARITHMETICS, KIT_WORD_LENGTHS, type KitArithmetic, kitPlan } from './kit-arithmetic.js';
+import {
+  KIT_ARITHMETICS,
+  KIT_WORD_LENGTHS,
+  type KitArithmetic,
+  kitPlan,
+  sectionL1Norms,
+} from './kit-arithmetic.js';
 import { type Network, validateNetwork } from './network.js';
 import { quantizeNetwork } from './quantize.js';
 
@@ -63,30 +69,6 @@ export interface KitArithmeticAnalysis {
 
 function dB(p: number): number {
   return 10 * Math.log10(Math.max(p, 1e-300));
-}
-
-/** L1 norm of a whole branch (input to output), by its impulse response. */
-function branchL1(orders: number[], coefs: number[]): number {
-  let rMax = 0;
-  orders.forEach((m, k) => {
-    rMax = Math.max(rMax, Math.abs(coefs[k]!) ** (1 / m));
-  });
-  const len = Math.min(
-    1 << 21,
-    Math.max(64, Math.ceil(Math.log(1e-12) / Math.log(Math.max(rMax, 1e-3))) + 16),
-  );
-  let x = new Float64Array(len);
-  x[0] = 1;
-  for (let k = 0; k < orders.length; k++) {
-    const m = orders[k]!;
-    const a = coefs[k]!;
-    const y = new Float64Array(len);
-    for (let n = 0; n < len; n++) y[n] = a * (x[n]! - (n >= m ? y[n - m]! : 0)) + (n >= m ? x[n - m]! : 0);
-    x = y;
-  }
-  let s = 0;
-  for (let n = 0; n < len; n++) s += Math.abs(x[n]!);
-  return s;
 }
 
 /**
@@ -183,10 +165,10 @@ export function analyzeKitArithmetic(net: Network, arithmetic: KitArithmetic): K
     for (const b of [plan.branches.i, plan.branches.q]) {
       outPeak = Math.max(
         outPeak,
-        branchL1(
+        sectionL1Norms(
           b.orders,
           b.words.map((w) => w / sc),
-        ),
+        ).at(-1) ?? 1,
       );
     }
   } else outPeak = plan.peakGain;

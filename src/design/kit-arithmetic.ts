@@ -92,8 +92,17 @@ function wordValue(w: number, arithmetic: KitArithmetic): number {
   return arithmetic === 'float' ? w : w / 2 ** coefficientFractionBits(arithmetic);
 }
 
-/** L1 norms of the impulse response at the input of a branch and after each of its sections. */
-function branchL1(delay: number, orders: number[], coefs: number[]): number {
+/**
+ * L1 norms of a cascade's impulse response after each of its sections (the input's own is 1): the
+ * largest sets the headroom a node needs, the last is the branch's gain for a worst-case input
+ * (L1 scaling, Jackson, BSTJ 49:159, 1970). A branch's delay does not change an L1 norm.
+ * @param orders each section's order (1 or 2).
+ * @param coefs each section's coefficient a, as the arithmetic holds it.
+ * @returns the norms, one per section.
+ * @throws never
+ * @internal
+ */
+export function sectionL1Norms(orders: readonly number[], coefs: readonly number[]): number[] {
   // Length: until the slowest pole has decayed by 1e-12 (r = |a|^(1/m)), capped.
   let rMax = 0;
   orders.forEach((m, k) => {
@@ -105,22 +114,21 @@ function branchL1(delay: number, orders: number[], coefs: number[]): number {
   );
   let x = new Float64Array(len);
   x[0] = 1;
-  let peak = 1;
-  const y = new Float64Array(len);
+  const norms: number[] = [];
   for (let k = 0; k < orders.length; k++) {
     const m = orders[k]!;
     const a = coefs[k]!;
+    const y = new Float64Array(len);
     let l1 = 0;
     for (let n = 0; n < len; n++) {
       const v = a * (x[n]! - (n >= m ? y[n - m]! : 0)) + (n >= m ? x[n - m]! : 0);
       y[n] = v;
       l1 += Math.abs(v);
     }
-    peak = Math.max(peak, l1);
-    x = y.slice();
+    norms.push(l1);
+    x = y;
   }
-  void delay; // a delay does not change an L1 norm
-  return peak;
+  return norms;
 }
 
 /**
@@ -159,8 +167,7 @@ export function kitPlan(net: Network, arithmetic: KitArithmetic): KitPlan {
     for (const b of [i, q]) {
       peakGain = Math.max(
         peakGain,
-        branchL1(
-          b.delay,
+        ...sectionL1Norms(
           b.orders,
           b.words.map((w) => wordValue(w, arithmetic)),
         ),

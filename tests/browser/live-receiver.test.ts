@@ -230,4 +230,41 @@ describe('demo page, live receiver path (fake microphone)', () => {
     await page.screenshot({ path: artifactPath('demo-live-calibrate.png'), fullPage: false });
     expect(errors).toEqual([]);
   });
+  it('refuses to calibrate when the receiver brings no tone: says what to check, keeps the trims', async () => {
+    const { page, errors } = browser;
+    // A receiver tuned off the transmission: its audio is low noise (-70 dBFS RMS), no tone. Noise
+    // is read while the device opens, so the file changes before the run opens its input.
+    const n = FS;
+    const noise = new Float32Array(n);
+    let seed = 12345;
+    for (let k = 0; k < n; k++) {
+      seed = (seed * 1103515245 + 12345) % 2147483648;
+      noise[k] = (seed / 2147483648 - 0.5) * 2 * Math.sqrt(3) * 10 ** (-70 / 20);
+    }
+    writeFileSync(MIC, encodeWav([noise], FS, 'int16').bytes);
+    await page.goto(`${base}/#calibrate`);
+    await page.selectOption('#cal-mode', 'live');
+    await page.fill('#cal-tone', String(TONE_HZ));
+    await page.fill('#cal-offset', String(OFFSET_HZ));
+    await page.fill('#cal-settle', '100');
+    await page.fill('#cal-budget', '8');
+    await page.fill('#cal-min-wanted', '-60');
+    await page.evaluate(() => delete document.getElementById('panel-calibrate')!.dataset['result']);
+    await page.click('#cal-run');
+    await page.waitForFunction(
+      () => /check/.test(document.getElementById('cal-status')?.textContent ?? ''),
+      null,
+      {
+        timeout: 30_000,
+      },
+    );
+    const status = (await page.textContent('#cal-status')) ?? '';
+    // liveGuard's words (src/calibrate/session.ts): the wanted tone is missing or below the limit.
+    expect(status).toMatch(/wanted tone reads .* below -60 dBFS|gave no level/);
+    expect(status).toMatch(/restored/);
+    // At most the first reading was taken, and no trim moved.
+    expect(await page.$$eval('#cal-table tbody tr', (rows) => rows.length)).toBeLessThanOrEqual(1);
+    expect(await page.getAttribute('#panel-calibrate', 'data-result')).toBeNull();
+    expect(errors).toEqual([]);
+  });
 });

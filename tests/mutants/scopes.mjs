@@ -13,7 +13,11 @@ export const SCOPES = {
   },
   'trim-stage': {
     mutate: ['src/generate/trim-stage.ts'],
-    tests: ['tests/generate/trim-stage.test.ts', 'tests/generate/quadrature-generator.test.ts'],
+    tests: [
+      'tests/generate/trim-stage.test.ts',
+      'tests/generate/trim-stage-edges.test.ts',
+      'tests/generate/quadrature-generator.test.ts',
+    ],
   },
   seeker: {
     // The null seeker's evidence rules (seeker-evidence.ts) and its stop rules (checkStop, lines 35–89 of

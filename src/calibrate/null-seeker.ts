@@ -27,7 +27,7 @@
  * bowl, its priors and stop rules are this library's own (DESIGN.md §6, REFERENCES.md §6).
  */
 import { OrthotoneError } from '../core/errors.js';
-import { requireFinite, requireInteger, requirePositive } from '../core/validate.js';
+import { requireFinite, requireInteger, requirePositive, stripUndefined } from '../core/validate.js';
 import type { NullSurface } from './quadratic-fit.js';
 import { best } from './seeker-evidence.js';
 import { estimate } from './seeker-fit.js';
@@ -263,12 +263,6 @@ export function resolveSeekerOptions(partial: Partial<NullSeekerOptions>): NullS
     requirePositive(`maxStep[${j}]`, o.maxStep[j]);
   }
   return o;
-}
-
-function stripUndefined<T extends object>(p: Partial<T>): Partial<T> {
-  const out: Partial<T> = {};
-  for (const k of Object.keys(p) as (keyof T)[]) if (p[k] !== undefined) out[k] = p[k];
-  return out;
 }
 
 /**

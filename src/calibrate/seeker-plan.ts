@@ -65,6 +65,12 @@ export function checkStop(st: SeekerState): void {
     recentFitConsistent(st) &&
     floorEvidence(st, e.floorDb)
   ) {
+    // A floor within 20 dB of a start read once may be an outlier's doing (a start read high makes
+    // a flat stretch look like a null): read the start again before believing it.
+    if (e.floorDb > st.startDb - 20 && startReadsKept(st) < 2 && st.readings.length < st.o.maxReadings) {
+      st.rereadStart = true;
+      return;
+    }
     st.stopReason = 'floor';
     return;
   }
@@ -97,6 +103,12 @@ export function plan(st: SeekerState): void {
     return;
   }
   const last = st.readings[st.readings.length - 1]!;
+  if (st.rereadStart && Number.isFinite(last.db)) {
+    st.rereadStart = false;
+    st.pending = [...st.o.start];
+    st.pendingRole = 'probe';
+    return;
+  }
   if (!Number.isFinite(last.db)) {
     // Retry the setting whose reading failed.
     st.pending = [...last.point];

@@ -48,6 +48,8 @@ export interface SeekerState {
   pendingProbe: PlannedProbe | undefined;
   /** The axis probe a failed reading was planned as (retried as such). */
   lastProbe: PlannedProbe | undefined;
+  /** The floor stop waits for a second reading of the start (planned next). */
+  rereadStart: boolean;
 }
 
 /**
@@ -88,6 +90,7 @@ export function resetSeekerState(st: SeekerState): void {
   st.pendingRole = 'start';
   st.pendingProbe = undefined;
   st.lastProbe = undefined;
+  st.rereadStart = false;
 }
 
 /**

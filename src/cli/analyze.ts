@@ -5,6 +5,7 @@
 import { analyzeNetwork } from '../design/analysis.js';
 import { analyzeKitArithmetic } from '../design/arithmetic-analysis.js';
 import { analysisToCsv } from '../export/csv.js';
+import { analysisToSvg } from '../export/svg-plot.js';
 import { assertDistinctFiles, writeFileAtomic } from '../node/files.js';
 import { choiceOpt, inCliWords, numberOpt, parseCommand, UsageError } from './args.js';
 import { arithmeticOpt, describeArithmetic, describeNetwork } from './design.js';
@@ -25,6 +26,7 @@ options:
                    (image rejection, noise floor, headroom, zero-input limit cycles, cost)
   --format F       table (default) | json | csv
   --out FILE       write to FILE instead of standard output
+  --plot FILE.svg  also draw the suppression against frequency (1000 points, log axis, band shaded)
   -h, --help       this help
 `;
 
@@ -46,6 +48,7 @@ export async function run(argv: string[]): Promise<number> {
       format: { type: 'string' },
       arithmetic: { type: 'string' },
       out: { type: 'string' },
+      plot: { type: 'string' },
       help: { type: 'boolean', short: 'h' },
     },
     true,
@@ -58,7 +61,14 @@ export async function run(argv: string[]): Promise<number> {
   if (file === undefined || positionals.length > 1) throw new UsageError('give exactly one network FILE');
   const format = choiceOpt('format', v.format, ['table', 'json', 'csv'], 'table');
   const outFile = typeof v.out === 'string' ? v.out : undefined;
-  assertDistinctFiles([['FILE', file]], [['--out', outFile]]);
+  const plotFile = typeof v.plot === 'string' ? v.plot : undefined;
+  assertDistinctFiles(
+    [['FILE', file]],
+    [
+      ['--out', outFile],
+      ['--plot', plotFile],
+    ],
+  );
   const { net, disagreements } = loadNetworkFile(file);
   const nyq = net.sampleRate / 2;
   const fromHz = numberOpt('from', v.from) ?? net.band[0] / 2;
@@ -69,6 +79,16 @@ export async function run(argv: string[]): Promise<number> {
     toHz: '--to',
     points: '--points',
   });
+  if (plotFile !== undefined) {
+    // The picture gets its own dense log-spaced evaluation over the same range.
+    const dense = analyzeNetwork(net, {
+      points: 1000,
+      fromHz: Math.max(fromHz, nyq * 1e-6),
+      toHz,
+      scale: 'log',
+    });
+    writeFileAtomic(plotFile, analysisToSvg(dense, `Network response (${net.kind})`));
+  }
   const arithmetic = arithmeticOpt(v.arithmetic);
   let out: string;
   if (format === 'json') {

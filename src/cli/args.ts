@@ -63,7 +63,13 @@ export function parseCommand(
         );
       }
       const known = Object.keys(options);
-      const near = nearestName(t.name, known);
+      let near = nearestName(t.name, known);
+      if (near === undefined) {
+        // A library key typed as an option (--targetDb, --tagetDb): name the option it is set by.
+        const key = nearestName(t.name, Object.keys(CLI_NAMES));
+        const opt = key === undefined ? undefined : CLI_NAMES[key]!;
+        if (opt?.startsWith('--') && known.includes(opt.slice(2))) near = opt.slice(2);
+      }
       throw new UsageError(
         `unknown option ${t.rawName}${near === undefined ? '' : `: did you mean --${near}?`} (--help lists the options)`,
       );

@@ -40,6 +40,7 @@ import type { Network } from '../design/network.js';
 import { parseNetworkJson } from '../export/network-json.js';
 import { profileToCHeader } from '../export/profile-header.js';
 import { profileToJson } from '../export/profile-json.js';
+import { convergenceToSvg } from '../export/svg-plot.js';
 import { assertDistinctFiles, writeFileAtomic } from '../node/files.js';
 import { createAnalyzer } from '../simulate/analyzer.js';
 import { createVirtualExciter, type VirtualExciter } from '../simulate/exciter.js';
@@ -51,6 +52,7 @@ import {
 } from '../simulate/model.js';
 import { choiceOpt, lookupOpt, numberOpt, parseCommand, UsageError } from './args.js';
 import { commandSource, lineInput, promptSource } from './calibrate-sources.js';
+import { createProgress } from './progress.js';
 import { formatTable } from './table.js';
 
 const HELP = `usage: orthotone calibrate (--simulate | --prompt | --measure-command CMD) [options]
@@ -114,6 +116,7 @@ options:
   --profile FILE         write the calibration profile (JSON)
   --header FILE          write the profile as a C header
   --session FILE         save the session after every reading (to continue it with --resume)
+  --plot FILE.svg        draw the convergence: each reading and the best so far, per null
   --resume FILE          continue a session saved with --session (same --what, --together, --tone)
   --timeout S            time allowed for one reading, seconds (default 60); three failed
                          readings in a row end the null
@@ -146,6 +149,7 @@ const OPTIONS = {
   outliers: { type: 'string' },
   profile: { type: 'string' },
   header: { type: 'string' },
+  plot: { type: 'string' },
   session: { type: 'string' },
   tones: { type: 'string' },
   band: { type: 'string' },
@@ -378,6 +382,7 @@ export async function run(argv: string[], extras: CalibrateExtras = {}): Promise
     profile: v.profile as string | undefined,
     header: v.header as string | undefined,
     session: v.session as string | undefined,
+    plot: v.plot as string | undefined,
   };
   assertDistinctFiles(
     [
@@ -388,11 +393,13 @@ export async function run(argv: string[], extras: CalibrateExtras = {}): Promise
       ['--profile', files.profile],
       ['--header', files.header],
       ['--session', files.session],
+      ['--plot', files.plot],
     ],
   );
   checkWritable('profile', files.profile);
   checkWritable('header', files.header);
   checkWritable('session', files.session);
+  checkWritable('plot', files.plot);
   const network = files.network !== undefined ? await readNetwork(files.network) : undefined;
   const resumed = files.resume !== undefined ? await readSession(files.resume) : undefined;
   if (resumed && (resumed.what !== what || resumed.together !== together || resumed.toneHz !== toneHz)) {
@@ -436,7 +443,8 @@ export async function run(argv: string[], extras: CalibrateExtras = {}): Promise
     });
     simNote = `virtual exciter: preset ${presetName}, device ${deviceSeed}; analyzer floor ${floorDb ?? -70} dBc, noise ${noiseDb} dB, seed ${seed}; tone ${toneHz} Hz at ${simAmplitude} of full scale${toneAmplitude === undefined ? ' (not told to the calibration)' : ''}\n`;
   }
-  out(`${cautionsText()}\n\n`);
+  // The cautions once, before any reading (the trims may go to a transmitter); stderr under JSON.
+  (format === 'json' ? process.stderr : process.stdout).write(`${cautionsText()}\n\n`);
   if (network && (toneHz < network.band[0] || toneHz > network.band[1])) {
     out(
       `note: the ${toneHz} Hz tone lies outside the network's band ${network.band[0]}-${network.band[1]} Hz: the trims found there may not hold in the band\n`,
@@ -734,6 +742,13 @@ export async function run(argv: string[], extras: CalibrateExtras = {}): Promise
   out(
     `\nresult (levels as read, dBc${exciter ? `; "true" = the virtual exciter's noiseless response` : ''})\n${formatTable(summary)}`,
   );
+  if (files.plot && runs.length > 0) {
+    const plotRuns = runs.map((r) => ({ label: r.q, levelsDb: r.result.history.map((h) => h.levelDb) }));
+    if (plotRuns.some((r) => r.levelsDb.some(Number.isFinite))) {
+      writeFileAtomic(files.plot, convergenceToSvg(plotRuns));
+      out(`wrote convergence plot ${files.plot}\n`);
+    }
+  }
   out(
     `trims: gainDb ${current.gainDb.toFixed(5)}, phaseDeg ${current.phaseDeg.toFixed(5)}, dcI ${current.dcI.toExponential(4)}, dcQ ${current.dcQ.toExponential(4)}\n`,
   );
@@ -803,7 +818,6 @@ export async function run(argv: string[], extras: CalibrateExtras = {}): Promise
     );
   }
   extras.onFinish?.(current);
-  out(`\n${cautionsText()}\n`);
   if (interrupted) return 130;
   return cutShort ? 3 : 0;
 }
@@ -886,8 +900,11 @@ async function runBand(c: BandContext): Promise<number> {
           env: { OT_QUANTITY: 'band', OT_TONES_HZ: tonesHz.join(',') },
           count: K,
         });
+  // Progress on stderr (a terminal only) for the simulated run; typed or scripted readings show their own.
+  const progress = an ? createProgress('multi-tone calibration', Math.max(4, c.maxReadings)) : undefined;
   const r = await calibrateMultitone({
     measure: (t, corr) => (an ? simRead(t, corr) : tonesHz.map(() => Number.NaN)),
+    ...(progress ? { onReading: (step: { index: number }) => progress.update(step.index) } : {}),
     source,
     ...(c.extras.applier ? { applier: c.extras.applier } : {}),
     tonesHz,
@@ -900,12 +917,14 @@ async function runBand(c: BandContext): Promise<number> {
     signal: c.signal,
     timeoutSeconds: c.timeoutSeconds,
     onFailure: (e, index) => out(`  reading ${index} failed: ${(e as Error)?.message ?? 'no value'}\n`),
-  }).catch((e: unknown) => {
-    if (isOrthotoneError(e, 'MEASUREMENT_FAILED')) {
-      throw new UsageError(`${e.message}: too few readings for a correction; nothing was written`);
-    }
-    throw e;
-  });
+  })
+    .finally(() => progress?.finish())
+    .catch((e: unknown) => {
+      if (isOrthotoneError(e, 'MEASUREMENT_FAILED')) {
+        throw new UsageError(`${e.message}: too few readings for a correction; nothing was written`);
+      }
+      throw e;
+    });
   const table: string[][] = [['#', 'setting', ...tonesHz.map((f) => `${f} Hz dB`)]];
   for (const h of r.history)
     table.push([

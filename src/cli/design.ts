@@ -11,8 +11,9 @@ import { quantizationReport } from '../design/quantize.js';
 import { networkToCHeader } from '../export/c-header.js';
 import { networkToCsv } from '../export/csv.js';
 import { networkToJson } from '../export/network-json.js';
+import { analysisToSvg } from '../export/svg-plot.js';
 import type { GeneratorArithmetic } from '../generate/quadrature-generator.js';
-import { writeFileAtomic } from '../node/files.js';
+import { assertDistinctFiles, writeFileAtomic } from '../node/files.js';
 import { choiceOpt, inCliWords, numberListOpt, numberOpt, parseCommand, UsageError } from './args.js';
 import { fixed, formatPairs } from './table.js';
 
@@ -37,6 +38,7 @@ options:
   --format F             table (default) | json | c | csv
   --name ID              identifier prefix in the C header (default ot)
   --out FILE             write to FILE instead of standard output
+  --plot FILE.svg        also draw the designed network's suppression against frequency
   -h, --help             this help
 `;
 
@@ -279,14 +281,28 @@ export async function run(argv: string[]): Promise<number> {
     format: { type: 'string' },
     name: { type: 'string' },
     out: { type: 'string' },
+    plot: { type: 'string' },
     help: { type: 'boolean', short: 'h' },
   });
   if (v.help) {
     process.stdout.write(HELP);
     return 0;
   }
+  const plotFile = typeof v.plot === 'string' ? v.plot : undefined;
+  assertDistinctFiles(
+    [],
+    [
+      ['--out', typeof v.out === 'string' ? v.out : undefined],
+      ['--plot', plotFile],
+    ],
+  );
   const spec = specFromOptions(v);
   const net = inCliWords(() => designNetwork(spec));
+  if (plotFile !== undefined) {
+    // The response from the final coefficients, a decade below the band to Nyquist.
+    const a = analyzeNetwork(net, { points: 1000, scale: 'log' });
+    writeFileAtomic(plotFile, analysisToSvg(a, `Designed network (${net.kind})`));
+  }
   const format = (v.format as string | undefined) ?? 'table';
   const arithmetic = arithmeticOpt(v.arithmetic);
   let text = renderNetwork(net, format, v.name as string | undefined);

@@ -4,15 +4,16 @@
  * output levels read back from what was written, the predicted suppression, and the transmitting
  * cautions.
  */
-import { cautionsText } from '../core/cautions.js';
 import { isOrthotoneError } from '../core/errors.js';
-import type { Trims } from '../core/trims.js';
+import type { Correction, Trims } from '../core/trims.js';
 import { validateTrims, ZERO_TRIMS } from '../core/trims.js';
 import { ampToDb, dbToAmp, powToDb } from '../core/units.js';
+import { equivalentTrims } from '../design/correction.js';
 import { designNetwork } from '../design/design-network.js';
 import { kitPlan, kitTrimWords } from '../design/kit-arithmetic.js';
 import type { Network } from '../design/network.js';
 import { KitModel } from '../generate/fixed-point.js';
+import { createMultitoneSource } from '../generate/multitone-source.js';
 import { predictCarrierDbc, predictOutputPeaks, predictSuppressionDb } from '../generate/prediction.js';
 import { createQuadratureGenerator } from '../generate/quadrature-generator.js';
 import { createSignalSource, type SignalLevels, type SignalSpec, signalLevels } from '../generate/sources.js';
@@ -35,8 +36,10 @@ import {
   seedOpt,
   UsageError,
 } from './args.js';
+import { printCautions, readProfileOption } from './cli-output.js';
 import { arithmeticOpt, DESIGN_OPTIONS, specFromOptions } from './design.js';
 import { disagreementWarning, loadNetworkFile } from './network-file.js';
+import { createProgress } from './progress.js';
 import { fixed, formatPairs } from './table.js';
 
 const HELP = `usage: orthotone render [NETWORK.json] [options] --out FILE.wav
@@ -51,9 +54,13 @@ signal (one of):
   --sweep                logarithmic sweep over the network's band (or --sweep-band LO:HI)
   --noise                noise band-limited to the network's band (--white: white noise)
   --input FILE           a WAV recording (channels averaged to mono)
+  --tones HZ,HZ,...      2 to 32 tones at once, equal levels, low-peak-factor phases: the signal the
+                         across-the-band calibration (calibrate --tones) reads
 levels and length:
   --level DBFS           tone level (each tone for two-tone), noise RMS, or the input's new peak;
-                         defaults: tone -6, two-tone -12 each, sweep -6, noise -20, input unchanged
+                         for --tones the peak of their sum (each tone 20*log10(K) dB lower);
+                         defaults: tone -6, two-tone -12 each, sweep -6, noise -20, tones -6,
+                         input unchanged
   --duration S           seconds (default 5; an input's own length)
   --seed N               noise seed (default 1)
 trims and sideband:
@@ -62,12 +69,15 @@ trims and sideband:
   --phase-deg DEG        phase trim, degrees (|x| <= 45)
   --skew S               Q delay relative to I, samples, fractional (|x| <= 16)
   --dc-i X, --dc-q X     DC added to I and Q, full-scale units (|x| <= 1)
+  --profile FILE         apply a calibration profile (orthotone calibrate --profile): its trims,
+                         sideband and correction filter; a trim or --sideband given here wins
 output:
   --out FILE.wav         the I/Q file to write (required)
   --encoding E           float32 (default) | float64 | int32 | int24 | int16 | uint8
                          (RF64 when the data passes the 4 GiB limit of a plain WAV)
   --vectors FILE.csv     also write test vectors for a firmware port: n,input,i,q per sample
                          (float32 values, 9 significant digits; trims and network as above)
+  --format F             table (default) | json: the report (cautions then go to stderr)
 arithmetic:
   --arithmetic A         double (default) | float | q31 | q15: run the firmware kit's arithmetic,
                          bit-exact with 'orthotone firmware' kits (without a network file, the
@@ -75,7 +85,6 @@ arithmetic:
                          then holds the kit's exact output in round-trip digits
   --max-skew N           the kit's skew stage size, whole samples (as 'firmware --max-skew';
                          default: the skew rounded up)
-  --json                 print the report as JSON
 design options (without a network file):
   --rate HZ --band LO:HI --method fir|allpass|auto --target DB --taps N --sections N
   --fir-method remez|kaiser --form first-order|second-order --coefficients float64|float32|q31|q15
@@ -217,8 +226,10 @@ export async function run(argv: string[]): Promise<number> {
       out: { type: 'string' },
       encoding: { type: 'string' },
       vectors: { type: 'string' },
+      tones: { type: 'string' },
+      profile: { type: 'string' },
+      format: { type: 'string' },
       'max-skew': { type: 'string' },
-      json: { type: 'boolean' },
       help: { type: 'boolean', short: 'h' },
     },
     true,
@@ -239,6 +250,7 @@ export async function run(argv: string[]): Promise<number> {
     [
       ['NETWORK', netFile],
       ['--input', inputFile],
+      ['--profile', typeof v.profile === 'string' ? v.profile : undefined],
     ],
     [
       ['--out', outFile],
@@ -274,8 +286,9 @@ async function renderWith(
   vectorsFile: string | undefined,
 ): Promise<number> {
   const encoding = choiceOpt<WavEncoding>('encoding', v.encoding, WAV_ENCODINGS, 'float32');
-  const sideband = choiceOpt<Sideband>('sideband', v.sideband, ['upper', 'lower'], 'upper');
-  const trims = inCliWords(() => trimsFromOptions(v));
+  const format = choiceOpt('format', v.format, ['table', 'json'], 'table');
+  let sideband = choiceOpt<Sideband>('sideband', v.sideband, ['upper', 'lower'], 'upper');
+  let trims = inCliWords(() => trimsFromOptions(v));
   const inputRate = input?.info.sampleRate ?? 0;
   const inputFile = v.input as string | undefined;
 
@@ -309,24 +322,57 @@ async function renderWith(
     );
   }
 
-  const spec = signalFromOptions(v, net);
+  // A profile gives trims, sideband and correction; options given here win over it.
+  let correction: Correction | null = null;
+  let profileNote: string | undefined;
+  if (typeof v.profile === 'string') {
+    const p = readProfileOption(v.profile, fs);
+    trims = { ...p.trims, ...trims };
+    if (v.sideband === undefined) sideband = p.sideband;
+    correction = p.correction;
+    profileNote = `${v.profile} (made ${p.created}${correction ? `, correction ${correction.qFromQ.length} taps` : ''})`;
+  }
+
+  const multitone = numberListOpt('tones', v.tones, ',');
+  if (multitone !== undefined && (v.tone ?? v['two-tone'] ?? v.sweep ?? v.noise ?? v.input) !== undefined) {
+    throw new UsageError('choose one signal: --tones cannot go with another signal option');
+  }
+  const spec = multitone === undefined ? signalFromOptions(v, net) : null;
+  const toneSet =
+    multitone === undefined
+      ? null
+      : inCliWords(() => createMultitoneSource(multitone, fs, numberOpt('level', v.level) ?? -6), {
+          frequenciesHz: '--tones',
+        });
   let levels: SignalLevels;
   let frames: number;
   let inputGain = 1;
-  if (spec) {
-    if (spec.kind === 'tone' || spec.kind === 'two-tone') {
-      const tones = spec.kind === 'tone' ? [spec.frequencyHz] : spec.frequenciesHz;
-      const opt = spec.kind === 'tone' ? 'tone' : 'two-tone';
-      for (const f of tones) {
-        if (!(f > 0 && f < fs / 2))
-          throw new UsageError(`--${opt} ${f} Hz must lie above 0 Hz and below Nyquist ${fs / 2} Hz`);
+  if (spec || toneSet) {
+    if (spec) {
+      if (spec.kind === 'tone' || spec.kind === 'two-tone') {
+        const tones = spec.kind === 'tone' ? [spec.frequencyHz] : spec.frequenciesHz;
+        const opt = spec.kind === 'tone' ? 'tone' : 'two-tone';
+        for (const f of tones) {
+          if (!(f > 0 && f < fs / 2))
+            throw new UsageError(`--${opt} ${f} Hz must lie above 0 Hz and below Nyquist ${fs / 2} Hz`);
+        }
+        if (tones.length === 2 && tones[0] === tones[1])
+          throw new UsageError(
+            `--two-tone ${tones[0]},${tones[1]} is one tone twice: give two different frequencies`,
+          );
       }
-      if (tones.length === 2 && tones[0] === tones[1])
-        throw new UsageError(
-          `--two-tone ${tones[0]},${tones[1]} is one tone twice: give two different frequencies`,
-        );
+      levels = inCliWords(() => signalLevels(spec, fs), SIGNAL_NAMES);
+    } else {
+      const ts = toneSet!;
+      const k = ts.frequenciesHz.length;
+      const amp = dbToAmp(ts.toneDbfs);
+      levels = {
+        toneDbfs: ts.frequenciesHz.map(() => ts.toneDbfs),
+        pepDbfs: ampToDb(k * amp),
+        rmsDbfs: ts.toneDbfs + powToDb(k),
+        peak: k * amp,
+      };
     }
-    levels = inCliWords(() => signalLevels(spec, fs), SIGNAL_NAMES);
     const duration = numberOpt('duration', v.duration) ?? 5;
     if (!(duration > 0 && duration <= MAX_DURATION_S))
       throw new UsageError(`--duration ${duration} s must be more than 0 and at most ${MAX_DURATION_S} s`);
@@ -390,10 +436,17 @@ async function renderWith(
   if (vectorsFile !== undefined) checkFreeSpace(vectorsFile, frames * 50, '--vectors');
 
   const arithmetic = arithmeticOpt(v.arithmetic);
+  if (correction && arithmetic !== 'double') {
+    throw new UsageError(
+      `--profile ${String(v.profile)} carries a correction filter, which runs in double arithmetic only: drop --arithmetic ${arithmetic}`,
+    );
+  }
   const maxSkew = numberOpt('max-skew', v['max-skew']) ?? Math.ceil(Math.abs(trims.skewSamples ?? 0));
   const gen = createQuadratureGenerator(
     net,
-    arithmetic === 'double' ? { trims, sideband } : { trims, sideband, arithmetic, maxSkewSamples: maxSkew },
+    arithmetic === 'double'
+      ? { trims, sideband, correction }
+      : { trims, sideband, arithmetic, maxSkewSamples: maxSkew },
   );
   // With a kit arithmetic the vectors hold the kit's own output exactly (Q31 does not fit the
   // float32 samples the generator returns), in digits that round-trip a double.
@@ -417,7 +470,8 @@ async function renderWith(
   const i = new Float32Array(BLOCK);
   const q = new Float32Array(BLOCK);
   const inBufs = input ? Array.from({ length: input.info.channels }, () => new Float32Array(BLOCK)) : [];
-  const src = spec ? createSignalSource(spec, fs) : null;
+  const src = spec ? createSignalSource(spec, fs) : toneSet;
+  const progress = createProgress('render', frames);
   const writer = createWavWriter(outFile, { channels: 2, sampleRate: fs, encoding });
   const vectors = vectorsFile === undefined ? null : createTextWriter(vectorsFile);
   let peakI = 0;
@@ -459,6 +513,7 @@ async function renderWith(
         winI.set(i.subarray(from - o, to - o), from - settle);
         winQ.set(q.subarray(from - o, to - o), from - settle);
       }
+      progress.update(o + n);
       if (vectors && kit) {
         for (let k = 0; k < n; k++) kx[k] = kit.sampleFromFullScale(x[k]!);
         kit.processSamples(kx, ki, kq, n);
@@ -475,7 +530,9 @@ async function renderWith(
     }
     report = writer.close();
     vectors?.close();
+    progress.finish();
   } catch (e) {
+    progress.finish();
     writer.abort();
     vectors?.abort();
     throw e;
@@ -485,7 +542,11 @@ async function renderWith(
 
   const rmsDbfs = (p: number) => powToDb((2 * p) / Math.max(1, frames));
   const tones =
-    spec?.kind === 'tone' ? [spec.frequencyHz] : spec?.kind === 'two-tone' ? spec.frequenciesHz : [];
+    spec?.kind === 'tone'
+      ? [spec.frequencyHz]
+      : spec?.kind === 'two-tone'
+        ? spec.frequenciesHz
+        : (toneSet?.frequenciesHz ?? []);
   const sign = sideband === 'lower' ? -1 : 1;
   const toneRows = tones.map((f) => {
     const wanted = nRead > 256 ? complexToneAmplitude(winI, winQ, 0, nRead, sign * f, fs) : Number.NaN;
@@ -494,7 +555,12 @@ async function renderWith(
       frequencyHz: f,
       wantedDbfs: ampToDb(wanted),
       unwantedDbc: ampToDb(image / wanted),
-      predictedSuppressionDb: predictSuppressionDb(net, f, trims, sideband),
+      predictedSuppressionDb: predictSuppressionDb(
+        net,
+        f,
+        equivalentTrims(correction ?? undefined, trims, f, fs),
+        sideband,
+      ),
       predictedCarrierDbc: predictCarrierDbc(trims, dbToAmp(levels.toneDbfs[tones.indexOf(f)] ?? 0)),
     };
   });
@@ -528,7 +594,17 @@ async function renderWith(
       latencySamples: net.cost.latencySamples,
       storedFiguresAgree: disagreements.length === 0,
     },
-    signal: spec ?? { kind: 'input', file: inputFile },
+    signal:
+      spec ??
+      (toneSet
+        ? {
+            kind: 'multitone',
+            frequenciesHz: toneSet.frequenciesHz,
+            levelDbfs: numberOpt('level', v.level) ?? -6,
+          }
+        : { kind: 'input', file: inputFile }),
+    profile: typeof v.profile === 'string' ? v.profile : null,
+    correctionTaps: correction ? correction.qFromQ.length : 0,
     signalLevels: levels,
     trims: { gainDb: 0, phaseDeg: 0, skewSamples: 0, dcI: 0, dcQ: 0, ...trims },
     sideband,
@@ -547,7 +623,7 @@ async function renderWith(
     },
     warnings,
   };
-  if (v.json) {
+  if (format === 'json') {
     process.stdout.write(`${JSON.stringify(result, null, 2)}\n`);
   } else {
     const pairs: [string, string][] = [
@@ -555,10 +631,16 @@ async function renderWith(
         'network',
         `${net.kind}, band ${net.band[0]}-${net.band[1]} Hz at ${fs} Hz; worst suppression ${dbText(net.predicted.worstSuppressionDb)} dB over the band (computed from the coefficients)`,
       ],
-      ['signal', describeSignal(spec, levels, inputFile)],
+      [
+        'signal',
+        toneSet
+          ? `${toneSet.frequenciesHz.length} tones ${toneSet.frequenciesHz.join(', ')} Hz, ${dbText(toneSet.toneDbfs)} dBFS each, sum peak ${dbText(ampToDb(levels.peak))} dBFS`
+          : describeSignal(spec, levels, inputFile),
+      ],
       [
         'trims',
-        `gain ${fixed(result.trims.gainDb, 3)} dB, phase ${fixed(result.trims.phaseDeg, 3)} deg, skew ${fixed(result.trims.skewSamples, 3)} samples, DC I ${result.trims.dcI}, DC Q ${result.trims.dcQ}; ${sideband} sideband`,
+        `gain ${fixed(result.trims.gainDb, 3)} dB, phase ${fixed(result.trims.phaseDeg, 3)} deg, skew ${fixed(result.trims.skewSamples, 3)} samples, DC I ${result.trims.dcI}, DC Q ${result.trims.dcQ}; ${sideband} sideband` +
+          (profileNote ? `; from profile ${profileNote}` : ''),
       ],
       [
         'realised',
@@ -585,7 +667,8 @@ async function renderWith(
     process.stdout.write(formatPairs(pairs));
   }
   for (const w of warnings) process.stderr.write(`${w}\n`);
-  process.stdout.write(`\n${cautionsText()}\n`);
+  // The file may be played into a transmitter: the cautions, once, off stdout when it is JSON.
+  printCautions(format === 'json');
   return 0;
 }
 

@@ -3,14 +3,17 @@
  * what a measuring receiver would capture: its I/Q baseband around the carrier, or its audio with
  * the carrier at a chosen offset. Prints the drawn device and its predicted suppression.
  */
-import { cautionsText } from '../core/cautions.js';
+import type { CalibrationProfile } from '../calibrate/profile.js';
 import { isOrthotoneError } from '../core/errors.js';
+import { equivalentTrims } from '../design/correction.js';
+import { TrimStage } from '../generate/trim-stage.js';
 import { assertDistinctFiles } from '../node/files.js';
 import { createWavWriter, openWavReader, type WavReader } from '../node/wav.js';
 import { createVirtualExciter } from '../simulate/exciter.js';
 import { drawDevice, HOMEBREW_BENCH_SEED, TOLERANCE_PRESETS } from '../simulate/model.js';
-import { predictedSuppression } from '../simulate/response.js';
+import { predictedSuppression, responseLevels, toneResponse } from '../simulate/response.js';
 import { choiceOpt, inCliWords, lookupOpt, numberOpt, parseCommand, seedOpt, UsageError } from './args.js';
+import { readProfileOption } from './cli-output.js';
 import { fixed, formatPairs, formatTable } from './table.js';
 
 const HELP = `usage: orthotone simulate IN.wav --out OUT.wav [options]
@@ -26,6 +29,8 @@ commutating mixer drawn from component tolerances — and writes what a receiver
   --floor DBC            receiver noise floor, dBc per hertz re a full-scale tone (default -130)
   --harmonic N           receive around the N-th LO harmonic (default 1)
   --offset HZ            write receiver audio (mono) with the carrier at HZ, instead of I/Q (stereo)
+  --profile FILE         apply a calibration profile's trims and correction to the I/Q before the
+                         exciter (for a file rendered without them), and predict with them
   --format F             table (default) | json: the device and its predicted suppression
   -h, --help             this help
 `;
@@ -39,6 +44,7 @@ const OPTIONS = {
   harmonic: { type: 'string' },
   offset: { type: 'string' },
   format: { type: 'string' },
+  profile: { type: 'string' },
   help: { type: 'boolean', short: 'h' },
 } as const;
 
@@ -69,7 +75,14 @@ export async function run(argv: string[]): Promise<number> {
   const offset = numberOpt('offset', v.offset);
   const inFile = positionals[0]!;
   const outFile = v.out as string;
-  assertDistinctFiles([['IN.wav', inFile]], [['--out', outFile]]);
+  const profileFile = typeof v.profile === 'string' ? v.profile : undefined;
+  assertDistinctFiles(
+    [
+      ['IN.wav', inFile],
+      ['--profile', profileFile],
+    ],
+    [['--out', outFile]],
+  );
   let wav: WavReader;
   try {
     wav = openWavReader(inFile);
@@ -83,6 +96,8 @@ export async function run(argv: string[]): Promise<number> {
   let fs: number;
   let ex: ReturnType<typeof createVirtualExciter>;
   let model: ReturnType<typeof drawDevice>;
+  let profile: CalibrationProfile | null = null;
+  let trimStage: TrimStage | null = null;
   try {
     const nc = wav.info.channels;
     if (nc !== 2) {
@@ -95,6 +110,11 @@ export async function run(argv: string[]): Promise<number> {
       throw new UsageError(`--offset ${offset} Hz must lie between 0 and ${fs / 2} Hz (Nyquist)`);
     }
     model = inCliWords(() => drawDevice(preset, deviceSeed), { seed: '--device-seed' });
+    profile = profileFile === undefined ? null : readProfileOption(profileFile, fs);
+    // The profile's trims and correction act on the I/Q before the exciter, as the generator's would.
+    trimStage = profile
+      ? new TrimStage(fs, { trims: profile.trims, correction: profile.correction, rampSeconds: 0 })
+      : null;
     ex = inCliWords(() => createVirtualExciter(model, { sampleRate: fs, seed, floorDbc, harmonic }), {
       seed: '--seed',
       harmonic: '--harmonic',
@@ -123,6 +143,12 @@ export async function run(argv: string[]): Promise<number> {
             );
           }
         }
+        if (trimStage) {
+          // re/im serve as scratch for the trimmed I/Q before the exciter overwrites them.
+          trimStage.process(i.subarray(0, m), q.subarray(0, m), re.subarray(0, m), im.subarray(0, m));
+          i.set(re.subarray(0, m));
+          q.set(im.subarray(0, m));
+        }
         ex.process(i.subarray(0, m), q.subarray(0, m), re.subarray(0, m), im.subarray(0, m));
         if (offset !== undefined) {
           // A receiver on its upper sideband tuned `offset` below the carrier: audio = Re{z·e^{j2π·offset·t}}.
@@ -143,10 +169,16 @@ export async function run(argv: string[]): Promise<number> {
     wav.close();
   }
   const freqs = [300, 700, 1000, 1800, 1900, 3000].filter((f) => f < 0.45 * fs);
-  const pred = predictedSuppression(model, freqs);
+  const pred = profile
+    ? freqs.map((f) => {
+        const t = equivalentTrims(profile.correction ?? undefined, profile.trims, f, fs);
+        const l = responseLevels(toneResponse(model, f, t, 1, fs));
+        return { frequencyHz: f, sidebandDb: -l.unwantedDbc, carrierDb: -l.carrierDbc };
+      })
+    : predictedSuppression(model, freqs);
   if (format === 'json') {
     process.stdout.write(
-      `${JSON.stringify({ preset: presetName, deviceSeed, seed, floorDbc, harmonic, sampleRate: fs, samples: n, latencySamples: ex.latencySamples, model, predicted: pred }, null, 2)}\n`,
+      `${JSON.stringify({ preset: presetName, deviceSeed, seed, floorDbc, harmonic, sampleRate: fs, samples: n, latencySamples: ex.latencySamples, model, profile: profileFile ?? null, trims: profile ? profile.trims : null, predicted: pred }, null, 2)}\n`,
     );
     return 0;
   }
@@ -174,12 +206,13 @@ export async function run(argv: string[]): Promise<number> {
           `${fixed(model.couplingHighPassHz[0], 2)} / ${fixed(model.couplingHighPassHz[1], 2)} Hz (0 = DC-coupled)`,
         ],
       ]) +
-      '\npredicted with zero trims (full-scale tone):\n' +
+      (profile
+        ? `\npredicted with the trims${profile.correction ? ' and correction' : ''} of ${profileFile} (full-scale tone):\n`
+        : '\npredicted with zero trims (full-scale tone):\n') +
       formatTable([
         ['tone Hz', 'sideband dB', 'carrier dB'],
         ...pred.map((p) => [String(p.frequencyHz), fixed(p.sidebandDb, 2), fixed(p.carrierDb, 2)]),
-      ]) +
-      `\n${cautionsText()}\n`,
+      ]),
   );
   return 0;
 }

@@ -69,7 +69,7 @@ export async function run(argv: string[]): Promise<number> {
   const say = (s: string): void => {
     process.stdout.write(s);
   };
-  say(`${cautionsText()}\n\n`);
+  // The cautions are printed once, at the end beside the files that may be played into a transmitter.
 
   // 1. The network.
   const net = designNetwork({ sampleRate: FS, band: BAND, method: 'auto', targetDb: 60 });

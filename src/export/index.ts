@@ -13,4 +13,11 @@ export { networkToJson, parseNetworkJson } from './network-json.js';
 export { type ProfileHeaderOptions, profileToCHeader } from './profile-header.js';
 export { parseProfileJson, profileToJson } from './profile-json.js';
 export { type BenchReportData, benchReportHtml } from './report.js';
-export { analysisToSvg, type PlotSeries, type PlotSpec, plotToSvg } from './svg-plot.js';
+export {
+  analysisToSvg,
+  type ConvergenceRun,
+  convergenceToSvg,
+  type PlotSeries,
+  type PlotSpec,
+  plotToSvg,
+} from './svg-plot.js';

@@ -284,3 +284,37 @@ export function analysisToSvg(a: NetworkAnalysis, title = 'Network response'): s
     shade: { from: a.band[0], to: a.band[1], label: `band ${a.band[0]}–${a.band[1]} Hz` },
   });
 }
+
+/** One null's readings for {@link convergenceToSvg}. */
+export interface ConvergenceRun {
+  /** What was nulled, e.g. "sideband" or "carrier". */
+  label: string;
+  /** Each reading's level as read, dB (dBc), in reading order; non-finite = a failed reading. */
+  levelsDb: ArrayLike<number>;
+}
+
+/**
+ * The convergence plot of a calibration: each reading's level (dBc) and the best so far against the
+ * reading number, one pair of lines per null.
+ * @param runs the nulls, each with its readings in order.
+ * @param title plot title (default "Calibration convergence").
+ * @returns the SVG document.
+ * @throws {OrthotoneError} INVALID_ARGUMENT when no run has a finite reading.
+ * Method: {@link plotToSvg}; "best so far" is the running minimum of the finite readings.
+ */
+export function convergenceToSvg(runs: readonly ConvergenceRun[], title = 'Calibration convergence'): string {
+  const series: PlotSeries[] = [];
+  for (const r of runs) {
+    const x = Array.from({ length: r.levelsDb.length }, (_, k) => k + 1);
+    const best: number[] = [];
+    let b = Number.POSITIVE_INFINITY;
+    for (let k = 0; k < r.levelsDb.length; k++) {
+      const v = r.levelsDb[k]!;
+      if (Number.isFinite(v) && v < b) b = v;
+      best.push(Number.isFinite(b) ? b : Number.NaN);
+    }
+    series.push({ label: `${r.label}: reading (dBc)`, x, y: Array.from(r.levelsDb), markers: true });
+    series.push({ label: `${r.label}: best so far (dBc)`, x, y: best });
+  }
+  return plotToSvg({ title, xLabel: 'reading (count)', yLabel: 'level read (dBc)', series });
+}

@@ -4,7 +4,7 @@
 // figures are true suppression from the virtual exciter's noiseless response at the trims returned.
 // Invented bench: homebrew-bench tolerances, starts 30–45 dB, analyzer noise 0.5 dB, floor −70 dBc.
 import { describe, expect, it } from 'vitest';
-import { pickDevices, runBench } from './bench-support.js';
+import { pickDevices, runBench, runOne } from './bench-support.js';
 
 const devices = pickDevices(16, 5000);
 
@@ -45,5 +45,17 @@ describe('issue 9 goals on drawn devices (default settings)', () => {
     expect(r16.p90).toBeGreaterThanOrEqual(70);
     expect(o16.median).toBeGreaterThanOrEqual(75);
     expect(o16.worseThanStart).toBe(0);
+  });
+});
+
+describe('a start read 10 dB high does not make a flat stretch a floor', () => {
+  it('carrier, bench device 72, outliers either way: re-reads the start before a floor stop, ends no worse than it began', async () => {
+    // Found by bench/calibrate.bench.mjs (5% of readings 10 dB off either way): the start read
+    // −30.3 dBc where the truth was −41.0, and the seeker stopped on "floor" at −40.5 after 9
+    // readings, 0.6 dB worse than the start.
+    const dev = pickDevices(73)[72]!;
+    const r = await runOne('carrier', dev, 16, 5072, null, 0.05);
+    expect(r.finalDb).toBeGreaterThanOrEqual(r.startDb - 0.01);
+    expect(r.stopReason === 'floor' && r.lastReadDb > -60).toBe(false);
   });
 });

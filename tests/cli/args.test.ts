@@ -46,6 +46,8 @@ describe('parseCommand', () => {
   it('names an unknown option and the nearest known one', () => {
     expect(fails(['--flor', '-70'])).toMatch(/^unknown option --flor: did you mean --floor\?/);
     expect(fails(['--rat', '48000'])).toMatch(/did you mean --rate\?/);
+    // A library key typed as an option: the option that sets it.
+    expect(fails(['--sampleRate', '48000'])).toMatch(/did you mean --rate\?/);
     // Nothing near: no guess.
     const m = fails(['--zzzzzzzz']);
     expect(m).toMatch(/^unknown option --zzzzzzzz/);

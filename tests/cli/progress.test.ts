@@ -1,8 +1,12 @@
 /**
  * The progress line: drawn only on a terminal, rate-limited, ending at 100 %, cleared at the end.
- * (A recording stream stands in for the terminal; the CLI tests run the commands with piped stderr,
- * where nothing may appear.)
+ * A recording stream stands in for the terminal in the unit tests; beside them, the built command
+ * runs under a real pseudo-terminal (util-linux `script`) and with piped stderr.
  */
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { createProgress } from '../../src/cli/progress.js';
 
@@ -44,5 +48,25 @@ describe('createProgress', () => {
     expect(draws[0]!.startsWith('\r\x1b[2Kruns [')).toBe(true);
     expect(draws[0]).toMatch(/\] 2% \(1\/50\)$/);
     expect(s.writes.at(-1)).toBe('\r\x1b[2K');
+  });
+
+  it('a long render shows progress on a real terminal and none when stderr is piped', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'ot-progress-'));
+    try {
+      const cmd = `node dist/cli.js render --tone 1000 --duration 20 --out ${join(dir, 'a.wav')}`;
+      const tty = spawnSync('script', ['-qec', cmd, '/dev/null'], { encoding: 'utf8' });
+      expect(tty.status, tty.stderr).toBe(0);
+      expect(tty.stdout).toMatch(/render \[#+\.*\] \d+% \(\d+\/960000\)/);
+      const piped = spawnSync(
+        'node',
+        ['dist/cli.js', 'render', '--tone', '1000', '--duration', '20', '--out', join(dir, 'b.wav')],
+        { encoding: 'utf8' },
+      );
+      expect(piped.status).toBe(0);
+      expect(piped.stderr).not.toMatch(/render \[/);
+      expect(piped.stdout).not.toMatch(/render \[/);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
   });
 });

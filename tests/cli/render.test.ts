@@ -40,10 +40,12 @@ describe('orthotone render', () => {
       '1',
       '--out',
       out,
-      '--json',
+      '--format',
+      'json',
     ]);
     expect(r.code).toBe(0);
-    const json = JSON.parse(r.out.slice(0, r.out.indexOf('\n!')));
+    // stdout is the JSON alone; the cautions go to stderr (issue 13: machine output stays clean).
+    const json = JSON.parse(r.out);
     // Two equal tones at −7 dBFS: PEP −0.98 dBFS (REFERENCES.md §5: each tone 6.02 dB below PEP).
     expect(json.signalLevels.pepDbfs).toBeCloseTo(-7 + 6.0206, 3);
     for (const t of json.realised.tones) {
@@ -52,8 +54,9 @@ describe('orthotone render', () => {
       expect(Math.abs(-t.unwantedDbc - imageRejectionDb(1, Math.PI / 180))).toBeLessThan(0.05);
       expect(Math.abs(t.predictedSuppressionDb - 41.183)).toBeLessThan(0.01);
     }
-    expect(r.out).toMatch(/licence/);
-    expect(r.out).toMatch(/dummy load/);
+    expect(r.err).toMatch(/licence/);
+    expect(r.err).toMatch(/dummy load/);
+    expect(r.out).not.toMatch(/licence/);
     const d = decodeWav(new Uint8Array(require('node:fs').readFileSync(out)));
     expect(d.channels.length).toBe(2);
     expect(d.sampleRate).toBe(48000);
@@ -123,10 +126,11 @@ describe('orthotone render', () => {
       '1',
       '--out',
       out,
-      '--json',
+      '--format',
+      'json',
     ]);
     expect(r.code).toBe(0);
-    const json = JSON.parse(r.out.slice(0, r.out.indexOf('\n!')));
+    const json = JSON.parse(r.out);
     // REFERENCES.md §1: dI = 0.001A, dQ = 0.0005A → −59.031 dBc (A = 0.5).
     expect(json.realised.tones[0].predictedCarrierDbc).toBeCloseTo(-59.031, 3);
     expect(json.realised.carrierDbfs - json.realised.tones[0].wantedDbfs).toBeCloseTo(-59.031, 2);

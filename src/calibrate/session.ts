@@ -20,9 +20,11 @@
  * References: the ask/tell split of DESIGN.md §6; the AbortSignal contract of the WHATWG DOM
  * Standard (`abort` event and `reason`).
  */
+
 import { abortable } from '../core/abort.js';
 import { isOrthotoneError, OrthotoneError } from '../core/errors.js';
 import type { Trims } from '../core/trims.js';
+import type { Analyzer } from '../simulate/analyzer.js';
 import type { StopReason } from './null-seeker.js';
 
 /** The best trims a seeker knows, and the level(s) expected there (dB). */
@@ -372,28 +374,8 @@ export function functionSource<L>(measure: (trims: Trims) => L | Promise<L>): Re
   return { read: (t) => measure(t) };
 }
 
-/** The analyzer calls {@link analyzerSource} needs (src/simulate/analyzer.ts provides them). */
-export interface AnalyzerLike {
-  /**
-   * Unwanted sideband, dBc, at `toneHz` (Hz) with `trims`, tone peak `amplitude` (full scale 1).
-   * @throws {OrthotoneError} MEASUREMENT_FAILED for a simulated failed reading.
-   */
-  readSideband(toneHz: number, trims: Partial<Trims>, amplitude?: number): number;
-  /**
-   * Carrier, dBc, as {@link AnalyzerLike.readSideband}.
-   * @throws {OrthotoneError} MEASUREMENT_FAILED for a simulated failed reading.
-   */
-  readCarrier(toneHz: number, trims: Partial<Trims>, amplitude?: number): number;
-  /**
-   * Both levels from one reading, dBc.
-   * @throws {OrthotoneError} MEASUREMENT_FAILED for a simulated failed reading.
-   */
-  readBoth(
-    toneHz: number,
-    trims: Partial<Trims>,
-    amplitude?: number,
-  ): { sidebandDbc: number; carrierDbc: number };
-}
+/** The analyzer calls {@link analyzerSource} needs: those of the virtual analyzer (src/simulate/analyzer.ts). */
+export type AnalyzerLike = Pick<Analyzer, 'readSideband' | 'readCarrier' | 'readBoth'>;
 
 /**
  * The virtual analyzer as a reading source: the unwanted sideband, the carrier, or both, in dBc.

@@ -149,9 +149,9 @@ export function parseWavHeader(
   let ds64Data: number | undefined;
   let fmt: { tag: number; channels: number; rate: number; align: number; bits: number } | undefined;
   let o = 12;
-  let chunks = 0;
+  // Each chunk moves o on by at least 8 bytes, and `head` is at most HEADER_SCAN_LIMIT bytes long,
+  // so the walk ends whatever the chunk count (RIFF sets no limit on it).
   while (o + 8 <= head.length) {
-    if (++chunks > 10_000) break;
     const id = tag(head, o);
     const size = dv.getUint32(o + 4, true);
     if (id === 'ds64' && size >= 24) {
@@ -233,8 +233,17 @@ export function parseWavHeader(
   );
 }
 
-/** Reverses the bytes of each `width`-byte word in place (for a big-endian host). */
-function swapBytes(b: Uint8Array, width: number, n: number): void {
+/**
+ * Reverses the bytes of each whole `width`-byte word in the first `n` bytes of `b`, in place: a
+ * little-endian word becomes big-endian and back (used on a big-endian host, since WAV data is
+ * little-endian; RIFF, Microsoft/IBM 1991). A trailing part-word is left as it is. Internal to the
+ * WAV module (not in `orthotone/node`); exported for its tests.
+ * @param b the bytes.
+ * @param width word size, bytes (1 leaves `b` unchanged).
+ * @param n bytes to treat.
+ * @throws never
+ */
+export function swapBytes(b: Uint8Array, width: number, n: number): void {
   if (width === 1) return;
   for (let o = 0; o + width <= n; o += width) {
     for (let a = o, z = o + width - 1; a < z; a++, z--) {
@@ -494,7 +503,7 @@ function headerBytes(
     dv.setBigUint64(20, BigInt(riffSize), true);
     dv.setBigUint64(28, BigInt(dataBytes), true);
     dv.setBigUint64(36, BigInt(frames), true);
-    dv.setUint32(44, 0, true);
+    // bytes 44–47, the table length, stay 0 (no table): the buffer starts zeroed.
   }
   let o = 48;
   put(o, 'fmt ');
@@ -505,7 +514,7 @@ function headerBytes(
   dv.setUint32(o + 16, fs * nc * (bits / 8), true);
   dv.setUint16(o + 20, nc * (bits / 8), true);
   dv.setUint16(o + 22, bits, true);
-  if (float) dv.setUint16(o + 24, 0, true);
+  // A float fmt chunk ends with cbSize = 0 (bytes o + 24 … 25), left zero from the fresh buffer.
   o += 8 + fmtSize;
   if (float) {
     put(o, 'fact');
@@ -726,9 +735,8 @@ export function createWavWriter(
       if (finished) fail('close after close or abort');
       try {
         if (dataBytes % 2 === 1) sink.write(fd, new Uint8Array(1), 1, headLen + dataBytes);
-        const head = headerBytes(nc, fs, enc, dataBytes, frames, rf64Above);
-        if (head.length !== headLen) throw new Error('internal: header length changed');
-        sink.write(fd, head, headLen, 0);
+        // The header's length depends on the encoding only, so it fits the room left at the start.
+        sink.write(fd, headerBytes(nc, fs, enc, dataBytes, frames, rf64Above), headLen, 0);
         target.commit();
         finished = true;
       } catch (e) {

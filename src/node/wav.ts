@@ -783,7 +783,8 @@ export function encodeWav(
   const width = encodingLayout(encoding).bits / 8;
   const dataBytes = n * channels.length * width;
   const head = headerBytes(channels.length, sampleRate, encoding, dataBytes, n);
-  const out = new Uint8Array(new ArrayBuffer(head.length + dataBytes + (dataBytes % 2) + 8), 0);
+  // Header, data, and the pad byte an odd-sized data chunk takes (left zero).
+  const out = new Uint8Array(head.length + dataBytes + (dataBytes % 2));
   out.set(head, 0);
   const st = { clipped: 0, over: 0, peak: 0 };
   const block = new Uint8Array(new ArrayBuffer(BLOCK_FRAMES * channels.length * width + 8));
@@ -795,7 +796,7 @@ export function encodeWav(
     at += bytes;
   }
   return {
-    bytes: out.subarray(0, head.length + dataBytes + (dataBytes % 2)),
+    bytes: out,
     clippedSamples: st.clipped,
     overFullScale: st.over,
     peak: st.peak,

@@ -244,7 +244,7 @@ export function parseWavHeader(
  * @throws never
  */
 export function swapBytes(b: Uint8Array, width: number, n: number): void {
-  if (width === 1) return;
+  // A 1-byte word has nothing to swap: the inner loop does not run (a = z).
   for (let o = 0; o + width <= n; o += width) {
     for (let a = o, z = o + width - 1; a < z; a++, z--) {
       const t = b[a]!;

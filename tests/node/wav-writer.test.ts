@@ -144,6 +144,14 @@ describe('a writer used wrongly', () => {
     );
     expect(readFileSync(p, 'utf8')).toBe('old');
     expect(readdirSync(d)).toEqual(['x.wav']);
+    // One write of 11 frames (44 bytes) is refused whole.
+    const big = createWavWriter(p, { channels: 2, sampleRate: 8000, encoding: 'int16', maxDataBytes: 40 });
+    expectOrthotoneError(
+      () => big.write([new Float32Array(11), new Float32Array(11)]),
+      'WRITE_FAILED',
+      /its data would pass 40 bytes/,
+    );
+    expect(readdirSync(d)).toEqual(['x.wav']);
     const ok = createWavWriter(p, { channels: 2, sampleRate: 8000, encoding: 'int16', maxDataBytes: 40 });
     ok.write([new Float32Array(10), new Float32Array(10)]);
     ok.close();
@@ -259,6 +267,23 @@ describe('I/Q files and mono', () => {
       message: 'I has 3 samples but Q has 4: pass equal lengths',
     });
     expect(readdirSync(d)).toEqual([]);
+  });
+  it('writeIqWavFile writes 32-bit IEEE float (format 3) unless told otherwise, left I and right Q', async () => {
+    const d = folder();
+    const p = join(d, 'iq.wav');
+    const i = f32(0.1, -0.2, 1.5);
+    const q = f32(-0.3, 0.4, -1.5);
+    const r = await writeIqWavFile(p, i, q, 96_000);
+    expect([r.overFullScale, r.clippedSamples]).toEqual([2, 0]);
+    const b = readFileSync(p);
+    // fmt chunk at byte 48 (after RIFF header and the 36-byte JUNK chunk): format tag, bits per sample.
+    expect([b.toString('latin1', 48, 52), b.readUInt16LE(56), b.readUInt16LE(70)]).toEqual(['fmt ', 3, 32]);
+    const back = await readIqWavFile(p);
+    expect([Array.from(back.i), Array.from(back.q), back.sampleRate]).toEqual([
+      Array.from(i),
+      Array.from(q),
+      96_000,
+    ]);
   });
   it('readIqWavFile refuses a file of three channels, naming the count', async () => {
     const d = folder();

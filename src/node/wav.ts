@@ -149,8 +149,8 @@ export function parseWavHeader(
   let ds64Data: number | undefined;
   let fmt: { tag: number; channels: number; rate: number; align: number; bits: number } | undefined;
   let o = 12;
-  // Each chunk moves o on by at least 8 bytes, and `head` is at most HEADER_SCAN_LIMIT bytes long,
-  // so the walk ends whatever the chunk count (RIFF sets no limit on it).
+  // Each chunk moves o on by at least 8 bytes, so the walk ends within head.length / 8 steps
+  // whatever the chunk count (RIFF sets no limit on it).
   while (o + 8 <= head.length) {
     const id = tag(head, o);
     const size = dv.getUint32(o + 4, true);

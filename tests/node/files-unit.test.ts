@@ -370,17 +370,21 @@ describe('assertDistinctFiles between files that all exist', () => {
 });
 
 describe('a disk that fills up while writing (a real 64 KiB tmpfs; needs root)', () => {
-  const mnt = join(dir, 'small');
-  let mounted = false;
+  let disk: string | undefined;
   beforeAll(() => {
-    mounted = mountSmallDisk(mnt);
+    disk = mountSmallDisk(dir);
   });
-  afterAll(() => unmountSmallDisk(mnt, mounted));
+  afterAll(() => unmountSmallDisk(disk));
+  /** The small disk's folder, or the test is skipped (not root). */
+  const smallDisk = (ctx: { skip: () => void }): string => {
+    if (disk === undefined) ctx.skip();
+    return disk as string;
+  };
   const big = new Uint8Array(100_000).fill(65);
   const full = (p: string) => `cannot write ${p}: the disk is full (the previous file, if any, is kept)`;
 
   it('writeFileAtomic: WRITE_FAILED "disk is full", the old file kept, nothing else left or open', (ctx) => {
-    if (!mounted) ctx.skip();
+    const mnt = smallDisk(ctx);
     const p = join(mnt, 'keep.bin');
     writeFileAtomic(p, 'old');
     const e = expectOrthotoneError(() => writeFileAtomic(p, big), 'WRITE_FAILED');
@@ -390,7 +394,7 @@ describe('a disk that fills up while writing (a real 64 KiB tmpfs; needs root)',
     if (canListDescriptors) expect(descriptorsUnder(mnt)).toEqual([]);
   });
   it('createTextWriter: the failing write removes the temporary file and closes it', (ctx) => {
-    if (!mounted) ctx.skip();
+    const mnt = smallDisk(ctx);
     const p = join(mnt, 'table.csv');
     const w = createTextWriter(p);
     w.write('a,b\n');
@@ -400,7 +404,7 @@ describe('a disk that fills up while writing (a real 64 KiB tmpfs; needs root)',
     if (canListDescriptors) expect(descriptorsUnder(mnt)).toEqual([]);
   });
   it('writeFileSet: the second file does not fit, so the first is not replaced either', (ctx) => {
-    if (!mounted) ctx.skip();
+    const mnt = smallDisk(ctx);
     writeFileAtomic(join(mnt, 'a.json'), 'old a');
     const e = expectOrthotoneError(
       () =>

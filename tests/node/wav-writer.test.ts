@@ -201,14 +201,18 @@ describe('a disk that refuses bytes', () => {
   });
 
   describe('a real 64 KiB tmpfs (needs root)', () => {
-    const mnt = join(root, 'small');
-    let mounted = false;
+    let disk: string | undefined;
     beforeAll(() => {
-      mounted = mountSmallDisk(mnt);
+      disk = mountSmallDisk(root);
     });
-    afterAll(() => unmountSmallDisk(mnt, mounted));
+    afterAll(() => unmountSmallDisk(disk));
+    /** The small disk's folder, or the test is skipped (not root). */
+    const smallDisk = (ctx: { skip: () => void }): string => {
+      if (disk === undefined) ctx.skip();
+      return disk as string;
+    };
     it('a WAV larger than the disk: write() fails "disk is full", the old file kept, nothing left open', async (ctx) => {
-      if (!mounted) ctx.skip();
+      const mnt = smallDisk(ctx);
       const p = join(mnt, 'x.wav');
       await writeWavFile(p, [f32(0.5, -0.5)], 8000, 'int16');
       const w = createWavWriter(p, { channels: 2, sampleRate: 48_000, encoding: 'float32' });

@@ -11,6 +11,12 @@ export const SCOPES = {
     mutate: ['src/node/wav.ts', 'src/node/files.ts', 'src/node/iq-stream.ts'],
     tests: ['tests/node/**/*.test.ts'],
   },
+  'node-device': {
+    // The rest of src/node: the serial channel and the WebSocket bridge, on a real pseudo-terminal and
+    // real WebSocket clients (about 2 s). bridge-browser.test.ts (Chromium) is too slow per mutant.
+    mutate: ['src/node/serial-transport.ts', 'src/node/bridge.ts'],
+    tests: ['tests/device/serial-bridge.test.ts'],
+  },
   'trim-stage': {
     mutate: ['src/generate/trim-stage.ts'],
     tests: [

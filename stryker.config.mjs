@@ -22,7 +22,12 @@ const tag = only.length > 0 ? only.map((f) => f.replace(/^src\//, '').replace(/[
 /** @type {import('@stryker-mutator/api/core').PartialStrykerOptions} */
 export default {
   testRunner: 'vitest',
-  vitest: { configFile: 'tests/mutants/vitest.mutants.config.ts', related: false },
+  // A scope may ask for vitest's `forks` pool (scopes.mjs `pool`); the runner's default is `threads`.
+  vitest: {
+    configFile: 'tests/mutants/vitest.mutants.config.ts',
+    related: false,
+    pool: names.some((n) => SCOPES[n].pool === 'forks') ? 'forks' : 'threads',
+  },
   plugins: ['@stryker-mutator/vitest-runner'],
   mutate: only.length > 0 ? only : names.flatMap((n) => SCOPES[n].mutate),
   coverageAnalysis: 'perTest',

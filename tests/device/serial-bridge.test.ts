@@ -178,10 +178,10 @@ describe('serial channel on a real pseudo-terminal', () => {
     const port = join(work, 'ttyS-root-only');
     writeFileSync(port, '');
     chmodSync(port, 0o600);
-    process.seteuid(65534);
+    process.seteuid!(65534);
     const e = await openSerialChannel(port)
       .catch((x: unknown) => x)
-      .finally(() => process.seteuid(0));
+      .finally(() => process.seteuid!(0));
     expect(isOrthotoneError(e, 'DEVICE_LOST'), String(e)).toBe(true);
     expect((e as Error).message).toBe(
       `cannot open ${port}: permission denied (add yourself to the group that owns it, e.g. dialout)`,

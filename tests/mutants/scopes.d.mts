@@ -1,2 +1,5 @@
 /** Types of tests/mutants/scopes.mjs. */
-export declare const SCOPES: Record<string, { mutate: string[]; tests: string[] }>;
+export declare const SCOPES: Record<
+  string,
+  { mutate: string[]; tests: string[]; pool?: 'forks' | 'threads' }
+>;

@@ -16,6 +16,9 @@ export const SCOPES = {
     // real WebSocket clients (about 2 s). bridge-browser.test.ts (Chromium) is too slow per mutant.
     mutate: ['src/node/serial-transport.ts', 'src/node/bridge.ts'],
     tests: ['tests/device/serial-bridge.test.ts'],
+    // serialport's native poller aborts the process when used from a worker thread (Stryker's default
+    // pool): the tests run in a child process instead.
+    pool: 'forks',
   },
   'trim-stage': {
     mutate: ['src/generate/trim-stage.ts'],

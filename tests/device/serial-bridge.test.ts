@@ -8,8 +8,9 @@
  * order), one client at a time, loopback only, and close/open failures that name the port and the fix.
  * The protocol over the bridge (compiled virtual device, Chromium) is in bridge-browser.test.ts.
  */
-import { execFileSync } from 'node:child_process';
+import { execFileSync, spawn } from 'node:child_process';
 import { chmodSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { readFile } from 'node:fs/promises';
 import { createServer } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -209,6 +210,22 @@ function listeners(port: number): string[] {
   return out;
 }
 
+/**
+ * Occupies every thread of libuv's pool with a blocking open of a FIFO (fifo(7): opening one for
+ * reading waits for a writer), so work queued on the pool (a serial port's open) waits until the
+ * returned function releases them (a shell opens each FIFO for writing).
+ */
+function holdThreadPool(): () => Promise<void> {
+  const n = Number(process.env.UV_THREADPOOL_SIZE ?? 4);
+  const fifos = Array.from({ length: n }, (_, k) => join(work, `hold-${Date.now()}-${k}`));
+  for (const f of fifos) execFileSync('mkfifo', [f]);
+  const reads = fifos.map((f) => readFile(f));
+  return async () => {
+    spawn('sh', ['-c', 'for f in "$@"; do : > "$f"; done', 'sh', ...fifos], { stdio: 'ignore' });
+    await Promise.all(reads);
+  };
+}
+
 describe('WebSocket bridge to a real pseudo-terminal', () => {
   it('carries every byte value unchanged both ways, also bytes sent before the port is open', async () => {
     const dev = await startEcho();
@@ -256,12 +273,16 @@ describe('WebSocket bridge to a real pseudo-terminal', () => {
     const dev = await startEcho();
     const log: string[] = [];
     const bridge = await bridgeOf({ devicePath: dev.path, log: (l) => log.push(l) });
+    // The port's open runs on libuv's thread pool; holding the pool makes "the client left first" certain.
+    const release = holdThreadPool();
     const c = await client(bridge.url);
     c.ws.terminate();
     await c.closed;
     await expect.poll(() => log.includes('client left'), { timeout: 3000 }).toBe(true);
-    await sleep(150);
     expect(log).not.toContain(`opened ${dev.path}`);
+    await release();
+    await sleep(150);
+    expect(log).toEqual(['client 127.0.0.1 connected', 'client left']);
     const other = await openChannel(dev.path); // refused as busy if the bridge had kept it
     expect(other.label).toBe(dev.path);
   });

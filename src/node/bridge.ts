@@ -6,6 +6,7 @@
  * the socket is closed with code 1011, and the page's link reconnects. Bound to 127.0.0.1 unless
  * told otherwise, so the device is not offered to the network.
  */
+import type { AddressInfo } from 'node:net';
 import { type WebSocket, WebSocketServer } from 'ws';
 import { OrthotoneError } from '../core/errors.js';
 import type { ByteChannel } from '../device/link.js';
@@ -73,20 +74,21 @@ export function startBridge(options: Partial<BridgeOptions> & { devicePath: stri
       }
       client = ws;
       log(`client ${req.socket.remoteAddress ?? '?'} connected`);
+      // Bytes that arrive before the port is open, sent to it in order once it is.
       const pending: Uint8Array[] = [];
-      let ch: ByteChannel | undefined;
-      ws.on('message', (data: Buffer | ArrayBuffer | Buffer[]) => {
-        const b = Array.isArray(data) ? Buffer.concat(data) : Buffer.from(data as ArrayBuffer);
-        const bytes = new Uint8Array(b.buffer, b.byteOffset, b.length);
-        if (ch) ch.write(bytes).catch(() => undefined);
+      // binaryType 'nodebuffer' (ws's default, kept here): every message, text or binary, arrives as
+      // one Buffer, fragments already joined.
+      ws.on('message', (data: Buffer) => {
+        const bytes = new Uint8Array(data.buffer, data.byteOffset, data.length);
+        if (channel) channel.write(bytes).catch(() => undefined);
         else pending.push(bytes);
       });
       ws.on('close', () => {
         log('client left');
-        if (client === ws) client = undefined;
-        const c = ch;
-        ch = undefined;
-        if (channel === c) channel = undefined;
+        // Only the one served client registers this handler, so `client` and `channel` are its own.
+        client = undefined;
+        const c = channel;
+        channel = undefined;
         c?.close();
       });
       openSerialChannel(options.devicePath, { baudRate: options.baudRate ?? 115200 }).then(
@@ -95,17 +97,14 @@ export function startBridge(options: Partial<BridgeOptions> & { devicePath: stri
             c.close();
             return;
           }
-          ch = c;
           channel = c;
           log(`opened ${options.devicePath}`);
           c.start({
-            data: (bytes) => {
-              if (ws.readyState === ws.OPEN) ws.send(bytes);
-            },
+            // After the socket closes, ws drops what is sent (no callback given): no readyState check.
+            data: (bytes) => ws.send(bytes),
             closed: (err) => {
               log(`${options.devicePath} closed${err ? ` (${err.message})` : ''}`);
-              ch = undefined;
-              if (channel === c) channel = undefined;
+              // The socket's close handler, which this close runs, forgets the channel.
               ws.close(1011, 'the device port closed');
             },
           });
@@ -118,8 +117,8 @@ export function startBridge(options: Partial<BridgeOptions> & { devicePath: stri
       );
     });
     wss.on('listening', () => {
-      const addr = wss.address();
-      const port = typeof addr === 'object' && addr ? addr.port : tcpPort;
+      // bound to a host and a TCP port (not a pipe), the server's address is an AddressInfo
+      const { port } = wss.address() as AddressInfo;
       resolve({
         url: `ws://${host}:${port}`,
         port,

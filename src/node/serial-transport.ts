@@ -50,15 +50,19 @@ export function openSerialChannel(path: string, options: Partial<SerialOptions> 
         },
         write(bytes) {
           return new Promise<void>((res, rej) => {
+            // serialport holds a write to a closed port until the port opens again, which this one
+            // never does (a reconnect opens a new port): refuse it, as ByteChannel promises.
+            if (!port.isOpen) {
+              rej(new OrthotoneError('DEVICE_LOST', `cannot write to ${path}: the port is closed`, path));
+              return;
+            }
             port.write(Buffer.from(bytes), (e) => (e ? rej(e) : res()));
           });
         },
         close() {
           closing = true;
-          return new Promise<void>((res) => {
-            if (!port.isOpen) return res();
-            port.close(() => res());
-          });
+          // On a port already closed, serialport calls back at once with "Port is not open".
+          return new Promise<void>((res) => port.close(() => res()));
         },
       });
     });

@@ -127,6 +127,9 @@ describe('serial channel on a real pseudo-terminal', () => {
     ch.start(c.sink);
     await ch.close();
     await ch.close(); // a second close resolves too
+    await expect(ch.write(Uint8Array.of(1))).rejects.toThrow(
+      `cannot write to ${dev.path}: the port is closed`,
+    );
     await sleep(100);
     expect(c.closes).toEqual([]);
     // the port's lock is released: another program can open it now
@@ -144,6 +147,10 @@ describe('serial channel on a real pseudo-terminal', () => {
     await dev.unplug();
     await expect.poll(() => c.closes.length, { timeout: 3000 }).toBe(1);
     expect(c.closes[0]).toBeInstanceOf(Error);
+    // a write to the lost port is refused at once, naming it (the link then reconnects)
+    const e = await ch.write(Uint8Array.of(1)).catch((x: unknown) => x);
+    expect(isOrthotoneError(e, 'DEVICE_LOST'), String(e)).toBe(true);
+    expect((e as Error).message).toBe(`cannot write to ${dev.path}: the port is closed`);
     await ch.close(); // closing a port already gone resolves
   });
 
@@ -232,10 +239,15 @@ describe('WebSocket bridge to a real pseudo-terminal', () => {
     const log: string[] = [];
     const bridge = await bridgeOf({ devicePath: dev.path, log: (l) => log.push(l) });
     expect(bridge.url).toBe(`ws://127.0.0.1:${bridge.port}`);
+    // The bridge opens the port when the client connects; the port's open runs on libuv's thread pool,
+    // held here so that the first chunks certainly arrive before it: they wait for it, in order.
+    const release = holdThreadPool();
     const c = await client(bridge.url);
-    // sent at once: the bridge opens the port only now, so the first chunks wait for it, in order
     c.ws.send(ALL_BYTES.subarray(0, 10));
     c.ws.send(ALL_BYTES.subarray(10, 128));
+    await sleep(50);
+    expect(log).toEqual(['client 127.0.0.1 connected']);
+    await release();
     await expect.poll(() => log.includes(`opened ${dev.path}`), { timeout: 3000 }).toBe(true);
     c.ws.send(ALL_BYTES.subarray(128));
     await expect.poll(() => c.got.length, { timeout: 3000 }).toBe(256);
@@ -304,6 +316,18 @@ describe('WebSocket bridge to a real pseudo-terminal', () => {
       }
       expect(isOrthotoneError(e, 'INVALID_ARGUMENT'), String(port)).toBe(true);
       expect((e as Error).message).toBe(`port ${port} must be a whole number from 0 to 65535`);
+    }
+  });
+
+  it('accepts the TCP ports at both ends of the range', async () => {
+    const dev = await startEcho();
+    expect((await bridgeOf({ devicePath: dev.path, port: 0 })).port).toBeGreaterThan(0); // any free port
+    // 65535 may be taken by another program: then the listen fails, but the port number is not refused
+    const top = await startBridge({ devicePath: dev.path, port: 65535 }).catch((x: unknown) => x);
+    if (top instanceof Error) expect(top.message).toBe('cannot listen on 127.0.0.1:65535: EADDRINUSE');
+    else {
+      bridges.push(top as Bridge);
+      expect((top as Bridge).port).toBe(65535);
     }
   });
 

@@ -5,6 +5,7 @@
 // enough to run per mutant (tests/mutants/scopes.mjs, scope trim-stage).
 import { describe, expect, it } from 'vitest';
 import { createRng } from '../../src/core/rng.js';
+import type { Trims } from '../../src/core/trims.js';
 import {
   emptyStats,
   INPUT_LIMIT,
@@ -210,6 +211,21 @@ describe('latency and the alignment of a correction (impulses)', () => {
     const r = run(fromI, impulse(64, 3, 0.5), new Float32Array(64));
     expect(peakOf(r.q)).toEqual([22, 0.0625]);
     expect(peakOf(r.i)).toEqual([24, 0.5]);
+    // the same at full length (7 taps, centre 3), and the rest of Q is silent
+    const full = { qFromQ: [0, 0, 0, 0, 0.75, 0, 0], qFromI: [0, 0.125, 0, 0, 0, 0, 0] };
+    const q7 = run(
+      new TrimStage(fs, { ...opts, correction: full }),
+      new Float32Array(64),
+      impulse(64, 3, 0.5),
+    ).q;
+    expect(peakOf(q7)).toEqual([25, 0.375]);
+    const i7 = run(
+      new TrimStage(fs, { ...opts, correction: full }),
+      impulse(64, 3, 0.5),
+      new Float32Array(64),
+    ).q;
+    expect(peakOf(i7)).toEqual([22, 0.0625]);
+    expect(q7.reduce((a, v) => a + Math.abs(v), 0) + i7.reduce((a, v) => a + Math.abs(v), 0)).toBe(0.4375);
   });
 
   it('maxCorrectionTaps 0 and maxSkewSamples 0: no delay at all', () => {
@@ -226,11 +242,13 @@ describe('ramps: linear in A = s·g·cos φ, B = g·sin φ, skew, dcI, dcQ; at t
   const N = 48;
   const flat = () => new TrimStage(fs, { rampSeconds: 0.001, maxSkewSamples: 0, maxCorrectionTaps: 0 });
   const frac = (k: number) => Math.min(k + 1, N) / N;
-  const expectRamp = (got: Float32Array, from: number, to: number, len = N) => {
+  /** `got` against a ramp from `from` to `to` over `len` samples that starts `lat` samples late. */
+  const expectRamp = (got: Float32Array, from: number, to: number, len = N, lat = 0) => {
     let worst = 0;
     let at = -1;
     for (let k = 0; k < got.length; k++) {
-      const d = Math.abs(got[k]! - (from + (to - from) * (Math.min(k + 1, len) / len)));
+      const r = Math.min(Math.max(k + 1 - lat, 0), len) / len;
+      const d = Math.abs(got[k]! - (from + (to - from) * r));
       if (!(d <= worst)) [worst, at] = [d, k];
     }
     expect(worst, `worst at sample ${at}`).toBeLessThan(1e-7);
@@ -251,16 +269,32 @@ describe('ramps: linear in A = s·g·cos φ, B = g·sin φ, skew, dcI, dcQ; at t
     // a per-change override: 0.0005 s is 24 samples
     s.setTrims({ dcQ: 0.3 }, { rampSeconds: 0.0005 });
     expectRamp(run(s, constant(30, 0), constant(30, 0)).q, -0.24, 0.3, 24);
+    // the last step lands on the target itself, not one rounding off it (0.3 + (0.9 − 0.3) is not 0.9
+    // in binary floating point): the peak reads exactly 0.9
+    const t = flat();
+    t.setTrims({ dcI: 0.3 }, { rampSeconds: 0 });
+    t.setTrims({ dcI: 0.9 });
+    expect(run(t, constant(60, 0), constant(60, 0)).i[59]).toBe(Math.fround(0.9));
+    expect(t.stats.peak).toBe(0.9);
   });
 
-  it('gain: Q scales from 1 to g linearly; phase: the I-to-Q term grows from 0 to g·sin φ', () => {
+  it('gain: Q scales from 1 to g linearly; phase: the I-to-Q term moves from g·sin φ₀ to g·sin φ₁', () => {
     const g = 10 ** (6 / 20);
     const s = flat();
     s.setTrims({ gainDb: 6 });
     expectRamp(run(s, constant(60, 0), constant(60, 0.25)).q, 0.25, 0.25 * g);
+    // with a correction delay in front of the output (maxCorrectionTaps 5: 2 samples, no correction
+    // set), the gain ramp acts on the input samples, so it leaves the stage 2 samples late
+    const d = new TrimStage(fs, { rampSeconds: 0.001, maxSkewSamples: 0, maxCorrectionTaps: 5 });
+    expect(d.latencySamples).toBe(2);
+    run(d, constant(8, 0), constant(8, 0.25));
+    d.setTrims({ gainDb: -6 });
+    expectRamp(run(d, constant(60, 0), constant(60, 0.25)).q, 0.25, 0.25 / g, N, 2);
     const p = flat();
+    p.setTrims({ phaseDeg: 10 }, { rampSeconds: 0 });
     p.setTrims({ phaseDeg: 30 });
-    expectRamp(run(p, constant(60, 0.25), constant(60, 0)).q, 0, 0.25 * Math.sin(Math.PI / 6));
+    const sin = (deg: number) => Math.sin((deg * Math.PI) / 180);
+    expectRamp(run(p, constant(60, 0.25), constant(60, 0)).q, 0.25 * sin(10), 0.25 * sin(30));
     const c = flat();
     c.setTrims({ phaseDeg: -30 });
     expectRamp(run(c, constant(60, 0), constant(60, 0.25)).q, 0.25, 0.25 * Math.cos(Math.PI / 6));
@@ -276,27 +310,32 @@ describe('ramps: linear in A = s·g·cos φ, B = g·sin φ, skew, dcI, dcQ; at t
     expect(s.sideband).toBe('lower');
   });
 
-  it('skew: the delay moves linearly from 0 to 3 samples (each sample read at its own delay), then holds', () => {
-    const s = new TrimStage(fs, { rampSeconds: 0.001, maxSkewSamples: 4, maxCorrectionTaps: 0 });
+  it('skew: the delay moves linearly from −0.3 to 2 samples (each sample read at its own delay), then holds exactly', () => {
+    const s = new TrimStage(fs, {
+      rampSeconds: 0.001,
+      maxSkewSamples: 4,
+      maxCorrectionTaps: 0,
+      trims: { skewSamples: -0.3 },
+    });
     const lat = s.latencySamples; // 4 + 15
     const f = 1000;
     const len = 400;
     const { i: ai, q: aq } = analytic(len, f, 0.5);
     const out = { q: new Float32Array(len) };
     const head = run(s, ai.subarray(0, 200), aq.subarray(0, 200));
-    s.setTrims({ skewSamples: 3 });
+    s.setTrims({ skewSamples: 2 });
     const tail = run(s, ai.subarray(200), aq.subarray(200));
     out.q.set(head.q);
     out.q.set(tail.q, 200);
     let worst = 0;
     for (let n = 100; n < len; n++) {
-      const tau = n < 200 ? 0 : 3 * frac(n - 200);
+      const tau = n < 200 ? -0.3 : -0.3 + 2.3 * frac(n - 200);
       const e = 0.5 * Math.sin((2 * Math.PI * f * (n - lat - tau)) / fs);
       worst = Math.max(worst, Math.abs(out.q[n]! - e));
     }
     expect(worst).toBeLessThan(1e-4);
-    // after the ramp a whole-sample delay is exact: the very input samples, 22 later
-    expect(bitDiffs(out.q.subarray(300), aq.subarray(300 - lat - 3, len - lat - 3))).toBe(0);
+    // after the ramp a whole-sample delay is exact: the very input samples, 21 later
+    expect(bitDiffs(out.q.subarray(300), aq.subarray(300 - lat - 2, len - lat - 2))).toBe(0);
   });
 });
 
@@ -340,7 +379,7 @@ describe('a correction set mid-stream, reset and clone', () => {
   it('reset mid-ramp: silence state, the ramp ended at its target, zero counters; then as a new stage', () => {
     const c = cases[0]!.correction;
     const s = new TrimStage(fs, { rampSeconds: 0.01, correction: c });
-    run(s, xi.subarray(0, 1000), xq.subarray(0, 1000));
+    run(s, xi, xq, 128); // past the end of the history buffer, so all of it holds signal
     const t = { skewSamples: -3.25, gainDb: 0.4, dcQ: 0.01 };
     s.setTrims(t);
     run(s, xi.subarray(0, 100), xq.subarray(0, 100));
@@ -448,40 +487,83 @@ describe('block-size invariance (short script, the stage alone)', () => {
 });
 
 describe('counters and the output guard', () => {
-  for (const [name, opts] of [
-    ['steady path', { maxSkewSamples: 0, maxCorrectionTaps: 0, rampSeconds: 0 }],
-    ['general path (fractional skew)', { trims: { skewSamples: 0.5 }, rampSeconds: 0 }],
-  ] as const) {
+  // Each of the stage's internal paths: the one-pass steady path, whole-sample delays with a
+  // correction (an identity, so values pass exactly), the fractional-skew interpolator, and a ramp
+  // in progress (to the same trims: values constant, but the ramped path runs).
+  const paths: [string, (t: Partial<Trims>) => TrimStage, boolean][] = [
+    [
+      'steady',
+      (t) => new TrimStage(fs, { maxSkewSamples: 0, maxCorrectionTaps: 0, rampSeconds: 0, trims: t }),
+      true,
+    ],
+    [
+      'identity correction',
+      (t) => new TrimStage(fs, { rampSeconds: 0, trims: t, correction: { qFromQ: [1], qFromI: [0] } }),
+      true,
+    ],
+    [
+      'fractional skew',
+      (t) => new TrimStage(fs, { rampSeconds: 0, trims: { ...t, skewSamples: 0.5 } }),
+      false,
+    ],
+    [
+      'ramping',
+      (t) => {
+        const s = new TrimStage(fs, { rampSeconds: 0, trims: t });
+        s.setTrims({}, { rampSeconds: 1 });
+        return s;
+      },
+      true,
+    ],
+  ];
+  for (const [name, make, exactQ] of paths) {
     it(`${name}: full scale 1.0 is not over, the next float is; peak is the largest |output|; samplesOut counts I and Q`, () => {
-      const s = new TrimStage(fs, opts);
+      const s = make({});
       const lat = s.latencySamples;
-      const n = 300;
+      // The stage works in chunks of 128 samples: the over-full-scale samples leave at chunk starts
+      // (outputs 256 and 384), so a sample is neither missed nor counted twice at a boundary.
+      const n = 512;
       const over = Math.fround(1 + 2 ** -23);
+      const over2 = Math.fround(1 + 2 ** -22);
       const i = constant(n, 0.25);
       const q = constant(n, 0.25);
-      i[100] = 1;
-      q[120] = -1;
-      i[150] = over;
-      q[170] = -0.75;
+      // exactly full scale, once beside a silent partner (so the pair is looked at closely)
+      i[100 - lat] = 1;
+      q[100 - lat] = 0;
+      i[120 - lat] = 0;
+      q[120 - lat] = -1;
+      i[256 - lat] = over2;
+      q[384 - lat] = -over;
       const r = run(s, i, q);
       // the fractional-skew interpolator spreads Q's single samples: count only from the data
-      let count = 0;
-      let peak = 0;
-      for (let k = 0; k < n; k++) {
-        for (const v of [r.i[k]!, r.q[k]!]) {
-          if (Math.abs(v) > 1) count++;
-          peak = Math.max(peak, Math.abs(v));
+      const fromData = (x: { i: Float32Array; q: Float32Array }) => {
+        let count = 0;
+        let peak = 0;
+        for (let k = 0; k < x.i.length; k++) {
+          for (const v of [x.i[k]!, x.q[k]!]) {
+            if (Math.abs(v) > 1) count++;
+            peak = Math.max(peak, Math.abs(v));
+          }
         }
-      }
-      expect(r.i[100 + lat]).toBe(1);
-      expect(r.i[150 + lat]).toBe(over);
-      expect(s.stats.overFullScale).toBe(count);
-      expect(count).toBeGreaterThanOrEqual(1);
-      expect(s.stats.peak).toBeCloseTo(peak, 6);
-      expect(s.stats.peak).toBeGreaterThan(1);
+        return { count, peak };
+      };
+      const d = fromData(r);
+      expect([r.i[100], r.i[256]]).toEqual([1, over2]);
+      if (exactQ) expect([r.q[120], r.q[384], d.count, d.peak]).toEqual([-1, -over, 2, over2]);
+      expect(s.stats.overFullScale).toBe(d.count);
+      expect(s.stats.peak).toBeCloseTo(d.peak, 6);
       expect(s.stats.samplesOut).toBe(2 * n);
-      run(s, constant(10, 0), constant(10, 0));
-      expect(s.stats.samplesOut).toBe(2 * n + 20);
+      // a larger Q sample later raises the peak (Q's own update)
+      const q2 = constant(200, 0.25);
+      const over3 = Math.fround(1 + 2 ** -21);
+      q2[150 - lat] = -over3;
+      const r2 = run(s, constant(200, 0.25), q2);
+      const d2 = fromData(r2);
+      if (exactQ) expect([r2.q[150], d2.peak]).toEqual([-over3, over3]);
+      expect(s.stats.peak).toBeCloseTo(Math.max(d.peak, d2.peak), 6);
+      expect(s.stats.overFullScale).toBe(d.count + d2.count);
+      expect(s.stats.samplesOut).toBe(2 * (n + 200));
+      expect(s.ramping).toBe(name === 'ramping');
     });
 
     it(`${name}: outputs below ${OUTPUT_FLUSH} are written as 0, from 1e-30 up they pass`, () => {
@@ -490,14 +572,32 @@ describe('counters and the output guard', () => {
         [1e-30, Math.fround(1e-30)],
         [-3e-30, Math.fround(-3e-30)],
       ] as const) {
-        const s = new TrimStage(fs, {
-          ...opts,
-          trims: { ...('trims' in opts ? opts.trims : {}), dcI: dc, dcQ: dc },
-        });
+        const s = make({ dcI: dc, dcQ: dc });
         const r = run(s, constant(64, 0), constant(64, 0));
         expect([r.i[63], r.q[63]]).toEqual([want, want]);
         expect(s.stats.overFullScale).toBe(0);
         if (want !== 0) expect(s.stats.peak).toBe(Math.abs(dc));
+        // one of the pair tiny and the other silent or not: each is judged on its own
+        for (const [t, k] of [
+          [{ dcI: dc }, 0],
+          [{ dcQ: dc }, 1],
+        ] as const) {
+          const st = make(t);
+          const z = run(st, constant(64, 0), constant(64, 0));
+          expect(z[k === 0 ? 'i' : 'q'][63]).toBe(want);
+          expect(z[k === 0 ? 'q' : 'i'][63]).toBe(0);
+          expect(st.stats.overFullScale).toBe(0);
+        }
+        const iq = make({ dcQ: dc });
+        const r1 = run(iq, constant(100, 0.25), constant(100, 0));
+        expect([r1.i[99], r1.q[99]]).toEqual([0.25, want]);
+        const qi = make({ dcI: dc });
+        const r2 = run(qi, constant(100, 0), constant(100, 0.25));
+        expect(r2.i[99]).toBe(want);
+        // (the interpolator's gain at DC is 1 within its documented accuracy, not exactly)
+        if (exactQ) expect(r2.q[99]).toBe(0.25);
+        else expect(Math.abs(r2.q[99]! - 0.25)).toBeLessThan(1e-4);
+        expect(iq.stats.overFullScale + qi.stats.overFullScale).toBe(0);
       }
     });
   }
@@ -574,7 +674,20 @@ describe('sanitiseInput', () => {
 });
 
 describe('messages name the value, its unit and the fix', () => {
-  it('sample rate, ramp time, skew range, correction length', () => {
+  it('sample rate, initial trims, ramp time, skew range, correction length', () => {
+    expectOrthotoneError(
+      () => new TrimStage(fs, { trims: { gainDb: 7 } }),
+      'INVALID_ARGUMENT',
+      /^gainDb 7 dB is out of range: use a value from -6 to 6 dB$/,
+    );
+    expectOrthotoneError(() => new TrimStage(fs, { trims: { dcQ: Number.NaN } }), 'INVALID_ARGUMENT', /dcQ/);
+    const later = new TrimStage(fs, { trims: { gainDb: 1 } });
+    expectOrthotoneError(
+      () => later.setTrims({ phaseDeg: 50 }),
+      'INVALID_ARGUMENT',
+      /^phaseDeg 50 degrees is out of range: use a value from -45 to 45 degrees$/,
+    );
+    expect(later.trims).toEqual({ gainDb: 1, phaseDeg: 0, skewSamples: 0, dcI: 0, dcQ: 0 });
     expectOrthotoneError(
       () => new TrimStage(500),
       'INVALID_ARGUMENT',

@@ -524,7 +524,7 @@ describe('counters and the output guard', () => {
       // (outputs 256 and 384), so a sample is neither missed nor counted twice at a boundary.
       const n = 512;
       const over = Math.fround(1 + 2 ** -23);
-      const over2 = Math.fround(1 + 2 ** -22);
+      const over2 = Math.fround(1 + 2 ** -19);
       const i = constant(n, 0.25);
       const q = constant(n, 0.25);
       // exactly full scale, once beside a silent partner (so the pair is looked at closely)
@@ -551,15 +551,18 @@ describe('counters and the output guard', () => {
       expect([r.i[100], r.i[256]]).toEqual([1, over2]);
       if (exactQ) expect([r.q[120], r.q[384], d.count, d.peak]).toEqual([-1, -over, 2, over2]);
       expect(s.stats.overFullScale).toBe(d.count);
+      // exact where the outputs are exact; the interpolator's outputs are read back rounded to float32
+      if (exactQ) expect(s.stats.peak).toBe(d.peak);
       expect(s.stats.peak).toBeCloseTo(d.peak, 6);
       expect(s.stats.samplesOut).toBe(2 * n);
       // a larger Q sample later raises the peak (Q's own update)
       const q2 = constant(200, 0.25);
-      const over3 = Math.fround(1 + 2 ** -21);
+      const over3 = Math.fround(1 + 2 ** -17);
       q2[150 - lat] = -over3;
       const r2 = run(s, constant(200, 0.25), q2);
       const d2 = fromData(r2);
       if (exactQ) expect([r2.q[150], d2.peak]).toEqual([-over3, over3]);
+      if (exactQ) expect(s.stats.peak).toBe(over3);
       expect(s.stats.peak).toBeCloseTo(Math.max(d.peak, d2.peak), 6);
       expect(s.stats.overFullScale).toBe(d.count + d2.count);
       expect(s.stats.samplesOut).toBe(2 * (n + 200));

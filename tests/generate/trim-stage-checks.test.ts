@@ -77,7 +77,7 @@ describe('gain and phase trims against the closed-form image rejection', () => {
     const c = Math.cos((phaseDeg * Math.PI) / 180);
     return 10 * Math.log10((1 + 2 * g * c + g * g) / (1 - 2 * g * c + g * g));
   };
-  // Table values computed from that formula (/work/shared/REFERENCES.md §1, [C]).
+  // Table values computed from that formula (REFERENCES.md §1, [C]).
   const table: [number, number, number][] = [
     [0, 1, 41.183],
     [0, -2, 35.162],

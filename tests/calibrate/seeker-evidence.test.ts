@@ -145,6 +145,51 @@ describe('trusted: when the fitted null is believed', () => {
     const far = fitted(KNOWN, on(RING, bowlDb(T0, -46)));
     expect(trusted(far)).toBe(true);
   });
+  it('readings scattered about the bowl: trusted within 3σ of RMS misfit (at least 1.5 dB), not beyond', () => {
+    // Fourteen readings, all but the start's pushed alternately up and down by A dB; the robust fit is
+    // switched off so that every reading counts in the misfit.
+    const pts: [number, number][] = [
+      ...RING,
+      [0.045, -0.005],
+      [0.015, -0.035],
+      [0.02, -0.01],
+      [0.04, -0.03],
+      [0.05, -0.02],
+      [0.03, 0],
+    ];
+    const scattered = (noiseDb: number, a: number) => {
+      const rs = on(pts).map(([x, y, db], i): Reading => [x, y, i === 0 ? db : db + (i % 2 === 0 ? a : -a)]);
+      const st = fitted({ ...KNOWN, noiseDb, robust: false }, rs);
+      return { rms: estimate(st)!.rmsDb, trusted: trusted(st) };
+    };
+    // σ = 0.8 dB: the limit is 3σ = 2.4 dB.
+    const a = scattered(0.8, 2);
+    expect(a.rms).toBeGreaterThan(1.6);
+    expect(a.rms).toBeLessThan(2.3);
+    expect(a.trusted).toBe(true);
+    const b = scattered(0.8, 3);
+    expect(b.rms).toBeGreaterThan(2.5);
+    expect(b.rms).toBeLessThan(3.5);
+    expect(b.trusted).toBe(false);
+    // σ = 0.3 dB: 3σ is 0.9 dB, and the limit 1.5 dB.
+    const c = scattered(0.3, 1.5);
+    expect(c.rms).toBeGreaterThan(1);
+    expect(c.rms).toBeLessThan(1.45);
+    expect(c.trusted).toBe(true);
+    const d = scattered(0.3, 2);
+    expect(d.rms).toBeGreaterThan(1.55);
+    expect(d.trusted).toBe(false);
+  });
+  it('noisy readings (σ = 4 dB): a null less than 3σ (12 dB) below the start is not clearly better', () => {
+    // The fitted floor 11.9 dB below the start's reading: not trusted; 12.9 dB below: trusted.
+    const st11 = fitted({ ...KNOWN, noiseDb: 4 }, on(RING, bowlDb(T0, -45)));
+    expect(startLevel(st11) - estimate(st11)!.floorDb).toBeGreaterThan(10.5);
+    expect(startLevel(st11) - estimate(st11)!.floorDb).toBeLessThan(12);
+    expect(trusted(st11)).toBe(false);
+    const st13 = fitted({ ...KNOWN, noiseDb: 4 }, on(RING, bowlDb(T0, -46)));
+    expect(startLevel(st13) - estimate(st13)!.floorDb).toBeGreaterThan(12);
+    expect(trusted(st13)).toBe(true);
+  });
   it('a low outlier far from the null, rejected by the fit, leaves the fit trusted', () => {
     // A reading at (−0.03, 0.03) that should read −29 dBc reads −70 (a mistyped digit).
     const rs = on([...RING, [-0.03, 0.03]]);

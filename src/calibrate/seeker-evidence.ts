@@ -53,7 +53,8 @@ export function startLevel(st: SeekerState): number {
   const kept = at.filter((r) => (r.weight ?? 1) > 0);
   if (kept.length > 0) return Math.min(...kept.map((r) => r.db));
   if (st.fit) return surfaceDb(st.fit.surface, st.o.start[0], st.o.start[1]);
-  return at.length > 0 ? Math.min(...at.map((r) => r.db)) : st.startDb;
+  // No fit: no reading has a weight yet, so every reading of the start was kept (above); none was read.
+  return st.startDb;
 }
 
 /**

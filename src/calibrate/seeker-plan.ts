@@ -77,14 +77,15 @@ export function checkStop(st: SeekerState): void {
   // Quantised trims: stop once the null is located to a fraction of each axis's own step (the
   // finer axis sets the pace), so rounding it picks the best grid point.
   const [q0, q1] = st.o.step;
-  // A null near the middle between two grid points is read on until its side is clear.
+  // A null near the middle between two grid points is read on until its side is clear. A continuous
+  // axis that acts (q = 0) is never done (sd < 0 cannot hold), so continuous trims never stop here.
   const axisDone = (q: number, v: number, j: 0 | 1): boolean => {
     if (st.status[j] === 'inactive') return true;
     const sd = Math.sqrt(v);
     const frac = e.centre[j] / q - Math.floor(e.centre[j] / q);
-    return q > 0 && sd < 0.3 * q && Math.abs(frac - 0.5) * q > 1.5 * sd;
+    return sd < 0.3 * q && Math.abs(frac - 0.5) * q > 1.5 * sd;
   };
-  if ((q0 > 0 || q1 > 0) && axisDone(q0, e.centreCov[0], 0) && axisDone(q1, e.centreCov[2], 1)) {
+  if (axisDone(q0, e.centreCov[0], 0) && axisDone(q1, e.centreCov[2], 1)) {
     st.stopReason = 'resolution';
   }
 }

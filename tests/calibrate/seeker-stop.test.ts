@@ -205,6 +205,16 @@ describe('resolution stop on quantised trims', () => {
       expect(best[1], where).toBeCloseTo(-0.012, 12);
     }
   });
+  it('one trim quantised, the other continuous: never stopped on resolution (the continuous one has no grid)', () => {
+    for (let seed = 1; seed <= 2; seed++) {
+      const b = bowl([0.0173, -0.0121], -120, 0.5, seed);
+      const s = createNullSeeker({ ...KNOWN, step: [step, 0], maxReadings: 20 });
+      drive(s, b.read);
+      expect(s.stopReason, `seed ${seed}`).toBe('budget');
+      expect(s.best().point[0], `seed ${seed}`).toBeCloseTo(0.018, 12);
+      expect(Math.abs(s.best().point[1] + 0.0121), `seed ${seed}`).toBeLessThan(2e-4);
+    }
+  });
   it('one trim inactive, the other quantised: resolution on the active one alone', () => {
     // The second trim moves nothing (the readings ignore y): the null is a line, x* = 0.0173. Noise 0.25 dB
     // (half the 0.5 dB the seeker assumes), so that no probe of y reads 1.5 dB off by chance.

@@ -190,10 +190,24 @@ describe('trusted: when the fitted null is believed', () => {
     expect(startLevel(st13) - estimate(st13)!.floorDb).toBeGreaterThan(12);
     expect(trusted(st13)).toBe(true);
   });
+  it('the fit’s null no better than the lowest reading it kept (by 3σ): not trusted', () => {
+    // The null read three times: −70, −70 and −72 dBc. The robust fit keeps the low one at a small weight
+    // and puts its floor at about −70, more than 1.5 dB (3σ) above the −72 reading: the reading is then
+    // the safer answer. With the start read twice, that reading is the best setting.
+    const rs = on([...RING, T0, T0]);
+    rs[9]![2] -= 2;
+    const st = fitted(KNOWN, rs);
+    expect(st.readings[9]!.weight).toBeGreaterThan(0);
+    expect(estimate(st)!.floorDb).toBeGreaterThan(-72 + 1.5);
+    expect(trusted(st)).toBe(false);
+    const twice = fitted(KNOWN, [...rs, [0, 0, bowlDb()(0, 0)]]);
+    expect(trusted(twice)).toBe(false);
+    expect(best(twice)).toEqual({ point: T0, levelDb: rs[9]![2], source: 'reading' });
+  });
   it('a low outlier far from the null, rejected by the fit, leaves the fit trusted', () => {
-    // A reading at (−0.03, 0.03) that should read −29 dBc reads −70 (a mistyped digit).
+    // A reading at (−0.03, 0.03) that should read −29 dBc reads −72, below the floor (a mistyped digit).
     const rs = on([...RING, [-0.03, 0.03]]);
-    rs[8]![2] = -70;
+    rs[8]![2] = -72;
     const st = fitted(KNOWN, rs);
     expect(st.readings[8]!.weight).toBe(0);
     expect(trusted(st)).toBe(true);

@@ -87,8 +87,8 @@ export function curvatureBound(st: SeekerState): number {
  */
 export function confirmed(st: SeekerState, c: readonly [number, number]): boolean {
   if (samePoint(c, st.o.start)) return true;
+  // A start at or below the floor leaves low ≤ 0, which no reading can bound (support stays 0 below).
   const low = dbToPow(startLevel(st) - 2 * st.sigma) - floorPower(st);
-  if (!(low > 0)) return false;
   const useFit = st.fit !== undefined && trusted(st);
   if (useFit) {
     const s0 = surfaceDb(st.fit!.surface, st.o.start[0], st.o.start[1]);

@@ -232,6 +232,14 @@ describe('startLevel: what the start read', () => {
     expect(startLevel(st)).toBe(bowlDb()(0, 0));
     expect(startReadsKept(st)).toBe(1);
   });
+  it('before any fit, a first reading told at another setting than the start stands for the start', () => {
+    // A person who typed the reading of another setting first: nothing is fitted yet, nothing is shown
+    // better than the start, and the start's level is the one reading there is.
+    const st = unfitted(KNOWN, [[0.01, 0, -40]]);
+    expect(st.fit).toBeUndefined();
+    expect(startLevel(st)).toBe(-40);
+    expect(best(st)).toEqual({ point: [0, 0], levelDb: -40, source: 'start' });
+  });
   it('two readings of the start that the fit keeps: the lower one', () => {
     const rs = on([...RING, [0, 0]]);
     rs[8]![2] -= 0.4;
@@ -434,6 +442,18 @@ describe('confirmed: the evidence shows a setting beats the start', () => {
       true,
     );
   });
+  it('readings 1.5 dB below a start read twice do not show a setting beats it; 2.2 dB below do', () => {
+    // Each reading is taken 2σ (1 dB) high and the start 2σ low: 1.5 dB is within that margin, 2.2 dB is not.
+    const at = (db: number) =>
+      unfitted(KNOWN, [
+        [0, 0, -35],
+        [0, 0, -35],
+        [0.01, 0, db],
+        [0.01, 0, db],
+      ]);
+    expect(confirmed(at(-36.5), [0.01, 0])).toBe(false);
+    expect(confirmed(at(-37.2), [0.01, 0])).toBe(true);
+  });
   // The start, one probe per axis, two far probes and the null: only the null's own reading is near it.
   const SPARSE: [number, number][] = [
     [0, 0],
@@ -456,6 +476,40 @@ describe('confirmed: the evidence shows a setting beats the start', () => {
     const st = fitted(KNOWN, rs);
     expect(startReadsKept(st)).toBe(0);
     expect(confirmed(st, T0)).toBe(false);
+  });
+  it('no support at all: not confirmed, however sure the fit is', () => {
+    // The start, the axis probes and two far probes: the fit finds the null, but no reading lies near it.
+    const st = fitted(KNOWN, on(SPARSE.slice(0, 5)));
+    expect(trusted(st)).toBe(true);
+    expect(overDetermined(st)).toBe(true);
+    expect(dist(estimate(st)!.centre)).toBeLessThan(1e-4);
+    expect(confirmed(st, T0)).toBe(false);
+    // The best setting is then a reading shown better than the start (the x probe, 4.7 dB under it).
+    expect(best(st)).toEqual({ point: [0.036, 0], levelDb: bowlDb()(0.036, 0), source: 'reading' });
+  });
+  it('a fit that is not trusted does not stand in for a second reading of the start', () => {
+    // The bowl over a −40 dBc floor, 5 dB under the start: the fit is over-determined but not trusted, and
+    // the null's own reading is the one support; the start was read once.
+    const st = fitted(KNOWN, on(RING, bowlDb(T0, -40)));
+    expect(trusted(st)).toBe(false);
+    expect(overDetermined(st)).toBe(true);
+    expect(supportOf(st, T0, 10 ** ((startLevel(st) - 1) / 10) - floorPower(st))).toBe(1);
+    expect(confirmed(st, T0)).toBe(false);
+  });
+  it('a setting the readings favour but the trusted fit puts less than 3σ below the start: not confirmed', () => {
+    // A setting 0.0032 from the start toward the null, truly 0.8 dB below it, read twice 0.5 dB low; the
+    // start read 1.2 dB high. The readings there are 2.5 dB under the start's (support), but the fit of
+    // all readings puts the setting only about 0.8 dB below its start level: not shown better.
+    const c: [number, number] = [0.00265, -0.00177];
+    const rs = on([...RING, c, c]);
+    rs[0]![2] += 1.2;
+    rs[8]![2] -= 0.5;
+    rs[9]![2] -= 0.5;
+    const st = fitted(KNOWN, rs);
+    expect(trusted(st)).toBe(true);
+    expect(supportOf(st, c, 10 ** ((startLevel(st) - 1) / 10) - floorPower(st))).toBe(2);
+    expect(confirmed(st, c)).toBe(false);
+    expect(dist(best(st).point)).toBeLessThan(1e-3);
   });
 });
 

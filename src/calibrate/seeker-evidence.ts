@@ -170,12 +170,11 @@ export function provisional(st: SeekerState): SeekerBest {
  * @throws never
  */
 export function best(st: SeekerState): SeekerBest {
-  const ok = okReadings(st);
-  if (ok.length === 0) return { point: [...st.o.start], levelDb: Number.NaN, source: 'start' };
+  // With no reading this ends on the start at an unknown level (startLevel is then NaN).
   const p = provisional(st);
   if (p.source !== 'start' && confirmed(st, p.point)) return p;
   // The provisional choice is not shown to beat the start: the lowest kept readings that are.
-  const kept = ok
+  const kept = okReadings(st)
     .filter((r) => (r.weight ?? 1) > 0 && !samePoint(r.point, st.o.start) && !samePoint(r.point, p.point))
     .sort((a, b) => a.db - b.db)
     .slice(0, 4);

@@ -361,6 +361,49 @@ describe('floorEvidence: the readings show a floor', () => {
   });
 });
 
+describe('floorEvidence: which readings count', () => {
+  it('no fit yet: no floor, whatever the readings', () => {
+    const st = unfitted(KNOWN, [
+      [0, 0, -70],
+      [0.01, 0, -70],
+      [0, 0.01, -70],
+      [0.01, 0.01, -70],
+    ]);
+    expect(floorEvidence(st, -70)).toBe(false);
+  });
+  it('“at the floor” means within 2σ of it (σ = 0.8 dB: 1.6 dB)', () => {
+    // Settings 1.3 dB and 2 dB above the −70 dBc floor (3.74e-4 and 4.84e-4 from the null), beside the
+    // null and a setting 0.38 dB above it; the wall read in x and y.
+    const noisy = { ...KNOWN, noiseDb: 0.8 };
+    const walls: [number, number][] = [near(1e-3, 0), near(0, 1e-3)];
+    expect(floorEvidence(fitted(noisy, on([...RING, near(2e-4, 0), near(0, 3.74e-4), ...walls])), -70)).toBe(
+      true,
+    );
+    expect(floorEvidence(fitted(noisy, on([...RING, near(2e-4, 0), near(0, 4.84e-4), ...walls])), -70)).toBe(
+      false,
+    );
+  });
+  it('a reading at the floor’s level that the fit down-weights (below one half) does not count', () => {
+    // A setting 4.84e-4 from the null should read 2 dB above the floor; it reads −70 (4σ low).
+    const rs = on([...RING, near(2e-4, 0), near(1e-3, 0), near(0, 1e-3), near(-1e-3, 0), near(-4.84e-4, 0)]);
+    rs[12]![2] = -70;
+    const st = fitted(KNOWN, rs);
+    expect(st.readings[12]!.weight).toBeGreaterThan(0);
+    expect(st.readings[12]!.weight).toBeLessThan(0.5);
+    const floorDb = estimate(st)!.floorDb;
+    expect(Math.abs(floorDb + 70)).toBeLessThan(0.5);
+    expect(floorEvidence(st, floorDb)).toBe(false);
+  });
+  it('a wall reading the fit rejects does not give the second direction', () => {
+    // The wall read along x only; a reading 1e-3 from the null along y reads −50 (true −64.6): rejected.
+    const rs = on([...RING, near(1.5e-4, 0), near(-1.5e-4, 0), near(1e-3, 0), near(-1e-3, 0), near(0, 1e-3)]);
+    rs[12]![2] = -50;
+    const st = fitted(KNOWN, rs);
+    expect(st.readings[12]!.weight).toBe(0);
+    expect(floorEvidence(st, -70)).toBe(false);
+  });
+});
+
 describe('recentFitConsistent: the last three readings include a probe and agree with the fit', () => {
   const rs = (roles: ('probe' | 'jump')[], offDb = 0): Reading[] => {
     const r = on([...RING, near(2e-4, 0), near(0, 2e-4), near(1e-3, 0), near(-1e-3, 0)]);
@@ -570,6 +613,46 @@ describe('provisional and best: the setting worked around, and the one returned'
     ]);
     expect(provisional(st).point).toEqual([-0.03, 0.03]);
     expect(best(st)).toEqual({ point: [0.03, -0.02], levelDb: -60, source: 'reading' });
+  });
+  it('of two settings shown better, the lower; a rejected reading’s level is never the one reported', () => {
+    // Pairs of readings at −50 (read first) and at −60 dBc (read later), each pair bounding its own
+    // setting twice; a lone −65 reading elsewhere is the unconfirmed provisional choice. A third reading
+    // at the −60 setting reads −80 and is rejected by the fit (weight 0).
+    const st = unfitted(KNOWN, [
+      [0, 0, -35],
+      [0, 0, -35.2],
+      [0.02, 0.02, -50],
+      [0.02, 0.02, -50],
+      [-0.03, 0.03, -65],
+      [0.03, -0.02, -60],
+      [0.03, -0.02, -80],
+      [0.03, -0.02, -60],
+    ]);
+    st.readings[6]!.weight = 0;
+    expect(provisional(st).point).toEqual([-0.03, 0.03]);
+    expect(best(st)).toEqual({ point: [0.03, -0.02], levelDb: -60, source: 'reading' });
+  });
+  it('a start whose first reading was 12 dB low: a setting the readings show better is still taken', () => {
+    // The bowl over a −40 dBc floor, trims limited to ±0.05. The start's first reading (−46.9 for a true
+    // −34.9) is rejected by the fit, and the lowest reading (−40, the floor) does not beat it by 2σ, so
+    // the provisional choice is the start; the fit (null outside the range) is not trusted. The start's
+    // two later readings and the two readings at the null still show the null better.
+    const rs = on([...RING, [0, 0], [0, 0], near(1e-4, 0)], bowlDb(T0, -40));
+    rs[0]![2] -= 12;
+    const st = fitted(
+      {
+        ...KNOWN,
+        bounds: [
+          [-0.05, 0.05],
+          [-0.05, 0.05],
+        ],
+      },
+      rs,
+    );
+    expect(st.readings[0]!.weight).toBe(0);
+    expect(trusted(st)).toBe(false);
+    expect(provisional(st).source).toBe('start');
+    expect(best(st)).toEqual({ point: T0, levelDb: -40, source: 'reading' });
   });
   it('nothing confirmed: the start, at its level', () => {
     const st = unfitted(KNOWN, [

@@ -240,6 +240,17 @@ describe('startLevel: what the start read', () => {
     expect(startLevel(st)).toBe(-40);
     expect(best(st)).toEqual({ point: [0, 0], levelDb: -40, source: 'start' });
   });
+  it('before any fit, the start read twice: the lower reading', () => {
+    expect(
+      startLevel(
+        unfitted(KNOWN, [
+          [0, 0, -35],
+          [0.036, 0, -39],
+          [0, 0, -36],
+        ]),
+      ),
+    ).toBe(-36);
+  });
   it('two readings of the start that the fit keeps: the lower one', () => {
     const rs = on([...RING, [0, 0]]);
     rs[8]![2] -= 0.4;
@@ -349,6 +360,14 @@ describe('floorEvidence: the readings show a floor', () => {
       KNOWN,
       on([...RING, near(1.5e-4, 0), near(-1.5e-4, 0), near(1e-3, 0), near(0, -1e-3)]),
     );
+    expect(floorEvidence(cross, -70)).toBe(true);
+  });
+  it('the wall read along a diagonal only: no floor; across it: a floor', () => {
+    const a = 1.06e-4; // 1.5e-4 along the diagonal
+    const w = 7.07e-4; // 1e-3 along the diagonal
+    const diag = fitted(KNOWN, on([...RING, near(a, a), near(-a, -a), near(w, w), near(-w, -w)]));
+    expect(floorEvidence(diag, -70)).toBe(false);
+    const cross = fitted(KNOWN, on([...RING, near(a, a), near(-a, -a), near(w, w), near(w, -w)]));
     expect(floorEvidence(cross, -70)).toBe(true);
   });
   it('a reading at the floor’s level that the fit rejects does not count', () => {

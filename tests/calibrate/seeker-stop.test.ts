@@ -16,7 +16,12 @@ import {
   createNullSeeker,
   type NullSeeker,
   type NullSeekerOptions,
+  resolveSeekerOptions,
 } from '../../src/calibrate/null-seeker.js';
+import { best } from '../../src/calibrate/seeker-evidence.js';
+import { estimate, refit } from '../../src/calibrate/seeker-fit.js';
+import { checkStop } from '../../src/calibrate/seeker-plan.js';
+import { createSeekerState } from '../../src/calibrate/seeker-state.js';
 import { createRng } from '../../src/core/rng.js';
 
 const C = 0.25; // K. Schmidt, QEX Aug 1994 §2: image/wanted ≈ (a² + b²)/4
@@ -230,5 +235,64 @@ describe('resolution stop on quantised trims', () => {
       expect(s.best().point[0], where).toBeCloseTo(0.018, 12);
       expect(s.best().point[1], where).toBe(0);
     }
+  });
+});
+
+describe('the floor stop rule on given readings (checkStop called directly)', () => {
+  // Readings on the bowl without noise: the start, one probe per axis, a ring of radius 0.01 around the
+  // null and the null itself, two settings 2e-4 from the null (at the floor within 0.4 dB) and the wall
+  // 1e-3 from it in x and y; the last reading was a jump to the best setting.
+  const near = (dx: number, dy: number): [number, number] => [T0[0] + dx, T0[1] + dy];
+  const SET: [number, number][] = [
+    [0, 0],
+    [0.036, 0],
+    [0, 0.036],
+    [0.04, -0.02],
+    [0.02, -0.02],
+    [0.03, -0.01],
+    [0.03, -0.03],
+    [0.03, -0.02],
+    near(2e-4, 0),
+    near(0, 2e-4),
+    near(1e-3, 0),
+    near(0, 1e-3),
+  ];
+  function state(noiseDb: number, floorDb: number, extra: [number, number][] = [], sinceJump = 0) {
+    const b = bowl(T0, floorDb, 0, 1);
+    const st = createSeekerState(resolveSeekerOptions({ ...KNOWN, noiseDb, maxReadings: 30 }));
+    st.status = ['active', 'active'];
+    st.readings = [...SET, ...extra].map((p, i) => ({
+      point: p,
+      db: b.read(p),
+      role: i === 0 ? 'start' : 'probe',
+    }));
+    st.startDb = st.readings[0]!.db;
+    refit(st);
+    st.lastJump = [...best(st).point];
+    st.sinceJump = sinceJump;
+    checkStop(st);
+    return st;
+  }
+  it('floor 35 dB under the start, null located 15 dB inside the floor, right after a jump: stops on the floor', () => {
+    const st = state(0.5, -70);
+    expect(estimate(st)!.expectedTrueDb).toBeLessThan(-80);
+    expect(st.stopReason).toBe('floor');
+  });
+  it('the same after a probe (no jump to the null since): reads on', () => {
+    expect(state(0.5, -70, [], 1).stopReason).toBeUndefined();
+  });
+  it('the same readings taken as 1 dB noisy: the null is not yet 10 dB inside the floor, so it reads on', () => {
+    const st = state(1, -70);
+    expect(estimate(st)!.expectedTrueDb).toBeGreaterThan(-80);
+    expect(estimate(st)!.expectedTrueDb).toBeLessThan(-75);
+    expect(st.stopReason).toBeUndefined();
+  });
+  it('a floor 15 dB under a start read once: the start is read again first, then the floor stop holds', () => {
+    const once = state(0.5, -50);
+    expect(once.stopReason).toBeUndefined();
+    expect(once.rereadStart).toBe(true);
+    const twice = state(0.5, -50, [[0, 0]]);
+    expect(twice.rereadStart).toBe(false);
+    expect(twice.stopReason).toBe('floor');
   });
 });

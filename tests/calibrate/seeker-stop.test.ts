@@ -122,6 +122,16 @@ describe('target stop', () => {
       expect(b.trueDb(s.best().point), where).toBeLessThanOrEqual(-50);
     }
   });
+  it('a target is never declared met on a fit the seeker does not trust', () => {
+    // The floor 5 dB under the start: every fit puts its floor within 10 dB of the start's level and is
+    // not trusted, so the 45 dB target (below the −40 dBc floor the readings show) is never claimed.
+    for (let seed = 1; seed <= 3; seed++) {
+      const b = bowl(T0, -40, 0.5, seed);
+      const s = createNullSeeker({ ...KNOWN, targetDb: 45, maxReadings: 20 });
+      drive(s, b.read);
+      expect(s.stopReason, `seed ${seed}`).toBe('budget');
+    }
+  });
   it('a target the floor hides is never met: the run goes on to the floor', () => {
     const b = bowl(T0, -70, 0.5, 1);
     const s = createNullSeeker({ ...KNOWN, targetDb: 90, maxReadings: 30 });

@@ -89,7 +89,7 @@ export function confirmed(st: SeekerState, c: readonly [number, number]): boolea
   if (samePoint(c, st.o.start)) return true;
   // A start at or below the floor leaves low ≤ 0, which no reading can bound (support stays 0 below).
   const low = dbToPow(startLevel(st) - 2 * st.sigma) - floorPower(st);
-  const useFit = st.fit !== undefined && trusted(st);
+  const useFit = trusted(st); // never without a fit
   if (useFit) {
     const s0 = surfaceDb(st.fit!.surface, st.o.start[0], st.o.start[1]);
     if (!(surfaceDb(st.fit!.surface, c[0], c[1]) <= s0 - 3 * st.sigma)) return false;
@@ -125,7 +125,7 @@ export function supportOf(st: SeekerState, c: readonly [number, number], low: nu
   for (const r of okReadings(st)) {
     if (samePoint(r.point, st.o.start)) continue;
     if ((r.weight ?? 1) < 0.5) continue; // rejected or down-weighted by the fit
-    if (r.residualDb !== undefined && r.residualDb < -3 * st.sigma) continue; // implausibly low
+    if ((r.residualDb ?? 0) < -3 * st.sigma) continue; // implausibly low
     const d = Math.hypot(r.point[0] - c[0], r.point[1] - c[1]);
     const bound = Math.sqrt(dbToPow(r.db + 2 * st.sigma)) + (d > 0 ? root * d : 0);
     if (bound * bound <= low) support++;

@@ -69,7 +69,8 @@ export function checkStop(st: SeekerState): void {
   ) {
     // A floor within 20 dB of a start read once may be an outlier's doing (a start read high makes
     // a flat stretch look like a null): read the start again before believing it.
-    if (e.floorDb > st.startDb - 20 && startReadsKept(st) < 2 && st.readings.length < st.o.maxReadings) {
+    // (A reading is left: the budget stop above has not fired.)
+    if (e.floorDb > st.startDb - 20 && startReadsKept(st) < 2) {
       st.rereadStart = true;
       return;
     }

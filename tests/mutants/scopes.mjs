@@ -20,10 +20,10 @@ export const SCOPES = {
     ],
   },
   seeker: {
-    // The null seeker's evidence rules (seeker-evidence.ts) and its stop rules (checkStop, lines 35–92 of
+    // The null seeker's evidence rules (seeker-evidence.ts) and its stop rules (checkStop, lines 35–93 of
     // seeker-plan.ts), as split by issue 9's rewrite. trim-calibration.test.ts (54 s) is left out: too
     // slow per mutant.
-    mutate: ['src/calibrate/seeker-evidence.ts', 'src/calibrate/seeker-plan.ts:35-92'],
+    mutate: ['src/calibrate/seeker-evidence.ts', 'src/calibrate/seeker-plan.ts:35-93'],
     tests: [
       'tests/calibrate/null-seeker.test.ts',
       'tests/calibrate/target-stop.test.ts',

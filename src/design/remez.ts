@@ -96,6 +96,11 @@ function badArg(msg: string, v?: unknown): never {
   throw new OrthotoneError('INVALID_ARGUMENT', msg, v);
 }
 
+/** A finite number (`Number.isFinite` is false for every non-number, so no `typeof` test is needed). */
+function isFiniteNumber(v: unknown): v is number {
+  return Number.isFinite(v);
+}
+
 function validate(
   numtaps: number,
   bands: number[],
@@ -129,12 +134,13 @@ function validate(
   const edges = new Float64Array(bands.length);
   for (let i = 0; i < bands.length; i++) {
     const e = bands[i];
-    if (typeof e !== 'number' || !Number.isFinite(e) || e < 0 || e > fs / 2) {
+    if (!isFiniteNumber(e) || e < 0 || e > fs / 2) {
       badArg(
         `band edge bands[${i}] = ${String(e)} must be a finite frequency from 0 to fs/2 = ${fs / 2}: keep every edge within Nyquist`,
         e,
       );
     }
+    // Stryker disable next-line ConditionalExpression,EqualityOperator: at i = 0, bands[-1] is undefined and `e <= undefined` is false, so `i > 0` only states the intent
     if (i > 0 && e <= bands[i - 1]!) {
       badArg(
         `band edges must increase strictly: bands[${i}] = ${e} is not above bands[${i - 1}] = ${bands[i - 1]}; list them as [lo1, hi1, lo2, hi2, …] with gaps between bands`,
@@ -145,10 +151,9 @@ function validate(
   }
   for (let b = 0; b < nb; b++) {
     const d = desired[b];
-    if (typeof d !== 'number' || !Number.isFinite(d))
-      badArg(`desired[${b}] ${String(d)} must be a finite number`, d);
+    if (!isFiniteNumber(d)) badArg(`desired[${b}] ${String(d)} must be a finite number`, d);
     const w = weight[b];
-    if (typeof w !== 'number' || !Number.isFinite(w) || w <= 0) {
+    if (!isFiniteNumber(w) || w <= 0) {
       badArg(`weight[${b}] ${String(w)} must be a finite number greater than 0`, w);
     }
   }
@@ -259,10 +264,7 @@ function baryWeights(xr: Float64Array, n: number, out: Float64Array, expo: Int32
     expo[k] = e;
     if (e < emin) emin = e;
   }
-  for (let k = 0; k < n; k++) {
-    const d = expo[k]! - emin;
-    if (d !== 0) out[k] = out[k]! * SCALE_DOWN ** d;
-  }
+  for (let k = 0; k < n; k++) out[k] = out[k]! * SCALE_DOWN ** (expo[k]! - emin);
 }
 
 /** Interpolant through (xr, y) with barycentric weights w, evaluated at x. */
@@ -351,6 +353,7 @@ export function remezExchange(
   // Scale of the weighted error, for the round-off floor of the convergence test.
   let errScale = 0;
   for (let i = 0; i < g; i++) errScale = Math.max(errScale, Math.abs(wt[i]! * des[i]!));
+  const floor = 1e-13 * errScale;
 
   let ref: Int32Array = initialReference(p, n);
 
@@ -385,7 +388,6 @@ export function remezExchange(
   let iterations = 0;
   let converged = false;
   let fullScan = true;
-  let roundOff = false;
   for (let it = 1; it <= o.maxIterations; it++) {
     iterations = it;
     for (let k = 0; k < n; k++) xr[k] = x[ref[k]!]!;
@@ -406,7 +408,6 @@ export function remezExchange(
     }
     const absDelta = Math.abs(delta);
 
-    const floor = 1e-13 * errScale;
     const tol = CONVERGENCE_TOLERANCE * absDelta + floor;
 
     if (!fullScan) {
@@ -477,10 +478,7 @@ export function remezExchange(
     for (let k = 0; k < n; k++) refPos[ref[k]!] = -1;
 
     if (maxErr - absDelta <= tol) {
-      // Levelled, but if δ itself is at round-off level the "optimum" is noise: the bands need far
-      // fewer taps than asked for, and the taps would not be the Chebyshev optimum.
-      if (absDelta < 100 * floor) roundOff = true;
-      else converged = true;
+      converged = true;
       break;
     }
     // Large excess: the reference is far from the optimum; keep exchanging on the whole grid.
@@ -557,6 +555,12 @@ export function remezExchange(
     ref = next;
     next = tmp;
   }
+
+  // If δ itself is at round-off level the "optimum" is noise, whatever stopped the exchange (levelled
+  // error, a reference that no longer moves, too few extrema, the iteration cap): the bands need far
+  // fewer taps than asked for, and the taps are not the Chebyshev optimum.
+  const roundOff = Math.abs(delta) < 100 * floor;
+  if (roundOff) converged = false;
 
   const taps = impulseResponse(p, xr, y, bw, n);
   for (let i = 0; i < taps.length; i++) {

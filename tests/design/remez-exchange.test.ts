@@ -145,6 +145,11 @@ describe('remez: the dense grid as the original program builds it', () => {
     expect(Math.max(...a.map((v, i) => Math.abs(v - b[i]!)))).toBeGreaterThan(1e-6);
   });
 
+  it('matches scipy on coarse grids (densities 2 and 3), where reference points are grid neighbours', () => {
+    expect(tapError('hilbert-37-density-2')).toBeLessThan(1e-11);
+    expect(tapError('differentiator-23-density-3')).toBeLessThan(1e-11);
+  });
+
   it('weights a differentiator band by 1/f only when its slope is at least 1e-4, as the original program', () => {
     // McClellan, Parks & Rabiner 1973 (and scipy): relative error in bands whose desired slope is
     // at least 0.0001, absolute error below that (a stopband).

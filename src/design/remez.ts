@@ -297,10 +297,11 @@ function initialReference(p: Problem, n: number): Int32Array {
     if (x[i]! < xmin) xmin = x[i]!;
     if (x[i]! > xmax) xmax = x[i]!;
   }
+  // span > 0: the grid holds at least r + 1 ≥ 2 distinct frequencies in 0 … 0.5, where cos is one-to-one.
   const span = xmax - xmin;
   const theta = new Float64Array(g);
   for (let i = 0; i < g; i++) {
-    const t = span > 0 ? (2 * x[i]! - xmax - xmin) / span : 0;
+    const t = (2 * x[i]! - xmax - xmin) / span;
     theta[i] = Math.acos(Math.min(1, Math.max(-1, t)));
   }
   const nb = bandStart.length;

@@ -311,7 +311,7 @@ function initialReference(p: Problem, n: number): Int32Array {
   let b = 0;
   let offset = 0; // θ-measure of the bands before band b
   for (let j = 0; j < n; j++) {
-    const target = n > 1 ? (j * total) / (n - 1) : 0;
+    const target = (j * total) / (n - 1); // n = r + 1 ≥ 2
     while (b < nb - 1 && target > offset + theta[bandEnd[b]!]! - theta[bandStart[b]!]!) {
       offset += theta[bandEnd[b]!]! - theta[bandStart[b]!]!;
       b++;
@@ -542,16 +542,9 @@ export function remezExchange(
         list.splice(left < right ? m - 1 : m, 2);
       }
     }
-    let same = true;
-    for (let k = 0; k < n; k++) {
-      next[k] = list[k]!;
-      if (next[k] !== ref[k]) same = false;
-    }
-    if (same) {
-      // The reference no longer moves: this is the optimum on the grid, up to round-off.
-      converged = true;
-      break;
-    }
+    // The new reference always differs from the old: the point of largest |E| (> |δ| + tol here) is a
+    // local extremum, wins every same-sign merge and is never the weaker one dropped above.
+    for (let k = 0; k < n; k++) next[k] = list[k]!;
     const tmp = ref;
     ref = next;
     next = tmp;

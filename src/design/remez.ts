@@ -54,6 +54,12 @@ export interface RemezResult {
    * the bands need): `converged` is then false, as the taps are not the Chebyshev optimum.
    */
   roundOffLimited?: boolean;
+  /**
+   * Set when the taps do not reproduce the levelled error at the reference: the response between
+   * narrow bands grows beyond double precision, so the interpolated optimum is lost when the taps are
+   * formed. `converged` is then false.
+   */
+  tapsOffReference?: boolean;
 }
 
 const DEFAULTS: Readonly<Required<Omit<RemezOptions, 'weight'>>> = Object.freeze({
@@ -582,9 +588,54 @@ export function remezExchange(
       );
     }
   }
+  // The taps must reproduce ±δ at the reference (they interpolate it exactly in exact arithmetic).
+  // When the bands cover a small part of the axis, P between them grows past double precision and
+  // the taps lose the optimum while the exchange itself levelled: check a spread of reference points
+  // (only after a levelled exit, when `ref` is the reference the taps interpolate).
+  const offReference = converged && !tapsMatchReference(p, taps, ref, n, Math.abs(delta), floor);
+  if (offReference) converged = false;
   const result: RemezResult = { taps, iterations, converged, deviation: Math.abs(delta) };
   if (roundOff) result.roundOffLimited = true;
+  if (offReference) result.tapsOffReference = true;
   return result;
+}
+
+/**
+ * True when the weighted error of the taps themselves, w·(d − A), stays within 2|δ| + 1000·floor at up
+ * to 64 reference points spread over the reference (|δ| there in exact arithmetic). A(f) is the
+ * amplitude of a linear-phase FIR: Σ h_k cos(ω(k − M)) (symmetric) or Σ h_k sin(ω(M − k))
+ * (antisymmetric), M = (N − 1)/2, summed with an angle-addition recurrence (O(N) per point).
+ */
+function tapsMatchReference(
+  p: Problem,
+  taps: Float64Array,
+  ref: Int32Array,
+  n: number,
+  absDelta: number,
+  floor: number,
+): boolean {
+  const nt = taps.length;
+  const mid = (nt - 1) / 2;
+  const step = Math.max(1, Math.floor(n / 64));
+  for (let k = 0; k < n; k += step) {
+    const i = ref[k]!;
+    const w = 2 * Math.PI * p.f[i]!;
+    // Phase θ_j = w·(j − M), advanced by w each tap: (c, s) rotated by (cw, sw).
+    const cw = Math.cos(w);
+    const sw = Math.sin(w);
+    let c = Math.cos(-w * mid);
+    let s = Math.sin(-w * mid);
+    let a = 0;
+    for (let j = 0; j < nt; j++) {
+      a += taps[j]! * (p.neg ? -s : c);
+      const c2 = c * cw - s * sw;
+      s = s * cw + c * sw;
+      c = c2;
+    }
+    const e = p.wt[i]! * (p.des[i]! - a / qFactor(p.neg, p.odd, p.f[i]!));
+    if (!(Math.abs(e) <= 2 * absDelta + 1000 * floor)) return false;
+  }
+  return true;
 }
 
 /**
@@ -673,6 +724,13 @@ export function remez(
     throw new OrthotoneError(
       'NO_CONVERGENCE',
       `remez: the weighted deviation for numtaps ${numtaps} is at round-off level (${res.deviation.toPrecision(3)}): these bands need far fewer taps; use fewer taps or narrower transition bands`,
+      res,
+    );
+  }
+  if (res.tapsOffReference) {
+    throw new OrthotoneError(
+      'NO_CONVERGENCE',
+      `remez: the taps for numtaps ${numtaps} do not reproduce the levelled deviation ${res.deviation.toPrecision(3)}: the bands cover too little of 0 … fs/2 and the response between them grows beyond double precision; widen the bands, add bands over the gaps, or use fewer taps`,
       res,
     );
   }

@@ -181,6 +181,32 @@ describe('remez: designs beyond double precision', () => {
     }
   });
 
+  it('does not call converged a design whose taps lose the levelled optimum (bands over a small part of the axis)', () => {
+    // Two bands covering 0.2 … 0.25 of 0 … 0.5 with 401 taps: the exchange levels on the grid, but P
+    // grows past double precision between the bands, and the taps' own band error is ~1e13 (measured
+    // here by summing the taps directly). scipy 1.10.1 (python3-scipy, Debian) refuses the same spec:
+    //   /usr/bin/python3 -c "from scipy.signal import remez; remez(401,[0.2,0.2249,0.2251,0.25],[1,0])"
+    //   → ValueError: Failure to converge at iteration 16, try reducing transition band width.
+    const bands = [0.2, 0.2249, 0.2251, 0.25];
+    const r = remezExchange(401, bands, [1, 0]);
+    expect(r.converged).toBe(false);
+    expect(r.tapsOffReference).toBe(true);
+    let a = 0; // amplitude of the taps at f = 0.2 (type I: Σ h_k cos(2πf(k − M)))
+    for (let k = 0; k < 401; k++) a += r.taps[k]! * Math.cos(2 * Math.PI * 0.2 * (k - 200));
+    expect(Math.abs(1 - a)).toBeGreaterThan(1e3 * r.deviation);
+    expectOrthotoneError(
+      () => remez(401, bands, [1, 0]),
+      'NO_CONVERGENCE',
+      /taps for numtaps 401 do not reproduce the levelled deviation .*widen the bands, add bands over the gaps, or use fewer taps/,
+    );
+    // A well-posed design of the same length is untouched: its taps give |δ| at the band edges.
+    const good = remez(101, [0, 0.2, 0.3, 0.5], [1, 0]);
+    expect(good.tapsOffReference).toBeUndefined();
+    let g = 0;
+    for (let k = 0; k < 101; k++) g += good.taps[k]! * Math.cos(2 * Math.PI * 0.2 * (k - 50));
+    expect(Math.abs(Math.abs(1 - g) - good.deviation)).toBeLessThan(0.01 * good.deviation);
+  });
+
   it('refuses taps that come out non-finite, naming numtaps and the fix', () => {
     expectOrthotoneError(
       () => remez(401, [0, 0.02, 0.48, 0.5], [1, 0]),

@@ -37,6 +37,10 @@ export const SCOPES = {
 
   remez: {
     mutate: ['src/design/remez.ts'],
-    tests: ['tests/design/remez.test.ts', 'tests/design/remez-exchange.test.ts'],
+    tests: [
+      'tests/design/remez.test.ts',
+      'tests/design/remez-exchange.test.ts',
+      'tests/design/remez-grid.test.ts',
+    ],
   },
 };

@@ -54,6 +54,12 @@ export interface RemezResult {
    * the bands need): `converged` is then false, as the taps are not the Chebyshev optimum.
    */
   roundOffLimited?: boolean;
+  /**
+   * Set when the taps do not reproduce the levelled error at the reference: the response between
+   * narrow bands grows beyond double precision, so the interpolated optimum is lost when the taps are
+   * formed. `converged` is then false.
+   */
+  tapsOffReference?: boolean;
 }
 
 const DEFAULTS: Readonly<Required<Omit<RemezOptions, 'weight'>>> = Object.freeze({
@@ -96,6 +102,11 @@ function badArg(msg: string, v?: unknown): never {
   throw new OrthotoneError('INVALID_ARGUMENT', msg, v);
 }
 
+/** A finite number (`Number.isFinite` is false for every non-number, so no `typeof` test is needed). */
+function isFiniteNumber(v: unknown): v is number {
+  return Number.isFinite(v);
+}
+
 function validate(
   numtaps: number,
   bands: number[],
@@ -129,12 +140,13 @@ function validate(
   const edges = new Float64Array(bands.length);
   for (let i = 0; i < bands.length; i++) {
     const e = bands[i];
-    if (typeof e !== 'number' || !Number.isFinite(e) || e < 0 || e > fs / 2) {
+    if (!isFiniteNumber(e) || e < 0 || e > fs / 2) {
       badArg(
         `band edge bands[${i}] = ${String(e)} must be a finite frequency from 0 to fs/2 = ${fs / 2}: keep every edge within Nyquist`,
         e,
       );
     }
+    // Stryker disable next-line ConditionalExpression,EqualityOperator: at i = 0, bands[-1] is undefined and `e <= undefined` is false, so `i > 0` only states the intent
     if (i > 0 && e <= bands[i - 1]!) {
       badArg(
         `band edges must increase strictly: bands[${i}] = ${e} is not above bands[${i - 1}] = ${bands[i - 1]}; list them as [lo1, hi1, lo2, hi2, …] with gaps between bands`,
@@ -145,10 +157,9 @@ function validate(
   }
   for (let b = 0; b < nb; b++) {
     const d = desired[b];
-    if (typeof d !== 'number' || !Number.isFinite(d))
-      badArg(`desired[${b}] ${String(d)} must be a finite number`, d);
+    if (!isFiniteNumber(d)) badArg(`desired[${b}] ${String(d)} must be a finite number`, d);
     const w = weight[b];
-    if (typeof w !== 'number' || !Number.isFinite(w) || w <= 0) {
+    if (!isFiniteNumber(w) || w <= 0) {
       badArg(`weight[${b}] ${String(w)} must be a finite number greater than 0`, w);
     }
   }
@@ -191,8 +202,7 @@ function buildProblem(
   }
   // Types II and III vanish at Nyquist: drop a last point within one step of it.
   if (neg === odd && fl[fl.length - 1]! > 0.5 - delf) {
-    fl.pop();
-    bl.pop();
+    fl.pop(); // bl keeps its last entry: only its first fl.length entries are read
     const last = nb - 1;
     bandEnd[last] = bandEnd[last]! - 1;
     if (bandEnd[last]! < bandStart[last]!) {
@@ -259,10 +269,7 @@ function baryWeights(xr: Float64Array, n: number, out: Float64Array, expo: Int32
     expo[k] = e;
     if (e < emin) emin = e;
   }
-  for (let k = 0; k < n; k++) {
-    const d = expo[k]! - emin;
-    if (d !== 0) out[k] = out[k]! * SCALE_DOWN ** d;
-  }
+  for (let k = 0; k < n; k++) out[k] = out[k]! * SCALE_DOWN ** (expo[k]! - emin);
 }
 
 /** Interpolant through (xr, y) with barycentric weights w, evaluated at x. */
@@ -295,10 +302,11 @@ function initialReference(p: Problem, n: number): Int32Array {
     if (x[i]! < xmin) xmin = x[i]!;
     if (x[i]! > xmax) xmax = x[i]!;
   }
+  // span > 0: the grid holds at least r + 1 ≥ 2 distinct frequencies in 0 … 0.5, where cos is one-to-one.
   const span = xmax - xmin;
   const theta = new Float64Array(g);
   for (let i = 0; i < g; i++) {
-    const t = span > 0 ? (2 * x[i]! - xmax - xmin) / span : 0;
+    const t = (2 * x[i]! - xmax - xmin) / span;
     theta[i] = Math.acos(Math.min(1, Math.max(-1, t)));
   }
   const nb = bandStart.length;
@@ -308,7 +316,7 @@ function initialReference(p: Problem, n: number): Int32Array {
   let b = 0;
   let offset = 0; // θ-measure of the bands before band b
   for (let j = 0; j < n; j++) {
-    const target = n > 1 ? (j * total) / (n - 1) : 0;
+    const target = (j * total) / (n - 1); // n = r + 1 ≥ 2
     while (b < nb - 1 && target > offset + theta[bandEnd[b]!]! - theta[bandStart[b]!]!) {
       offset += theta[bandEnd[b]!]! - theta[bandStart[b]!]!;
       b++;
@@ -351,6 +359,7 @@ export function remezExchange(
   // Scale of the weighted error, for the round-off floor of the convergence test.
   let errScale = 0;
   for (let i = 0; i < g; i++) errScale = Math.max(errScale, Math.abs(wt[i]! * des[i]!));
+  const floor = 1e-13 * errScale;
 
   let ref: Int32Array = initialReference(p, n);
 
@@ -385,7 +394,6 @@ export function remezExchange(
   let iterations = 0;
   let converged = false;
   let fullScan = true;
-  let roundOff = false;
   for (let it = 1; it <= o.maxIterations; it++) {
     iterations = it;
     for (let k = 0; k < n; k++) xr[k] = x[ref[k]!]!;
@@ -406,30 +414,37 @@ export function remezExchange(
     }
     const absDelta = Math.abs(delta);
 
-    const floor = 1e-13 * errScale;
     const tol = CONVERGENCE_TOLERANCE * absDelta + floor;
 
+    // Stryker disable next-line BlockStatement: speed only: without the local exchange every iteration is a full-grid exchange, the same optimum
     if (!fullScan) {
       // Local exchange: move each reference point uphill in |E| within its band, staying between
       // its neighbours (alternation is kept because each point keeps its sign). About 3·r
       // evaluations instead of the whole grid.
       let moved = false;
+      // Stryker disable next-line UnaryOperator: speed only: moves stay between the neighbours' positions, so the reference stays sorted and the full-grid check certifies the same optimum
       let prev = -1;
+      // Stryker disable next-line ConditionalExpression,EqualityOperator,BlockStatement: speed only: moves stay between the neighbours' positions, so the reference stays sorted and the full-grid check certifies the same optimum
       for (let k = 0; k < n; k++) {
         const i0 = ref[k]!;
         const band = bandOf[i0]!;
         const sgn = ((k & 1) === 0) === delta >= 0 ? 1 : -1;
+        // Stryker disable next-line MethodExpression,ArithmeticOperator: speed only: moves stay between the neighbours' positions, so the reference stays sorted and the full-grid check certifies the same optimum (a scan stops at the previous point, whose error has the opposite sign)
         const lo = Math.max(bandStart[band]!, prev + 1);
+        // Stryker disable next-line ConditionalExpression,EqualityOperator,ArithmeticOperator,MethodExpression: speed only: moves stay between the neighbours' positions, so the reference stays sorted and the full-grid check certifies the same optimum (a scan stops at the next point, whose error has the opposite sign)
         const hi = k === n - 1 ? bandEnd[band]! : Math.min(bandEnd[band]!, ref[k + 1]! - 1);
         let best = i0;
         let bestVal = absDelta;
+        // Stryker disable next-line ArithmeticOperator,ConditionalExpression,UpdateOperator,BlockStatement: speed only: moves stay between the neighbours' positions, so the reference stays sorted and the full-grid check certifies the same optimum
         for (let j = i0 + 1; j <= hi; j++) {
           const v = sgn * errorAt(j);
           if (v <= bestVal) break;
           best = j;
           bestVal = v;
         }
+        // Stryker disable next-line ConditionalExpression,EqualityOperator,BlockStatement: speed only: moves stay between the neighbours' positions, so the reference stays sorted and the full-grid check certifies the same optimum
         if (best === i0) {
+          // Stryker disable next-line ArithmeticOperator,ConditionalExpression,UpdateOperator,BlockStatement: speed only: moves stay between the neighbours' positions, so the reference stays sorted and the full-grid check certifies the same optimum
           for (let j = i0 - 1; j >= lo; j--) {
             const v = sgn * errorAt(j);
             if (v <= bestVal) break;
@@ -437,10 +452,12 @@ export function remezExchange(
             bestVal = v;
           }
         }
+        // Stryker disable next-line BooleanLiteral: speed only: moves stay between the neighbours' positions, so the reference stays sorted and the full-grid check certifies the same optimum
         if (best !== i0) moved = true;
         next[k] = best;
         prev = best;
       }
+      // Stryker disable next-line BlockStatement: speed only: moves stay between the neighbours' positions, so the reference stays sorted and the full-grid check certifies the same optimum
       if (moved) {
         const tmp = ref;
         ref = next;
@@ -477,13 +494,11 @@ export function remezExchange(
     for (let k = 0; k < n; k++) refPos[ref[k]!] = -1;
 
     if (maxErr - absDelta <= tol) {
-      // Levelled, but if δ itself is at round-off level the "optimum" is noise: the bands need far
-      // fewer taps than asked for, and the taps would not be the Chebyshev optimum.
-      if (absDelta < 100 * floor) roundOff = true;
-      else converged = true;
+      converged = true;
       break;
     }
     // Large excess: the reference is far from the optimum; keep exchanging on the whole grid.
+    // Stryker disable next-line ConditionalExpression,EqualityOperator,ArithmeticOperator: speed only: picks a local or a full-grid exchange for the next step; both keep a sorted reference and the full-grid check certifies the optimum
     fullScan = maxErr > 2 * absDelta;
 
     // Candidate extrema: local maxima of |E| (within each band) at least as large as |δ|.
@@ -528,35 +543,40 @@ export function remezExchange(
       }
       let m = 0;
       let am = Number.POSITIVE_INFINITY;
+      // Stryker disable next-line ConditionalExpression,EqualityOperator,BlockStatement: speed only: picks which surplus extremum to drop; splice keeps the list sorted, so the next reference is sorted and the full-grid check certifies the same optimum
       for (let j = 0; j < list.length; j++) {
         const a = Math.abs(err[list[j]!]!);
+        // Stryker disable next-line ConditionalExpression,EqualityOperator,BlockStatement: speed only: picks which surplus extremum to drop; splice keeps the list sorted, so the next reference is sorted and the full-grid check certifies the same optimum
         if (a < am) {
           am = a;
           m = j;
         }
       }
+      // Stryker disable next-line ConditionalExpression,LogicalOperator,EqualityOperator,ArithmeticOperator: speed only: picks which surplus extremum to drop; splice keeps the list sorted, so the next reference is sorted and the full-grid check certifies the same optimum
       if (m === 0 || m === list.length - 1) {
         list.splice(m, 1);
       } else {
+        // Stryker disable next-line ArithmeticOperator: speed only: picks which surplus extremum to drop; splice keeps the list sorted, so the next reference is sorted and the full-grid check certifies the same optimum
         const left = Math.abs(err[list[m - 1]!]!);
+        // Stryker disable next-line ArithmeticOperator: speed only: picks which surplus extremum to drop; splice keeps the list sorted, so the next reference is sorted and the full-grid check certifies the same optimum
         const right = Math.abs(err[list[m + 1]!]!);
+        // Stryker disable next-line ConditionalExpression,EqualityOperator,ArithmeticOperator: speed only: picks which surplus extremum to drop; splice keeps the list sorted, so the next reference is sorted and the full-grid check certifies the same optimum
         list.splice(left < right ? m - 1 : m, 2);
       }
     }
-    let same = true;
-    for (let k = 0; k < n; k++) {
-      next[k] = list[k]!;
-      if (next[k] !== ref[k]) same = false;
-    }
-    if (same) {
-      // The reference no longer moves: this is the optimum on the grid, up to round-off.
-      converged = true;
-      break;
-    }
+    // The new reference always differs from the old: the point of largest |E| (> |δ| + tol here) is a
+    // local extremum, wins every same-sign merge and is never the weaker one dropped above.
+    for (let k = 0; k < n; k++) next[k] = list[k]!;
     const tmp = ref;
     ref = next;
     next = tmp;
   }
+
+  // If δ itself is at round-off level the "optimum" is noise, whatever stopped the exchange (levelled
+  // error, a reference that no longer moves, too few extrema, the iteration cap): the bands need far
+  // fewer taps than asked for, and the taps are not the Chebyshev optimum.
+  const roundOff = Math.abs(delta) < 100 * floor;
+  if (roundOff) converged = false;
 
   const taps = impulseResponse(p, xr, y, bw, n);
   for (let i = 0; i < taps.length; i++) {
@@ -568,9 +588,54 @@ export function remezExchange(
       );
     }
   }
+  // The taps must reproduce ±δ at the reference (they interpolate it exactly in exact arithmetic).
+  // When the bands cover a small part of the axis, P between them grows past double precision and
+  // the taps lose the optimum while the exchange itself levelled: check a spread of reference points
+  // (only after a levelled exit, when `ref` is the reference the taps interpolate).
+  const offReference = converged && !tapsMatchReference(p, taps, ref, n, Math.abs(delta), floor);
+  if (offReference) converged = false;
   const result: RemezResult = { taps, iterations, converged, deviation: Math.abs(delta) };
   if (roundOff) result.roundOffLimited = true;
+  if (offReference) result.tapsOffReference = true;
   return result;
+}
+
+/**
+ * True when the weighted error of the taps themselves, w·(d − A), stays within 2|δ| + 1000·floor at up
+ * to 64 reference points spread over the reference (|δ| there in exact arithmetic). A(f) is the
+ * amplitude of a linear-phase FIR: Σ h_k cos(ω(k − M)) (symmetric) or Σ h_k sin(ω(M − k))
+ * (antisymmetric), M = (N − 1)/2, summed with an angle-addition recurrence (O(N) per point).
+ */
+function tapsMatchReference(
+  p: Problem,
+  taps: Float64Array,
+  ref: Int32Array,
+  n: number,
+  absDelta: number,
+  floor: number,
+): boolean {
+  const nt = taps.length;
+  const mid = (nt - 1) / 2;
+  const step = Math.max(1, Math.floor(n / 64));
+  for (let k = 0; k < n; k += step) {
+    const i = ref[k]!;
+    const w = 2 * Math.PI * p.f[i]!;
+    // Phase θ_j = w·(j − M), advanced by w each tap: (c, s) rotated by (cw, sw).
+    const cw = Math.cos(w);
+    const sw = Math.sin(w);
+    let c = Math.cos(-w * mid);
+    let s = Math.sin(-w * mid);
+    let a = 0;
+    for (let j = 0; j < nt; j++) {
+      a += taps[j]! * (p.neg ? -s : c);
+      const c2 = c * cw - s * sw;
+      s = s * cw + c * sw;
+      c = c2;
+    }
+    const e = p.wt[i]! * (p.des[i]! - a / qFactor(p.neg, p.odd, p.f[i]!));
+    if (!(Math.abs(e) <= 2 * absDelta + 1000 * floor)) return false;
+  }
+  return true;
 }
 
 /**
@@ -659,6 +724,13 @@ export function remez(
     throw new OrthotoneError(
       'NO_CONVERGENCE',
       `remez: the weighted deviation for numtaps ${numtaps} is at round-off level (${res.deviation.toPrecision(3)}): these bands need far fewer taps; use fewer taps or narrower transition bands`,
+      res,
+    );
+  }
+  if (res.tapsOffReference) {
+    throw new OrthotoneError(
+      'NO_CONVERGENCE',
+      `remez: the taps for numtaps ${numtaps} do not reproduce the levelled deviation ${res.deviation.toPrecision(3)}: the bands cover too little of 0 … fs/2 and the response between them grows beyond double precision; widen the bands, add bands over the gaps, or use fewer taps`,
       res,
     );
   }

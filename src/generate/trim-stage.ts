@@ -345,9 +345,9 @@ export class TrimStage {
    */
   setCorrection(c: Correction | null): void {
     if (c === null) {
+      // (cBackfill is read only while a correction is set, and every new correction sets it.)
       this.cLen = 0;
       this.correctionDoc = null;
-      this.cBackfill = false;
       return;
     }
     if (this.maxCorrectionTaps === 0) {
@@ -358,9 +358,8 @@ export class TrimStage {
       );
     }
     validateCorrection(c, this.maxCorrectionTaps);
+    // Only taps 0…n−1 are ever read (correctedAt), so older taps beyond n need no clearing.
     const n = c.qFromQ.length;
-    this.cQ.fill(0);
-    this.cI.fill(0);
     for (let k = 0; k < n; k++) {
       this.cQ[k] = c.qFromQ[k]!;
       this.cI[k] = c.qFromI[k]!;
@@ -411,11 +410,12 @@ export class TrimStage {
     this.rampPos = 0;
     this.rampLen = 0;
     this.updateSteadySkew();
+    // The corrected history of silence is silence (+0, as correctedAt computes it), so clearing it
+    // leaves nothing for a pending backfill to change.
     this.hI.fill(0);
     this.hQ.fill(0);
     this.hC.fill(0);
     this.wp = this.keep;
-    this.cBackfill = this.cLen > 0;
     this.resetStats();
   }
 
@@ -548,7 +548,8 @@ export class TrimStage {
     if (wp + n > hI.length) {
       hI.copyWithin(0, wp - keep, wp);
       hQ.copyWithin(0, wp - keep, wp);
-      if (this.cLen > 0) hC.copyWithin(0, wp - keep, wp);
+      // (empty without room for a correction; without one set, unread until a backfill rewrites it)
+      hC.copyWithin(0, wp - keep, wp);
       wp = keep;
     }
     const ramped = this.rampPos < this.rampLen;

@@ -104,7 +104,7 @@ export function startBridge(options: Partial<BridgeOptions> & { devicePath: stri
             data: (bytes) => ws.send(bytes),
             closed: (err) => {
               log(`${options.devicePath} closed${err ? ` (${err.message})` : ''}`);
-              // The socket's close handler, which this close runs, forgets the channel.
+              // The socket's close handler forgets the channel once the closing handshake ends.
               ws.close(1011, 'the device port closed');
             },
           });

@@ -2,7 +2,7 @@
 // Scopes (issue 12's goal): src/measure, src/node, src/generate/trim-stage.ts, the null seeker's stop
 // and evidence code, src/design/remez.ts, each with only its own unit tests (the browser and CLI
 // suites are far too slow to run per mutant on 2 cores). Run one scope at a time:
-//   MUTANTS=measure npm run mutants      (scopes: measure, node, trim-stage, seeker, remez)
+//   MUTANTS=measure npm run mutants      (scopes: measure, node, node-device, trim-stage, seeker, remez)
 // Reports go to reports/mutation/<scope>.{json,html}; surviving mutants are listed with the reason
 // each is equivalent in tests/mutants.md.
 import { SCOPES } from './tests/mutants/scopes.mjs';

@@ -18,7 +18,7 @@ export interface EchoDevice {
 /** Starts an echo device and resolves once its pseudo-terminal exists. */
 export function startEcho(): Promise<EchoDevice> {
   const proc = spawn('/usr/bin/python3', [resolve('tests/device/pty-echo.py')], {
-    stdio: ['ignore', 'pipe', 'pipe'],
+    stdio: ['pipe', 'pipe', 'pipe'], // stdin open: the device ends when this process does
   });
   started.add(proc);
   const exited = new Promise<void>((r) => proc.once('exit', () => r()));

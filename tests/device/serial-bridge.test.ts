@@ -9,7 +9,7 @@
  * The protocol over the bridge (compiled virtual device, Chromium) is in bridge-browser.test.ts.
  */
 import { execFileSync, spawn } from 'node:child_process';
-import { chmodSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { chmodSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { readFile } from 'node:fs/promises';
 import { createServer } from 'node:net';
 import { tmpdir } from 'node:os';
@@ -36,7 +36,10 @@ afterEach(async () => {
   await Promise.all(channels.splice(0).map((c) => c.close()));
   await killEchoes();
 });
-afterAll(killEchoes);
+afterAll(async () => {
+  await killEchoes();
+  rmSync(work, { recursive: true, force: true });
+});
 
 /** Every byte value once, in an order that puts line ends, XON/XOFF and 0xFF next to others. */
 const ALL_BYTES = Uint8Array.from({ length: 256 }, (_, k) => (k * 97 + 13) % 256);

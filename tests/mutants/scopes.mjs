@@ -11,6 +11,7 @@ export const SCOPES = {
       'tests/measure/sideband.test.ts',
       'tests/measure/sideband-light.test.ts',
       'tests/measure/measure-edges.test.ts',
+      'tests/measure/readings-edges.test.ts',
       'tests/measure/tones.test.ts',
       'tests/measure/tones-leakage.test.ts',
       'tests/measure/two-tone.test.ts',

@@ -103,21 +103,21 @@ describe('measureTones: options', () => {
     expect(r!.levelDbfs).toBeCloseTo(dbfs(0.5), 3);
   });
   it('a tone off its nominal frequency is found within searchHz and not beyond it', () => {
-    // 16384 samples, Blackman–Harris: bins of 2.93 Hz, default search one main-lobe half-width (4 bins, 11.7 Hz).
-    const x = real(16384, [[0.5, 1030.4, 0.3]]);
-    const [near] = measureTones(x, fs, [1000], { searchHz: 40 });
+    // 4096 samples, Blackman–Harris: bins of 11.7 Hz, default search one main-lobe half-width (4 bins, 46.9 Hz).
+    const x = real(4096, [[0.5, 1100.4, 0.3]]);
+    const [near] = measureTones(x, fs, [1000], { searchHz: 150 });
     expect(near!.refined).toBe(true);
-    expect(near!.frequencyHz).toBeCloseTo(1030.4, 2);
+    expect(near!.frequencyHz).toBeCloseTo(1100.4, 1);
     expect(near!.levelDbfs).toBeCloseTo(dbfs(0.5), 2);
-    const [own] = measureTones(x, fs, [{ hz: 1000, searchHz: 40 }]);
-    expect(own!.frequencyHz).toBeCloseTo(1030.4, 2);
-    // Default span: 30 Hz away is outside it, so 1000 Hz is read where it was asked, on the tone's skirt.
+    const [own] = measureTones(x, fs, [{ hz: 1000, searchHz: 150 }]);
+    expect(own!.frequencyHz).toBeCloseTo(1100.4, 1);
+    // Default span: 100 Hz away is outside it, so 1000 Hz is read where it was asked, on the tone's skirt.
     const [far] = measureTones(x, fs, [1000]);
     expect(far!.frequencyHz).toBe(1000);
     expect(far!.refined).toBe(false);
     expect(far!.levelDbfs).toBeLessThan(dbfs(0.5) - 60);
     // A request's own searchHz overrides the option.
-    const [narrow] = measureTones(x, fs, [{ hz: 1000, searchHz: 5 }], { searchHz: 40 });
+    const [narrow] = measureTones(x, fs, [{ hz: 1000, searchHz: 20 }], { searchHz: 150 });
     expect(narrow!.frequencyHz).toBe(1000);
   });
   it("refine 'never' reads at the asked frequency; the reading there follows the window's response", () => {
@@ -140,15 +140,16 @@ describe('measureTones: options', () => {
     expect(auto!.levelDbfs).toBeCloseTo(dbfs(0.5), 3);
   });
   it('the floor is subtracted from a tone in noise, and a tone at the floor is flagged', () => {
-    // White noise σ per sample, 4096-sample Blackman–Harris frames: per bin 4σ²·NENBW/N in sine-peak²
-    // units (Heinzel 2002), NENBW 2.0044. A tone of that same power reads p ≈ 2·floor.
+    // White noise σ per sample, 1024-sample Blackman–Harris frames: per bin 4σ²·NENBW/N in sine-peak²
+    // units (Heinzel 2002), NENBW 2.0044.
     const sigma = 1e-3;
-    const len = 65536;
-    const floorP = (4 * sigma * sigma * 2.0044) / 4096;
+    const len = 16384;
+    const frameLength = 1024;
+    const floorP = (4 * sigma * sigma * 2.0044) / frameLength;
     const strongA = Math.sqrt(floorP * 1e4); // 40 dB above the floor per bin
     const x = real(len, [[strongA, 3000, 0.1]], sigma, 7);
-    const [with_] = measureTones(x, fs, [3000], { frameLength: 4096 });
-    const [without] = measureTones(x, fs, [3000], { frameLength: 4096, subtractFloor: false });
+    const [with_] = measureTones(x, fs, [3000], { frameLength });
+    const [without] = measureTones(x, fs, [3000], { frameLength, subtractFloor: false });
     expect(Math.abs(with_!.floorDbfs - 10 * Math.log10(floorP))).toBeLessThan(0.5);
     expect(with_!.levelDbfs).toBeCloseTo(dbfs(strongA), 1);
     // Without subtraction the tone reads tone + one bin of noise: 10·log10(1 + 1e-4) higher.
@@ -158,13 +159,11 @@ describe('measureTones: options', () => {
     expect(with_!.aboveFloorDb).toBeCloseTo(with_!.levelDbfs - with_!.floorDbfs, 10);
     expect(with_!.aboveFloorDb).toBeGreaterThan(38);
     // Nothing at 5000 Hz: the reading is at the floor, flagged, and read as half of what is there.
-    const [empty] = measureTones(x, fs, [3000, 5000], { frameLength: 4096 }).slice(1);
+    const [empty] = measureTones(x, fs, [3000, 5000], { frameLength }).slice(1);
     expect(empty!.atFloor).toBe(true);
     expect(empty!.refined).toBe(false);
     expect(empty!.aboveFloorDb).toBeLessThan(3);
-    const [emptyRaw] = measureTones(x, fs, [3000, 5000], { frameLength: 4096, subtractFloor: false }).slice(
-      1,
-    );
+    const [emptyRaw] = measureTones(x, fs, [3000, 5000], { frameLength, subtractFloor: false }).slice(1);
     expect(emptyRaw!.atFloor).toBe(true);
     expect(emptyRaw!.levelDbfs - empty!.levelDbfs).toBeCloseTo(10 * Math.log10(2), 6);
     // Uncertainty: larger for the tone at the floor than for the strong one, and at most 99 dB.

@@ -11,6 +11,7 @@ export const SCOPES = {
     tests: [
       'tests/measure/leakage.test.ts',
       'tests/measure/measure-edges.test.ts',
+      'tests/measure/peaks.test.ts',
       'tests/measure/readings-edges.test.ts',
       'tests/measure/readings-light.test.ts',
       'tests/measure/sideband-light.test.ts',

@@ -25,7 +25,7 @@ describe('strongestPeaks', () => {
     const m = scallop(1.4236);
     const top3 = strongestPeaks(s, 3);
     expect(top3.map((p) => p.hz)).toEqual([6 * bin, 0, 10 * bin]);
-    top3.forEach((p, j) => expect(p.power / [7, 5, 4][j]!).toBeCloseTo(m, 3));
+    for (const [j, p] of top3.entries()) expect(p.power / [7, 5, 4][j]!).toBeCloseTo(m, 3);
     // All of them; equal peaks keep their order in frequency.
     expect(strongestPeaks(s, 10).map((p) => Math.round(p.hz / bin))).toEqual([6, 0, 10, 3, 4]);
     expect(strongestPeaks(s, 1).map((p) => Math.round(p.hz / bin))).toEqual([6]);

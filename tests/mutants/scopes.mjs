@@ -15,6 +15,7 @@ export const SCOPES = {
       'tests/measure/readings-edges.test.ts',
       'tests/measure/readings-light.test.ts',
       'tests/measure/sideband-light.test.ts',
+      'tests/measure/sideband-paths.test.ts',
     ],
   },
   node: {

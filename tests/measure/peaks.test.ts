@@ -123,6 +123,9 @@ describe('windowLeakageEnvelope at the main-lobe edge', () => {
       expect(windowLeakageEnvelope(w, 1024, terms - 1e-6)).toBe(1);
       expect(windowLeakageEnvelope(w, 1024, terms)).toBeLessThan(1);
       expect(windowLeakageEnvelope(w, 1024, -terms)).toBeLessThan(1);
+      // Periodic in ν with period N: just below N is the main lobe of the next period.
+      expect(windowLeakageEnvelope(w, 1024, 1024 - 0.5)).toBe(1);
+      expect(windowLeakageEnvelope(w, 1024, 1024 - terms)).toBeLessThan(1);
       // Half-way round (ν = N/2) and beyond it the envelope mirrors: ν and N − ν are the same offset.
       expect(windowLeakageEnvelope(w, 1024, 600)).toBeCloseTo(windowLeakageEnvelope(w, 1024, 424), 15);
     }

@@ -140,11 +140,11 @@ describe('measureTones: options', () => {
     expect(auto!.levelDbfs).toBeCloseTo(dbfs(0.5), 3);
   });
   it('the floor is subtracted from a tone in noise, and a tone at the floor is flagged', () => {
-    // White noise σ per sample, 1024-sample Blackman–Harris frames: per bin 4σ²·NENBW/N in sine-peak²
+    // White noise σ per sample, 512-sample Blackman–Harris frames: per bin 4σ²·NENBW/N in sine-peak²
     // units (Heinzel 2002), NENBW 2.0044.
     const sigma = 1e-3;
-    const len = 16384;
-    const frameLength = 1024;
+    const len = 8192;
+    const frameLength = 512;
     const floorP = (4 * sigma * sigma * 2.0044) / frameLength;
     const strongA = Math.sqrt(floorP * 1e4); // 40 dB above the floor per bin
     const x = real(len, [[strongA, 3000, 0.1]], sigma, 7);
@@ -259,7 +259,7 @@ describe('measureTwoTone: products and refusals', () => {
   it('lists the odd products in band, each once, none on a tone (standard intermodulation arithmetic)', () => {
     // f1 = 1000, f2 = 1500: 3rd at 500 and 2000; 5th at 0 (out of band) and 2500; 7th at −500 (folds
     // onto 500, already listed) and 3000; 9th at −1000 (folds onto f1) and 3500.
-    const x = real(24000, [
+    const x = real(4096, [
       [0.3, 1000, 0],
       [0.3, 1500, 0.5],
     ]);
@@ -281,7 +281,7 @@ describe('measureTwoTone: products and refusals', () => {
     expect(Number.isNaN(third.imd5DbPep)).toBe(true);
   });
   it('products near Nyquist fall out of band and are left out', () => {
-    const x = real(24000, [
+    const x = real(4096, [
       [0.3, 15000, 0],
       [0.3, 20000, 0.5],
     ]);

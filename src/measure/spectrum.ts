@@ -362,7 +362,7 @@ export function powerAt(capture: Capture, plan: FramePlan, window: Float64Array,
  */
 export function gammaMedianToMean(k: number): number {
   const kk = Math.max(k, 1);
-  if (kk <= 1) return Math.LN2;
+  // At K = 1 the series gives 0.6864, below ln 2, so the floor of ln 2 makes it exact there.
   return Math.max(Math.LN2, (kk - 1 / 3 + 8 / (405 * kk)) / kk);
 }
 

@@ -75,7 +75,10 @@ export interface ToneReading {
   aboveFloorDb: number;
   /** One standard deviation of `levelDbfs` from the noise, dB (estimated). */
   uncertaintyDb: number;
-  /** True when the frequency was refined; false when read at the nominal frequency. */
+  /**
+   * True when the frequency was refined; false when read at the nominal frequency (always for 0 Hz
+   * in a real capture: DC has no frequency to refine).
+   */
   refined: boolean;
   /** True when the tone is within 3 dB of the floor: the level is then an upper bound. */
   atFloor: boolean;
@@ -244,7 +247,9 @@ export function createToneReader(
     let search = ownSearch ?? opts.searchHz ?? half * res;
     search = Math.min(search, nearest / 3);
     const floor = floorNear(spectrum, hz, spanHz, exclude, excludeHz);
-    const mayRefine = typeof t === 'number' || t.refine !== 'never';
+    // DC in a real capture has no frequency to refine: read it at exactly 0 Hz, where a real
+    // capture's power is not doubled (a step off 0 Hz would read a DC level D as 2D).
+    const mayRefine = (typeof t === 'number' || t.refine !== 'never') && (complex || hz !== 0);
     // Locate the strongest bin within the search span.
     let bestK = frequencyBin(spectrum, hz);
     let bestP = -1;

@@ -14,6 +14,7 @@ export const SCOPES = {
       'tests/measure/peaks.test.ts',
       'tests/measure/readings-edges.test.ts',
       'tests/measure/readings-light.test.ts',
+      'tests/measure/readings-more.test.ts',
       'tests/measure/sideband-light.test.ts',
       'tests/measure/sideband-paths.test.ts',
     ],

@@ -89,10 +89,10 @@ describe('tone levels and frequencies (AES17; Heinzel, Rüdiger & Schilling 2002
 });
 
 describe('weak and absent tones beside a strong one (leakage between bins)', () => {
-  // 1500 Hz: a whole number of cycles in 4096-sample frames, so the FFT bins sit on the zeros of its
+  // 1500 Hz: a whole number of cycles in 2048-sample frames, so the FFT bins sit on the zeros of its
   // leakage and a noise-free floor reads as rounding noise (leakage.ts explains).
-  const len = 8192;
-  const frameLength = 4096;
+  const len = 4096;
+  const frameLength = 2048;
   const off = 0.37 * (fs / frameLength);
   it('real: −40, −60 and −80 dBc tones off their nominal frequencies are read where they are', () => {
     const parts: [number, number, number][] = [
@@ -112,7 +112,7 @@ describe('weak and absent tones beside a strong one (leakage between bins)', () 
     });
   });
   it('real and I/Q: an absent tone is read at its nominal frequency, below the sidelobes', () => {
-    const [strong, absent, far] = measureTones(real(len, [[0.5, 1500, 0.3]]), fs, [1500, 1600, 5000], {
+    const [strong, absent, far] = measureTones(real(len, [[0.5, 1500, 0.3]]), fs, [1500, 1700, 5000], {
       frameLength,
     });
     expect(strong!.levelDbfs).toBeCloseTo(dbfs(0.5), 2);
@@ -152,10 +152,10 @@ describe('noise floor (Welch 1967 power averaging; Heinzel 2002 densities)', () 
   it('per hertz: real white noise 4σ²/fs, complex 2σ²/fs, in sine-peak² units', () => {
     const sigma = 1e-3;
     const opts = { frameLength: 512 };
-    const [r] = measureTones(real(16384, [], sigma, 5), fs, [3000], opts);
+    const [r] = measureTones(real(8192, [], sigma, 5), fs, [3000], opts);
     expect(Math.abs(r!.floorDbfsPerHz - 10 * Math.log10((4 * sigma * sigma) / fs))).toBeLessThan(0.5);
     expect(r!.atFloor).toBe(true);
-    const [c] = measureTones(complex(16384, [], sigma, 6), fs, [3000], opts);
+    const [c] = measureTones(complex(8192, [], sigma, 6), fs, [3000], opts);
     expect(Math.abs(c!.floorDbfsPerHz - 10 * Math.log10((2 * sigma * sigma) / fs))).toBeLessThan(0.5);
   });
 });
@@ -289,7 +289,7 @@ describe('sideband and carrier (K. Schmidt, QEX Aug 1994 §2)', () => {
   });
   it('a tuning error moves every component: found with and without a carrier', () => {
     for (const dc of [0.0005, 0]) {
-      const { i, q } = iq(16384, 1500, 0, 2, dc, 0, 1, -5.1);
+      const { i, q } = iq(8192, 1500, 0, 2, dc, 0, 1, -5.1);
       const r = measureSideband(i, q, fs, { toneHz: 1500 });
       expect(r.sidebandSuppressionDb).toBeCloseTo(35.162, 1); // Schmidt's formula, 2°
       expect(r.frequencyErrorHz).toBeCloseTo(-5.1, 2);
@@ -300,14 +300,14 @@ describe('sideband and carrier (K. Schmidt, QEX Aug 1994 §2)', () => {
     }
   });
   it('a tone off its nominal frequency, no carrier: the unwanted tone is its mirror about 0 Hz', () => {
-    const { i, q } = iq(16384, 1000.3 + 2, 0.1, 1);
+    const { i, q } = iq(8192, 1000.3 + 2, 0.1, 1);
     const r = measureSideband(i, q, fs, { toneHz: 1000 });
     expect(r.sidebandSuppressionDb).toBeCloseTo(39.614, 1); // Schmidt's formula, 0.1 dB and 1°
     expect(r.unwanted.frequencyHz).toBeCloseTo(-1002.3, 1);
     expect(r.carrier.frequencyHz).toBeCloseTo(0, 1);
   });
   it('receiver audio: an upper-sideband receiver 1500 Hz below the carrier, then a lower-sideband one', () => {
-    const x = real(16384, [
+    const x = real(8192, [
       [0.5, 2200, 0],
       [0.5 * 10 ** (-43 / 20), 800, 1],
       [0.5 * 10 ** (-37 / 20), 1500, 2],

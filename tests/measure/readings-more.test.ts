@@ -40,8 +40,8 @@ describe('measureTones at 0 Hz', () => {
 describe('measureTones: the reported spread matches the spread seen', () => {
   it('a tone 10 dB and one 30 dB above the floor per bin, over 16 noise seeds', () => {
     const sigma = 1e-3;
-    const frameLength = 512;
-    const len = 4096;
+    const frameLength = 256;
+    const len = 2048;
     // Floor per bin, real capture: 4σ²·NENBW/N sine-peak² (Heinzel 2002), NENBW 2.0044 (Blackman–Harris).
     const floorP = (4 * sigma * sigma * 2.0044) / frameLength;
     for (const aboveDb of [10, 30]) {

@@ -42,7 +42,7 @@ describe('measureSideband without a carrier or an opposite sideband', () => {
   it('receiver audio with a carrier: the unwanted tone is the mirror about the measured carrier', () => {
     // Upper-sideband receiver 1500 Hz below the carrier, a 700 Hz tone: carrier at 1500.4 Hz (tuning
     // 0.4 Hz off), wanted at 2200.4 Hz, unwanted (−40 dBc) at 800.4 Hz.
-    const len = 16384;
+    const len = 8192;
     const x = Float64Array.from({ length: len }, (_, n) => {
       const t = n / fs;
       return (

@@ -1,6 +1,6 @@
 /**
  * The main checks of tones.test.ts, tones-leakage.test.ts, two-tone.test.ts and sideband.test.ts
- * on short captures (4096 to 16384 samples), so that the measure mutation scope can run them for
+ * on short captures (2048 to 8192 samples), so that the measure mutation scope can run them for
  * every mutant (those suites use captures of up to 262144 samples and many frame lengths; they run in
  * `npm test`). Each check is against the same independent expectation as there:
  * - levels: AES17 (a sine of peak A reads 20·log10 A dBFS) with the scaling of Heinzel, Rüdiger &
@@ -65,7 +65,7 @@ describe('tone levels and frequencies (AES17; Heinzel, Rüdiger & Schilling 2002
   });
   for (const window of ['hann', 'blackman-harris', 'flattop'] as const) {
     it(`${window}: a tone anywhere between bins is read within 0.02 dB and 1 % of a bin`, () => {
-      const len = 4096;
+      const len = 2048;
       const bin = fs / len;
       for (const d of [0, 0.3, 0.5, 0.85]) {
         const hz = 1500 + d * bin;
@@ -151,11 +151,11 @@ describe('weak and absent tones beside a strong one (leakage between bins)', () 
 describe('noise floor (Welch 1967 power averaging; Heinzel 2002 densities)', () => {
   it('per hertz: real white noise 4σ²/fs, complex 2σ²/fs, in sine-peak² units', () => {
     const sigma = 1e-3;
-    const opts = { frameLength: 512 };
-    const [r] = measureTones(real(8192, [], sigma, 5), fs, [3000], opts);
+    const opts = { frameLength: 256 };
+    const [r] = measureTones(real(4096, [], sigma, 5), fs, [3000], opts);
     expect(Math.abs(r!.floorDbfsPerHz - 10 * Math.log10((4 * sigma * sigma) / fs))).toBeLessThan(0.5);
     expect(r!.atFloor).toBe(true);
-    const [c] = measureTones(complex(8192, [], sigma, 6), fs, [3000], opts);
+    const [c] = measureTones(complex(4096, [], sigma, 6), fs, [3000], opts);
     expect(Math.abs(c!.floorDbfsPerHz - 10 * Math.log10((2 * sigma * sigma) / fs))).toBeLessThan(0.5);
   });
 });
@@ -167,7 +167,7 @@ describe('two-tone products against their closed forms', () => {
       return x + k3 * x ** 3 + k5 * x ** 5;
     });
   it('equal tones are each 6.02 dB below PEP', () => {
-    const r = measureTwoTone(twoTone(4096, 0.25, 700, 1900, 0, 0), fs, [700, 1900]);
+    const r = measureTwoTone(twoTone(2048, 0.25, 700, 1900, 0, 0), fs, [700, 1900]);
     expect(r.pepDbfs - r.toneDbfs).toBeCloseTo(20 * Math.log10(2), 3);
     expect(r.pepDbfs).toBeCloseTo(dbfs(0.5), 3);
     expect(r.toneImbalanceDb).toBeCloseTo(0, 3);
@@ -192,19 +192,19 @@ describe('two-tone products against their closed forms', () => {
   it('5th order of y = x + k·x⁵: 0.625·k·a⁵ beside tones of a + 6.25·k·a⁵; unequal products take the worst', () => {
     const a = 0.2;
     const k = 2;
-    const r = measureTwoTone(twoTone(4096, a, 1000, 1300, 0, k), fs, [1000, 1300]);
+    const r = measureTwoTone(twoTone(2048, a, 1000, 1300, 0, k), fs, [1000, 1300]);
     const expected = 20 * Math.log10((0.625 * k * a ** 5) / (a + 6.25 * k * a ** 5));
     expect(r.imd5Dbc).toBeCloseTo(expected, 2);
     expect(r.products.filter((p) => p.order === 5).map((p) => Math.round(p.frequencyHz))).toEqual([
       400, 1900,
     ]);
     // Products of a cubic and a quintic together: worst = highest of the two sides.
-    const both = measureTwoTone(twoTone(4096, 0.2, 1000, 1300, -0.2, 1), fs, [1000, 1300]);
+    const both = measureTwoTone(twoTone(2048, 0.2, 1000, 1300, -0.2, 1), fs, [1000, 1300]);
     const third = both.products.filter((p) => p.order === 3);
     expect(both.imd3Dbc).toBe(Math.max(third[0]!.dbcTone, third[1]!.dbcTone));
   });
   it('I/Q: an envelope cubic z·(1 + k|z|²) puts products on both sides', () => {
-    const len = 4096;
+    const len = 2048;
     const a = 0.25;
     const k = -0.2;
     const { i, q } = complex(len, [
@@ -258,7 +258,7 @@ describe('sideband and carrier (K. Schmidt, QEX Aug 1994 §2)', () => {
     [0.1, 1],
   ] as const) {
     it(`${gDb} dB and ${phDeg}°, tone between bins, a little noise`, () => {
-      const { i, q } = iq(8192, 1000.3, gDb, phDeg, 0, 0, 1, 0, 1e-6);
+      const { i, q } = iq(4096, 1000.3, gDb, phDeg, 0, 0, 1, 0, 1e-6);
       const r = measureSideband(i, q, fs, { toneHz: 1000 });
       const want = irrDb(10 ** (gDb / 20), phDeg * deg);
       expect(Math.abs(r.sidebandSuppressionDb - want)).toBeLessThan(0.02);
@@ -270,7 +270,7 @@ describe('sideband and carrier (K. Schmidt, QEX Aug 1994 §2)', () => {
     });
   }
   it('carrier dI = 0.001A, dQ = 0.0005A: −59.031 dBc, and the measurable depths', () => {
-    const { i, q } = iq(8192, 1000, 0, 0, 0.0005, 0.00025, 1, 0, 1e-6);
+    const { i, q } = iq(4096, 1000, 0, 0, 0.0005, 0.00025, 1, 0, 1e-6);
     const r = measureSideband(i, q, fs, { toneHz: 1000 });
     expect(r.carrierDbc).toBeCloseTo(-59.031, 2);
     expect(r.carrierSuppressionDb).toBeCloseTo(59.031, 2);
@@ -280,7 +280,7 @@ describe('sideband and carrier (K. Schmidt, QEX Aug 1994 §2)', () => {
     expect(r.carrierMeasurableDb).toBeCloseTo(r.wanted.levelDbfs - r.carrier.floorDbfs, 10);
   });
   it('lower sideband: the wanted tone at −toneHz; read as upper, the suppression turns negative', () => {
-    const { i, q } = iq(8192, 700, 0.1, 0, 0, 0, -1, 0, 1e-6);
+    const { i, q } = iq(4096, 700, 0.1, 0, 0, 0, -1, 0, 1e-6);
     const r = measureSideband(i, q, fs, { toneHz: 700, sideband: 'lower' });
     expect(r.sideband).toBe('lower');
     expect(r.wanted.frequencyHz).toBeCloseTo(-700, 3);

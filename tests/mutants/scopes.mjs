@@ -17,6 +17,7 @@ export const SCOPES = {
       'tests/measure/readings-more.test.ts',
       'tests/measure/sideband-light.test.ts',
       'tests/measure/sideband-paths.test.ts',
+      'tests/measure/units.test.ts',
     ],
   },
   node: {

@@ -1,0 +1,97 @@
+/**
+ * Further reading checks found missing by the mutation runs of src/measure. Levels per AES17 (a sine
+ * of peak A reads 20·log10 A dBFS) with the scaling of Heinzel, Rüdiger & Schilling 2002.
+ */
+import { describe, expect, it } from 'vitest';
+import { measureSideband } from '../../src/measure/sideband.js';
+import { measureTones } from '../../src/measure/tones.js';
+import { measureTwoTone } from '../../src/measure/two-tone.js';
+
+const fs = 48000;
+const dbfs = (a: number) => 20 * Math.log10(a);
+const real = (len: number, parts: [number, number, number][]) =>
+  Float64Array.from({ length: len }, (_, n) => {
+    let v = 0;
+    for (const [a, hz, ph] of parts) v += a * Math.sin((2 * Math.PI * hz * n) / fs + ph);
+    return v;
+  });
+
+describe('measureTones: the search span stops short of the next tone', () => {
+  it('a generous searchHz is capped at a third of the way to the nearest other tone', () => {
+    // A −40 dBc tone at 1000.4 Hz and a strong one 300 Hz above. Asked to search ±400 Hz around
+    // 1000 Hz, the reader must still read the weak tone, not climb onto the strong one.
+    const x = real(4096, [
+      [0.005, 1000.4, 0.3],
+      [0.5, 1300, 1.1],
+    ]);
+    const [weak, strong] = measureTones(x, fs, [1000, 1300], { searchHz: 400 });
+    expect(weak!.frequencyHz).toBeCloseTo(1000.4, 1);
+    expect(weak!.levelDbfs).toBeCloseTo(dbfs(0.005), 1);
+    expect(strong!.levelDbfs).toBeCloseTo(dbfs(0.5), 2);
+    // A request's own searchHz is capped the same way.
+    const [own] = measureTones(x, fs, [{ hz: 1000, searchHz: 400 }, 1300]);
+    expect(own!.frequencyHz).toBeCloseTo(1000.4, 1);
+  });
+});
+
+describe('measureSideband: a mirror that falls outside the capture', () => {
+  it('receiver audio with a carrier: a wanted tone found 150 Hz off puts the mirror below 0 Hz', () => {
+    // Upper-sideband receiver 1500 Hz below the carrier, a 1400 Hz tone: carrier (−30 dBc) at 1500 Hz,
+    // wanted asked at 2900 Hz but arriving at 3050 Hz. Mirror about the carrier: 3000 − 3050 = −50 Hz,
+    // outside the audio, so the unwanted tone is read where it belongs, at 100 Hz.
+    const x = Float64Array.from(
+      { length: 8192 },
+      (_, n) =>
+        0.5 * Math.sin((2 * Math.PI * 3050 * n) / fs) + 0.0158 * Math.sin((2 * Math.PI * 1500 * n) / fs + 1),
+    );
+    const r = measureSideband(x, null, fs, { toneHz: 1400, offsetHz: 1500, searchHz: 200 });
+    expect(r.carrier.refined).toBe(true);
+    expect(r.carrier.frequencyHz).toBeCloseTo(1500, 1);
+    expect(r.wanted.frequencyHz).toBeCloseTo(3050, 1);
+    expect(r.unwanted.frequencyHz).toBe(100);
+    expect(r.carrierSuppressionDb).toBeCloseTo(20 * Math.log10(0.5 / 0.0158), 1);
+  });
+  it('I/Q near −Nyquist: the mirror beyond −fs/2 is not read; the nominal place is', () => {
+    // Carrier at −17000 Hz (suppressed), a 6000 Hz tone on the upper sideband: wanted asked at
+    // −11000 Hz, unwanted at −23000 Hz. The tone arrives 1500 Hz high (found with searchHz 1800):
+    // its mirror, −34000 + 9500 = −24500 Hz, is beyond −24000 Hz.
+    const len = 4096;
+    const f = -9500;
+    const i = Float64Array.from({ length: len }, (_, n) => 0.5 * Math.cos((2 * Math.PI * f * n) / fs));
+    const q = Float64Array.from({ length: len }, (_, n) => 0.5 * Math.sin((2 * Math.PI * f * n) / fs));
+    const r = measureSideband(i, q, fs, { toneHz: 6000, carrierHz: -17000, searchHz: 1800 });
+    expect(r.wanted.frequencyHz).toBeCloseTo(f, 1);
+    expect(r.frequencyErrorHz).toBeCloseTo(1500, 1);
+    expect(r.unwanted.frequencyHz).toBe(-23000);
+    expect(r.sidebandSuppressionDb).toBeGreaterThan(92); // below the Blackman–Harris sidelobes (Heinzel 2002)
+  });
+});
+
+describe('measureTwoTone: products that land on a tone or beyond Nyquist', () => {
+  it('1000 and 3000 Hz: the 3rd-order low product folds onto 1000 Hz and the 5th onto 3000 Hz; both are left out', () => {
+    // 2·1000 − 3000 = −1000 → 1000 Hz (f1); 3·1000 − 2·3000 = −3000 → 3000 Hz (f2) in a real capture.
+    const x = real(4096, [
+      [0.3, 1000, 0],
+      [0.3, 3000, 0.5],
+    ]);
+    const r = measureTwoTone(x, fs, [1000, 3000]);
+    expect(r.products.map((p) => [p.order, p.side, Math.round(p.frequencyHz)])).toEqual([
+      [3, 'high', 5000],
+      [5, 'high', 7000],
+    ]);
+  });
+  it('I/Q: products beyond +fs/2 are left out', () => {
+    // Tones 20000 and 23000 Hz: 3rd order at 17000 and 26000 Hz, 5th at 14000 and 29000 Hz.
+    const len = 4096;
+    const i = new Float64Array(len);
+    const q = new Float64Array(len);
+    for (let n = 0; n < len; n++) {
+      for (const hz of [20000, 23000]) {
+        i[n]! += 0.3 * Math.cos((2 * Math.PI * hz * n) / fs);
+        q[n]! += 0.3 * Math.sin((2 * Math.PI * hz * n) / fs);
+      }
+    }
+    const r = measureTwoTone({ i, q }, fs, [20000, 23000]);
+    expect(r.products.map((p) => Math.round(p.frequencyHz))).toEqual([17000, 14000]);
+  });
+});

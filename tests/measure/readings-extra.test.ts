@@ -3,7 +3,9 @@
  * of peak A reads 20·log10 A dBFS) with the scaling of Heinzel, Rüdiger & Schilling 2002.
  */
 import { describe, expect, it } from 'vitest';
+import { isOrthotoneError } from '../../src/core/errors.js';
 import { measureSideband } from '../../src/measure/sideband.js';
+import { captureLength } from '../../src/measure/signal.js';
 import { measureTones } from '../../src/measure/tones.js';
 import { measureTwoTone } from '../../src/measure/two-tone.js';
 
@@ -93,5 +95,63 @@ describe('measureTwoTone: products that land on a tone or beyond Nyquist', () =>
     }
     const r = measureTwoTone({ i, q }, fs, [20000, 23000]);
     expect(r.products.map((p) => Math.round(p.frequencyHz))).toEqual([17000, 14000]);
+  });
+});
+
+/** The OrthotoneError `fn` throws, as [code, message, value]. */
+const thrown = (fn: () => unknown): [string, string, unknown] => {
+  try {
+    fn();
+  } catch (e) {
+    if (isOrthotoneError(e)) return [e.code, e.message, e.value];
+    throw e;
+  }
+  throw new Error('did not throw');
+};
+
+describe('refusals carry their code and the offending value', () => {
+  const x = new Float64Array(8192);
+  it('measureSideband: the tone, the missing offset, a component outside the audio', () => {
+    expect(thrown(() => measureSideband(x, x, fs, undefined as never))).toEqual([
+      'INVALID_ARGUMENT',
+      'toneHz undefined must be a finite number: use a positive value',
+      undefined,
+    ]);
+    expect(thrown(() => measureSideband(x, x, fs, { toneHz: 0 }))).toEqual([
+      'INVALID_ARGUMENT',
+      'toneHz 0 Hz must be greater than 0',
+      0,
+    ]);
+    expect(thrown(() => measureSideband(x, null, fs, { toneHz: 700 }))[0]).toBe('INVALID_ARGUMENT');
+    const [code, , value] = thrown(() => measureSideband(x, null, fs, { toneHz: 700, offsetHz: 500 }));
+    expect([code, value]).toEqual(['INVALID_ARGUMENT', 500]);
+    expect(thrown(() => measureSideband(x, x, fs, { toneHz: 700, offsetHz: 1500 }))[2]).toBe(1500);
+  });
+  it('captureLength: the two lengths of a mismatched I/Q pair', () => {
+    expect(thrown(() => captureLength({ i: [1, 2], q: [1] }))[2]).toEqual([2, 1]);
+  });
+});
+
+describe('measureSideband: the unwanted tone is sought only as far as a frequency error can move it', () => {
+  it('a stronger spur 100 Hz beyond the unwanted tone is not taken for it', () => {
+    // I/Q, tone on its nominal 1000 Hz (no frequency error), no carrier: the unwanted tone (−40 dBc)
+    // at −1000 Hz and an unrelated spur (−30 dBc) at −1100 Hz. The suppression read is 40 dB.
+    const len = 4096;
+    const parts: [number, number][] = [
+      [0.5, 1000],
+      [0.005, -1000],
+      [0.0158, -1100],
+    ];
+    const i = new Float64Array(len);
+    const q = new Float64Array(len);
+    for (let n = 0; n < len; n++) {
+      for (const [a, hz] of parts) {
+        i[n]! += a * Math.cos((2 * Math.PI * hz * n) / fs + 0.3);
+        q[n]! += a * Math.sin((2 * Math.PI * hz * n) / fs + 0.3);
+      }
+    }
+    const r = measureSideband(i, q, fs, { toneHz: 1000 });
+    expect(r.unwanted.frequencyHz).toBeCloseTo(-1000, 1);
+    expect(r.sidebandSuppressionDb).toBeCloseTo(40, 1);
   });
 });

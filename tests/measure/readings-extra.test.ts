@@ -6,6 +6,7 @@ import { describe, expect, it } from 'vitest';
 import { isOrthotoneError } from '../../src/core/errors.js';
 import { measureSideband } from '../../src/measure/sideband.js';
 import { captureLength } from '../../src/measure/signal.js';
+import { DEFAULT_SPECTRUM_OPTIONS, planFrames } from '../../src/measure/spectrum.js';
 import { measureTones } from '../../src/measure/tones.js';
 import { measureTwoTone } from '../../src/measure/two-tone.js';
 
@@ -153,5 +154,22 @@ describe('measureSideband: the unwanted tone is sought only as far as a frequenc
     const r = measureSideband(i, q, fs, { toneHz: 1000 });
     expect(r.unwanted.frequencyHz).toBeCloseTo(-1000, 1);
     expect(r.sidebandSuppressionDb).toBeCloseTo(40, 1);
+  });
+});
+
+describe('planFrames: Welch averages when frames overlap more than once', () => {
+  it('two rectangular frames at 75 % overlap: only the one pair of frames counts', () => {
+    // Rectangular frames overlapping by N − d correlate as ρ(d) = 1 − d/N (exact for the discrete
+    // window). K = 2 frames a quarter frame apart: K_eff = K / (1 + 2·(1 − 1/K)·ρ(N/4)²) (Welch 1967)
+    // = 2 / (1 + 0.75²) = 1.28; lags of two and three hops have no pair of frames to correlate.
+    const n = 1024;
+    const p = planFrames(n + n / 4, 48000, false, {
+      ...DEFAULT_SPECTRUM_OPTIONS,
+      window: 'rectangular',
+      frameLength: n,
+      overlap: 0.75,
+    });
+    expect([p.frames, p.hop]).toEqual([2, 256]);
+    expect(p.equivalentAverages).toBeCloseTo(2 / (1 + 0.75 ** 2), 12);
   });
 });

@@ -13,6 +13,7 @@ export const SCOPES = {
       'tests/measure/measure-edges.test.ts',
       'tests/measure/peaks.test.ts',
       'tests/measure/readings-edges.test.ts',
+      'tests/measure/readings-extra.test.ts',
       'tests/measure/readings-light.test.ts',
       'tests/measure/readings-more.test.ts',
       'tests/measure/sideband-light.test.ts',

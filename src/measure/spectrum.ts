@@ -276,9 +276,10 @@ export function computeSpectrum(
   const spec = new Float64Array(2 * fftSize);
   const bins = complex ? fftSize : fftSize / 2 + 1;
   const power = new Float64Array(bins);
+  // Each frame overwrites the first n samples (2n values for I/Q); the zero padding after them is
+  // never written, so the buffer needs no clearing between frames.
   for (let m = 0; m < frames; m++) {
     const s = m * hop;
-    frame.fill(0);
     if (complex) {
       const { i, q } = capture;
       for (let k = 0; k < n; k++) {

@@ -6,7 +6,7 @@ import { describe, expect, it } from 'vitest';
 import { isOrthotoneError } from '../../src/core/errors.js';
 import { measureSideband } from '../../src/measure/sideband.js';
 import { captureLength } from '../../src/measure/signal.js';
-import { DEFAULT_SPECTRUM_OPTIONS, planFrames } from '../../src/measure/spectrum.js';
+import { DEFAULT_SPECTRUM_OPTIONS, floorNear, planFrames } from '../../src/measure/spectrum.js';
 import { measureTones } from '../../src/measure/tones.js';
 import { measureTwoTone } from '../../src/measure/two-tone.js';
 
@@ -171,5 +171,29 @@ describe('planFrames: Welch averages when frames overlap more than once', () => 
     });
     expect([p.frames, p.hop]).toEqual([2, 256]);
     expect(p.equivalentAverages).toBeCloseTo(2 / (1 + 0.75 ** 2), 12);
+  });
+});
+
+describe('floorNear: the exclusion edge', () => {
+  it('a bin exactly excludeHz from an excluded frequency is left out', () => {
+    // A hand-made real spectrum, bins 10 Hz apart (0…400 Hz), K = 1 (median = ln 2 · mean): bins 10…30
+    // hold k + 1, every other bin 1000 + k. Around 200 Hz ± 100 Hz with 200 Hz excluded ± 30 Hz, bins
+    // 17…23 go (170 and 230 Hz are exactly 30 Hz away), leaving 14 < 16 bins, so the whole spectrum is
+    // used: bins 1…39 less 17…23, 14 small values and 18 large ones, median (1002 + 1003)/2.
+    const values = Array.from({ length: 41 }, (_, k) => (k >= 10 && k <= 30 ? k + 1 : 1000 + k));
+    const s = {
+      ...planFrames(4096, 48000, false, {
+        ...DEFAULT_SPECTRUM_OPTIONS,
+        window: 'rectangular',
+        frameLength: 4096,
+      }),
+      fftSize: 80,
+      binHz: 10,
+      equivalentAverages: 1,
+      power: Float64Array.from(values),
+    };
+    expect(floorNear(s, 200, 100, [200], 30)).toBeCloseTo(1002.5 / Math.LN2, 9);
+    // ± 29 Hz keeps 170 and 230 Hz: 16 bins in the span, median (18 + 24)/2.
+    expect(floorNear(s, 200, 100, [200], 29)).toBeCloseTo(21 / Math.LN2, 9);
   });
 });

@@ -4,6 +4,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { isOrthotoneError } from '../../src/core/errors.js';
+import { createRng } from '../../src/core/rng.js';
 import { measureSideband } from '../../src/measure/sideband.js';
 import { captureLength } from '../../src/measure/signal.js';
 import { DEFAULT_SPECTRUM_OPTIONS, floorNear, planFrames } from '../../src/measure/spectrum.js';
@@ -195,5 +196,26 @@ describe('floorNear: the exclusion edge', () => {
     expect(floorNear(s, 200, 100, [200], 30)).toBeCloseTo(1002.5 / Math.LN2, 9);
     // ± 29 Hz keeps 170 and 230 Hz: 16 bins in the span, median (18 + 24)/2.
     expect(floorNear(s, 200, 100, [200], 29)).toBeCloseTo(21 / Math.LN2, 9);
+  });
+});
+
+describe('measureTones: options given as undefined take their defaults', () => {
+  it('refineAboveFloorDb and subtractFloor undefined read as the defaults (15 dB, subtract)', () => {
+    // A tone 10 dB above the noise per bin: with the floor subtracted it reads lower than without.
+    const sigma = 1e-3;
+    const rng = createRng(9);
+    const x = Float64Array.from(
+      { length: 4096 },
+      (_, n) => 0.01 * Math.sin((2 * Math.PI * 3000 * n) / fs) + sigma * rng.normal(),
+    );
+    const [dflt] = measureTones(x, fs, [3000], { frameLength: 256 });
+    const [undef] = measureTones(x, fs, [3000], {
+      frameLength: 256,
+      refineAboveFloorDb: undefined,
+      subtractFloor: undefined,
+    });
+    expect(undef).toEqual(dflt);
+    const [raw] = measureTones(x, fs, [3000], { frameLength: 256, subtractFloor: false });
+    expect(raw!.levelDbfs).toBeGreaterThan(dflt!.levelDbfs);
   });
 });

@@ -8,7 +8,7 @@ import { createRng } from '../../src/core/rng.js';
 import { measureSideband } from '../../src/measure/sideband.js';
 import { captureLength } from '../../src/measure/signal.js';
 import { DEFAULT_SPECTRUM_OPTIONS, floorNear, planFrames } from '../../src/measure/spectrum.js';
-import { measureTones } from '../../src/measure/tones.js';
+import { createToneReader, measureTones } from '../../src/measure/tones.js';
 import { measureTwoTone } from '../../src/measure/two-tone.js';
 
 const fs = 48000;
@@ -217,5 +217,19 @@ describe('measureTones: options given as undefined take their defaults', () => {
     expect(undef).toEqual(dflt);
     const [raw] = measureTones(x, fs, [3000], { frameLength: 256, subtractFloor: false });
     expect(raw!.levelDbfs).toBeGreaterThan(dflt!.levelDbfs);
+  });
+});
+
+describe('createToneReader: checked when created', () => {
+  const x = new Float64Array(4096);
+  it('every feature is checked against Nyquist before any reading', () => {
+    expect(thrown(() => createToneReader(x, fs, [1000, 30000]))[1]).toMatch(
+      /^tone 30000 Hz is outside 0…24000 Hz/,
+    );
+  });
+  it('the sample rate is checked before the tones are compared with its Nyquist', () => {
+    expect(thrown(() => createToneReader(x, 100, [1000]))[1]).toBe(
+      'sampleRate 100 Hz is out of range: use a value from 1000 to 1000000 Hz',
+    );
   });
 });

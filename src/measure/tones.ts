@@ -222,8 +222,10 @@ export function createToneReader(
   const data: Capture = isIqCapture(capture) ? { i: f64(capture.i), q: f64(capture.q) } : f64(capture);
   const half = WINDOW_MAIN_LOBE_HALF_WIDTH_BINS[spectrum.window];
   const res = spectrum.resolutionHz;
+  // In a real capture a feature's mirrors (−f, fs − f) need no entry of their own: the part of the
+  // spectrum within excludeHz of them (0…excludeHz − f, fs − f − excludeHz…fs/2) lies within excludeHz
+  // of the feature itself.
   const exclude: number[] = [...features, 0];
-  if (!complex) for (const f of features) exclude.push(-f, sampleRate - f);
   const excludeHz = (half + 1) * res;
   const spanHz = Math.max(64 * res, 8 * excludeHz);
   const nyq = sampleRate / 2;

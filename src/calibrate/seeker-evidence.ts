@@ -53,7 +53,8 @@ export function startLevel(st: SeekerState): number {
   const kept = at.filter((r) => (r.weight ?? 1) > 0);
   if (kept.length > 0) return Math.min(...kept.map((r) => r.db));
   if (st.fit) return surfaceDb(st.fit.surface, st.o.start[0], st.o.start[1]);
-  return at.length > 0 ? Math.min(...at.map((r) => r.db)) : st.startDb;
+  // No fit: no reading has a weight yet, so every reading of the start was kept (above); none was read.
+  return st.startDb;
 }
 
 /**
@@ -86,9 +87,9 @@ export function curvatureBound(st: SeekerState): number {
  */
 export function confirmed(st: SeekerState, c: readonly [number, number]): boolean {
   if (samePoint(c, st.o.start)) return true;
+  // A start at or below the floor leaves low ≤ 0, which no reading can bound (support stays 0 below).
   const low = dbToPow(startLevel(st) - 2 * st.sigma) - floorPower(st);
-  if (!(low > 0)) return false;
-  const useFit = st.fit !== undefined && trusted(st);
+  const useFit = trusted(st); // never without a fit
   if (useFit) {
     const s0 = surfaceDb(st.fit!.surface, st.o.start[0], st.o.start[1]);
     if (!(surfaceDb(st.fit!.surface, c[0], c[1]) <= s0 - 3 * st.sigma)) return false;
@@ -124,7 +125,7 @@ export function supportOf(st: SeekerState, c: readonly [number, number], low: nu
   for (const r of okReadings(st)) {
     if (samePoint(r.point, st.o.start)) continue;
     if ((r.weight ?? 1) < 0.5) continue; // rejected or down-weighted by the fit
-    if (r.residualDb !== undefined && r.residualDb < -3 * st.sigma) continue; // implausibly low
+    if ((r.residualDb ?? 0) < -3 * st.sigma) continue; // implausibly low
     const d = Math.hypot(r.point[0] - c[0], r.point[1] - c[1]);
     const bound = Math.sqrt(dbToPow(r.db + 2 * st.sigma)) + (d > 0 ? root * d : 0);
     if (bound * bound <= low) support++;
@@ -169,12 +170,11 @@ export function provisional(st: SeekerState): SeekerBest {
  * @throws never
  */
 export function best(st: SeekerState): SeekerBest {
-  const ok = okReadings(st);
-  if (ok.length === 0) return { point: [...st.o.start], levelDb: Number.NaN, source: 'start' };
+  // With no reading this ends on the start at an unknown level (startLevel is then NaN).
   const p = provisional(st);
   if (p.source !== 'start' && confirmed(st, p.point)) return p;
   // The provisional choice is not shown to beat the start: the lowest kept readings that are.
-  const kept = ok
+  const kept = okReadings(st)
     .filter((r) => (r.weight ?? 1) > 0 && !samePoint(r.point, st.o.start) && !samePoint(r.point, p.point))
     .sort((a, b) => a.db - b.db)
     .slice(0, 4);

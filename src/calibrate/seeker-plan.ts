@@ -33,6 +33,7 @@ import {
  * @throws never
  */
 export function checkStop(st: SeekerState): void {
+  // Stryker disable next-line ConditionalExpression: its one caller, tell(), refuses a stopped seeker first
   if (st.stopReason) return;
   if (st.readings.length >= st.o.maxReadings) {
     st.stopReason = 'budget';
@@ -46,6 +47,7 @@ export function checkStop(st: SeekerState): void {
     st.stopReason = 'trim-inactive';
     return;
   }
+  // Stryker disable next-line ConditionalExpression,LogicalOperator,StringLiteral: no fit exists before the axis probes end (refit waits for an empty queue), so the next line returns too
   if (st.queue.length > 0 || st.status.includes('unknown')) return;
   const e = estimate(st);
   if (!e || !trusted(st) || !st.lastJump) return;
@@ -67,7 +69,8 @@ export function checkStop(st: SeekerState): void {
   ) {
     // A floor within 20 dB of a start read once may be an outlier's doing (a start read high makes
     // a flat stretch look like a null): read the start again before believing it.
-    if (e.floorDb > st.startDb - 20 && startReadsKept(st) < 2 && st.readings.length < st.o.maxReadings) {
+    // (A reading is left: the budget stop above has not fired.)
+    if (e.floorDb > st.startDb - 20 && startReadsKept(st) < 2) {
       st.rereadStart = true;
       return;
     }
@@ -77,14 +80,15 @@ export function checkStop(st: SeekerState): void {
   // Quantised trims: stop once the null is located to a fraction of each axis's own step (the
   // finer axis sets the pace), so rounding it picks the best grid point.
   const [q0, q1] = st.o.step;
-  // A null near the middle between two grid points is read on until its side is clear.
+  // A null near the middle between two grid points is read on until its side is clear. A continuous
+  // axis that acts (q = 0) is never done (sd < 0 cannot hold), so continuous trims never stop here.
   const axisDone = (q: number, v: number, j: 0 | 1): boolean => {
     if (st.status[j] === 'inactive') return true;
     const sd = Math.sqrt(v);
     const frac = e.centre[j] / q - Math.floor(e.centre[j] / q);
-    return q > 0 && sd < 0.3 * q && Math.abs(frac - 0.5) * q > 1.5 * sd;
+    return sd < 0.3 * q && Math.abs(frac - 0.5) * q > 1.5 * sd;
   };
-  if ((q0 > 0 || q1 > 0) && axisDone(q0, e.centreCov[0], 0) && axisDone(q1, e.centreCov[2], 1)) {
+  if (axisDone(q0, e.centreCov[0], 0) && axisDone(q1, e.centreCov[2], 1)) {
     st.stopReason = 'resolution';
   }
 }

@@ -9,7 +9,6 @@ import {
   closeSync,
   fsyncSync,
   openSync,
-  realpathSync,
   renameSync,
   statfsSync,
   statSync,
@@ -89,11 +88,11 @@ export function writeFileAtomic(path: string, data: string | Uint8Array): void {
   }
 }
 
-/** Identity of an existing file: device and inode, or undefined when it does not exist. */
-function identity(path: string): { key: string; real: string } | undefined {
+/** Identity of an existing file (symbolic links followed): `device:inode`, or undefined when it does not exist. */
+function identity(path: string): string | undefined {
   try {
     const s = statSync(path);
-    return { key: `${s.dev}:${s.ino}`, real: realpathSync(path) };
+    return `${s.dev}:${s.ino}`;
   } catch {
     return undefined;
   }
@@ -114,16 +113,11 @@ export function assertDistinctFiles(
 ): void {
   const keyOf = (path: string): string => {
     const id = identity(path);
-    if (id) return id.key;
-    // A file that does not exist yet: its real folder plus its name.
-    let dir = resolve(dirname(path));
-    try {
-      dir = realpathSync(dir);
-    } catch {
-      // folder missing: the write will report it
-    }
-    const dirId = identity(dir);
-    return `${dirId?.key ?? dir}/${basename(path)}`;
+    if (id !== undefined) return id;
+    // A file that does not exist yet: its folder's identity (links followed) plus its name; a
+    // folder that does not exist either (the write will report it): its resolved path.
+    const dir = resolve(dirname(path));
+    return `${identity(dir) ?? dir}/${basename(path)}`;
   };
   const seen: Array<{ name: string; path: string; key: string; isInput: boolean }> = [];
   for (const [name, path] of inputs)
@@ -144,21 +138,37 @@ export function assertDistinctFiles(
   }
 }
 
+/** The figures of a file system that {@link checkFreeSpace} reads (as `statfs(2)` gives them). */
+export interface FreeSpaceFigures {
+  /** Blocks free to an unprivileged user. */
+  bavail: number;
+  /** Block size, bytes. */
+  bsize: number;
+}
+
 /**
  * Refuses, before any work, a write that cannot fit in the free space of the destination's file
  * system (a long render would otherwise run for minutes and then fail).
+ * Method: free bytes = available blocks × block size, as `statfs(2)` reports them (`f_bavail`,
+ * `f_bsize`; Linux statfs(2), POSIX `fstatvfs()`).
  * @param path destination file.
  * @param bytes bytes the file will take.
  * @param option the option that named it, for the message.
+ * @param statfs reads a folder's figures (default Node's `statfsSync`; tests pass a stand-in disk).
  * @throws {OrthotoneError} WRITE_FAILED naming the option, the size needed and the space free.
  */
-export function checkFreeSpace(path: string, bytes: number, option: string): void {
-  let free: number;
+export function checkFreeSpace(
+  path: string,
+  bytes: number,
+  option: string,
+  statfs: (dir: string) => FreeSpaceFigures = statfsSync,
+): void {
+  let free = Number.POSITIVE_INFINITY;
   try {
-    const s = statfsSync(dirname(resolve(path)));
+    const s = statfs(dirname(resolve(path)));
     free = s.bavail * s.bsize;
   } catch {
-    return; // the folder's own error is reported when the file is opened
+    // no figures (a missing folder): its own error is reported when the file is opened
   }
   if (bytes > free) {
     const gb = (x: number): string =>

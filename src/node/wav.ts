@@ -149,9 +149,9 @@ export function parseWavHeader(
   let ds64Data: number | undefined;
   let fmt: { tag: number; channels: number; rate: number; align: number; bits: number } | undefined;
   let o = 12;
-  let chunks = 0;
+  // Each chunk moves o on by at least 8 bytes, so the walk ends within head.length / 8 steps
+  // whatever the chunk count (RIFF sets no limit on it).
   while (o + 8 <= head.length) {
-    if (++chunks > 10_000) break;
     const id = tag(head, o);
     const size = dv.getUint32(o + 4, true);
     if (id === 'ds64' && size >= 24) {
@@ -233,9 +233,18 @@ export function parseWavHeader(
   );
 }
 
-/** Reverses the bytes of each `width`-byte word in place (for a big-endian host). */
-function swapBytes(b: Uint8Array, width: number, n: number): void {
-  if (width === 1) return;
+/**
+ * Reverses the bytes of each whole `width`-byte word in the first `n` bytes of `b`, in place: a
+ * little-endian word becomes big-endian and back (used on a big-endian host, since WAV data is
+ * little-endian; RIFF, Microsoft/IBM 1991). A trailing part-word is left as it is. Internal to the
+ * WAV module (not in `orthotone/node`); exported for its tests.
+ * @param b the bytes.
+ * @param width word size, bytes (1 leaves `b` unchanged).
+ * @param n bytes to treat.
+ * @throws never
+ */
+export function swapBytes(b: Uint8Array, width: number, n: number): void {
+  // A 1-byte word has nothing to swap: the inner loop does not run (a = z).
   for (let o = 0; o + width <= n; o += width) {
     for (let a = o, z = o + width - 1; a < z; a++, z--) {
       const t = b[a]!;
@@ -494,7 +503,7 @@ function headerBytes(
     dv.setBigUint64(20, BigInt(riffSize), true);
     dv.setBigUint64(28, BigInt(dataBytes), true);
     dv.setBigUint64(36, BigInt(frames), true);
-    dv.setUint32(44, 0, true);
+    // bytes 44–47, the table length, stay 0 (no table): the buffer starts zeroed.
   }
   let o = 48;
   put(o, 'fmt ');
@@ -505,7 +514,7 @@ function headerBytes(
   dv.setUint32(o + 16, fs * nc * (bits / 8), true);
   dv.setUint16(o + 20, nc * (bits / 8), true);
   dv.setUint16(o + 22, bits, true);
-  if (float) dv.setUint16(o + 24, 0, true);
+  // A float fmt chunk ends with cbSize = 0 (bytes o + 24 … 25), left zero from the fresh buffer.
   o += 8 + fmtSize;
   if (float) {
     put(o, 'fact');
@@ -726,9 +735,8 @@ export function createWavWriter(
       if (finished) fail('close after close or abort');
       try {
         if (dataBytes % 2 === 1) sink.write(fd, new Uint8Array(1), 1, headLen + dataBytes);
-        const head = headerBytes(nc, fs, enc, dataBytes, frames, rf64Above);
-        if (head.length !== headLen) throw new Error('internal: header length changed');
-        sink.write(fd, head, headLen, 0);
+        // The header's length depends on the encoding only, so it fits the room left at the start.
+        sink.write(fd, headerBytes(nc, fs, enc, dataBytes, frames, rf64Above), headLen, 0);
         target.commit();
         finished = true;
       } catch (e) {
@@ -775,7 +783,8 @@ export function encodeWav(
   const width = encodingLayout(encoding).bits / 8;
   const dataBytes = n * channels.length * width;
   const head = headerBytes(channels.length, sampleRate, encoding, dataBytes, n);
-  const out = new Uint8Array(new ArrayBuffer(head.length + dataBytes + (dataBytes % 2) + 8), 0);
+  // Header, data, and the pad byte an odd-sized data chunk takes (left zero).
+  const out = new Uint8Array(head.length + dataBytes + (dataBytes % 2));
   out.set(head, 0);
   const st = { clipped: 0, over: 0, peak: 0 };
   const block = new Uint8Array(new ArrayBuffer(BLOCK_FRAMES * channels.length * width + 8));
@@ -787,7 +796,7 @@ export function encodeWav(
     at += bytes;
   }
   return {
-    bytes: out.subarray(0, head.length + dataBytes + (dataBytes % 2)),
+    bytes: out,
     clippedSamples: st.clipped,
     overFullScale: st.over,
     peak: st.peak,

@@ -36,11 +36,16 @@ export const SCOPES = {
     ],
   },
   seeker: {
-    // The null seeker's evidence rules (seeker-evidence.ts) and its stop rules (checkStop, lines 35–89 of
+    // The null seeker's evidence rules (seeker-evidence.ts) and its stop rules (checkStop, lines 35–93 of
     // seeker-plan.ts), as split by issue 9's rewrite. trim-calibration.test.ts (54 s) is left out: too
     // slow per mutant.
-    mutate: ['src/calibrate/seeker-evidence.ts', 'src/calibrate/seeker-plan.ts:35-89'],
-    tests: ['tests/calibrate/null-seeker.test.ts', 'tests/calibrate/target-stop.test.ts'],
+    mutate: ['src/calibrate/seeker-evidence.ts', 'src/calibrate/seeker-plan.ts:35-93'],
+    tests: [
+      'tests/calibrate/null-seeker.test.ts',
+      'tests/calibrate/target-stop.test.ts',
+      'tests/calibrate/seeker-evidence.test.ts',
+      'tests/calibrate/seeker-stop.test.ts',
+    ],
   },
 
   remez: {

@@ -5,9 +5,12 @@
  * (`rename()`, `<errno.h>`).
  */
 import {
+  closeSync,
   existsSync,
+  fstatSync,
   mkdirSync,
   mkdtempSync,
+  openSync,
   readdirSync,
   readFileSync,
   rmSync,
@@ -17,7 +20,8 @@ import {
 } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { basename, dirname, join } from 'node:path';
-import { afterAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { isOrthotoneError } from '../../src/core/errors.js';
 import {
   assertDistinctFiles,
   checkFreeSpace,
@@ -28,6 +32,7 @@ import {
   writeFileSet,
 } from '../../src/node/files.js';
 import { expectOrthotoneError } from '../support/errors.js';
+import { canListDescriptors, descriptorsUnder, mountSmallDisk, unmountSmallDisk } from './disk.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'orthotone-files-unit-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -66,37 +71,74 @@ describe('temporaryPathFor', () => {
 });
 
 describe('checkFreeSpace', () => {
-  it('passes a size the disk holds and refuses one it cannot, naming the option, sizes and fix', () => {
+  /** A stand-in disk with the given statfs figures, recording the folder it was asked about. */
+  const disk = (bavail: number, bsize: number) => {
+    const asked: string[] = [];
+    const statfs = (d: string) => {
+      asked.push(d);
+      return { bavail, bsize };
+    };
+    return { asked, statfs };
+  };
+  const refusal = (bytes: number, bavail: number, bsize: number): string => {
+    try {
+      checkFreeSpace('/data/out/x.wav', bytes, '--out', disk(bavail, bsize).statfs);
+    } catch (e) {
+      expect(isOrthotoneError(e, 'WRITE_FAILED')).toBe(true);
+      return (e as Error).message;
+    }
+    return '';
+  };
+
+  it('on the real disk: passes a small file, refuses one larger than the disk, naming the option and fix', () => {
     const s = statfsSync(dir);
     const free = s.bavail * s.bsize;
     expect(() => checkFreeSpace(join(dir, 'a.wav'), 1000, '--out')).not.toThrow();
-    expect(() => checkFreeSpace(join(dir, 'a.wav'), free, '--out')).not.toThrow();
+    // Far beyond the free space, so other writers on this machine cannot change the outcome.
     const e = expectOrthotoneError(
-      () => checkFreeSpace(join(dir, 'a.wav'), free + 1, '--out'),
+      () => checkFreeSpace(join(dir, 'a.wav'), 2 * free + 5e12, '--out'),
       'WRITE_FAILED',
     );
-    expect(e.message).toContain(`--out ${join(dir, 'a.wav')} needs `);
+    expect(e.message).toMatch(
+      new RegExp(
+        `^--out ${join(dir, 'a.wav')} needs \\d+\\.\\d\\d GB but its disk has \\d+\\.\\d+ [kMG]B free: `,
+      ),
+    );
     expect(e.message).toContain('free: shorten the file, choose a smaller encoding, or free space');
   });
-  it('prints sizes in kB, MB or GB by magnitude', () => {
-    const s = statfsSync(dir);
-    const free = s.bavail * s.bsize;
-    const msg = (bytes: number) => {
-      try {
-        checkFreeSpace(join(dir, 'b.wav'), bytes, '--vectors');
-      } catch (e) {
-        return (e as Error).message;
-      }
-      return '';
-    };
-    const huge = msg(free + 5e12);
-    expect(huge).toMatch(/needs \d+\.\d\d GB but its disk has/);
-    // The free figure in the unit its magnitude calls for.
-    const unit = free >= 1e9 ? 'GB' : free >= 1e6 ? 'MB' : 'kB';
-    expect(huge).toMatch(new RegExp(`has \\d+\\.\\d+ ${unit} free`));
+  it("asks about the destination's own folder, resolved from the working directory", () => {
+    const d = disk(1, 1);
+    checkFreeSpace('/data/out/x.wav', 1, '--out', d.statfs);
+    checkFreeSpace('rel/y.csv', 1, '--vectors', d.statfs);
+    expect(d.asked).toEqual(['/data/out', join(process.cwd(), 'rel')]);
   });
-  it('leaves a missing folder to the open that follows (no error here)', () => {
+  it('free space is available blocks × block size: a file of exactly that size fits, one byte more does not', () => {
+    // 250 blocks of 4096 bytes: 1 024 000 bytes free.
+    expect(refusal(1_024_000, 250, 4096)).toBe('');
+    expect(refusal(1_024_001, 250, 4096)).toBe(
+      '--out /data/out/x.wav needs 1.02 MB but its disk has 1.02 MB free: shorten the file, choose a smaller encoding, or free space',
+    );
+  });
+  it('prints each size in kB below 1 MB, MB below 1 GB, GB from 1 GB up (SI units, 1 kB = 1000 bytes)', () => {
+    const free = (msg: string) => /has (.*) free:/.exec(msg)?.[1];
+    const needs = (msg: string) => /needs (.*) but/.exec(msg)?.[1];
+    expect(free(refusal(1e12, 2048, 1))).toBe('2.0 kB');
+    expect(free(refusal(1e12, 999_900, 1))).toBe('999.9 kB');
+    expect(free(refusal(1e12, 1_000_000, 1))).toBe('1.00 MB');
+    expect(free(refusal(1e12, 999_990_000, 1))).toBe('999.99 MB');
+    expect(free(refusal(1e12, 1_000_000_000, 1))).toBe('1.00 GB');
+    expect(free(refusal(1e12, 2_500_000, 4096))).toBe('10.24 GB');
+    expect(needs(refusal(385_000, 64, 1024))).toBe('385.0 kB');
+    expect(needs(refusal(1e6, 64, 1024))).toBe('1.00 MB');
+    expect(needs(refusal(1e9, 64, 1024))).toBe('1.00 GB');
+    expect(needs(refusal(1.5e9, 64, 1024))).toBe('1.50 GB');
+  });
+  it('leaves a folder it cannot ask about to the open that follows (no error here)', () => {
     expect(() => checkFreeSpace(join(dir, 'no-such-folder', 'x', 'y.wav'), 1e30, '--out')).not.toThrow();
+    const broken = () => {
+      throw Object.assign(new Error('ENOENT: no such file or directory'), { code: 'ENOENT' });
+    };
+    expect(() => checkFreeSpace('/nowhere/y.wav', 1e30, '--out', broken)).not.toThrow();
   });
 });
 
@@ -266,5 +308,115 @@ describe('writeFileAtomic and assertDistinctFiles, the cases the CLI tests do no
         ],
       ),
     ).not.toThrow();
+  });
+});
+
+describe('no descriptor left open, no temporary file left (Linux /proc/self/fd, proc(5))', () => {
+  const folder = join(dir, 'fds');
+  mkdirSync(folder);
+  const leftovers = () => readdirSync(folder).filter((n) => n.endsWith('.tmp'));
+
+  it('after writeFileAtomic, a text writer closed or aborted, and a file set', (ctx) => {
+    if (!canListDescriptors) ctx.skip();
+    writeFileAtomic(join(folder, 'a.bin'), new Uint8Array([1, 2, 3]));
+    const w = createTextWriter(join(folder, 'b.csv'));
+    w.write('x,y\n');
+    w.close();
+    const gone = createTextWriter(join(folder, 'c.csv'));
+    gone.write('never kept');
+    gone.abort();
+    writeFileSet(folder, [['d.json', new TextEncoder().encode('{}')]]);
+    expect(descriptorsUnder(folder)).toEqual([]);
+    expect(leftovers()).toEqual([]);
+    expect(readdirSync(folder).sort()).toEqual(['a.bin', 'b.csv', 'd.json']);
+  });
+  it('a second abort does not close a descriptor the process has opened since', (ctx) => {
+    if (!canListDescriptors) ctx.skip();
+    const w = createTextWriter(join(folder, 'e.csv'));
+    w.abort();
+    // The lowest free number is reused: this is very likely the aborted writer's old descriptor.
+    const other = openSync(join(folder, 'a.bin'), 'r');
+    w.abort();
+    expect(fstatSync(other).size).toBe(3);
+    closeSync(other);
+  });
+  it('a rename onto a folder fails: the temporary file beside it is removed', () => {
+    const target = join(folder, 'sub');
+    mkdirSync(target);
+    expectOrthotoneError(() => writeFileAtomic(target, 'x'), 'WRITE_FAILED', /cannot write .*sub/);
+    expect(leftovers()).toEqual([]);
+  });
+});
+
+describe('assertDistinctFiles between files that all exist', () => {
+  it('an old output (to be replaced) that is not the input passes; the input itself does not', () => {
+    const d = join(dir, 'exist');
+    mkdirSync(d);
+    for (const n of ['in.wav', 'out.wav', 'v.csv']) writeFileSync(join(d, n), n);
+    expect(() =>
+      assertDistinctFiles(
+        [['input', join(d, 'in.wav')]],
+        [
+          ['--out', join(d, 'out.wav')],
+          ['--vectors', join(d, 'v.csv')],
+        ],
+      ),
+    ).not.toThrow();
+    expectOrthotoneError(
+      () => assertDistinctFiles([['input', join(d, 'in.wav')]], [['--out', join(d, 'in.wav')]]),
+      'OUTPUT_IS_INPUT',
+    );
+  });
+});
+
+describe('a disk that fills up while writing (a real 64 KiB tmpfs; needs root)', () => {
+  let disk: string | undefined;
+  beforeAll(() => {
+    disk = mountSmallDisk(dir);
+  });
+  afterAll(() => unmountSmallDisk(disk));
+  /** The small disk's folder, or the test is skipped (not root). */
+  const smallDisk = (ctx: { skip: () => void }): string => {
+    if (disk === undefined) ctx.skip();
+    return disk as string;
+  };
+  const big = new Uint8Array(100_000).fill(65);
+  const full = (p: string) => `cannot write ${p}: the disk is full (the previous file, if any, is kept)`;
+
+  it('writeFileAtomic: WRITE_FAILED "disk is full", the old file kept, nothing else left or open', (ctx) => {
+    const mnt = smallDisk(ctx);
+    const p = join(mnt, 'keep.bin');
+    writeFileAtomic(p, 'old');
+    const e = expectOrthotoneError(() => writeFileAtomic(p, big), 'WRITE_FAILED');
+    expect(e.message).toBe(full(p));
+    expect(readFileSync(p, 'utf8')).toBe('old');
+    expect(readdirSync(mnt)).toEqual(['keep.bin']);
+    if (canListDescriptors) expect(descriptorsUnder(mnt)).toEqual([]);
+  });
+  it('createTextWriter: the failing write removes the temporary file and closes it', (ctx) => {
+    const mnt = smallDisk(ctx);
+    const p = join(mnt, 'table.csv');
+    const w = createTextWriter(p);
+    w.write('a,b\n');
+    const e = expectOrthotoneError(() => w.write('x'.repeat(100_000)), 'WRITE_FAILED');
+    expect(e.message).toBe(full(p));
+    expect(readdirSync(mnt)).toEqual(['keep.bin']);
+    if (canListDescriptors) expect(descriptorsUnder(mnt)).toEqual([]);
+  });
+  it('writeFileSet: the second file does not fit, so the first is not replaced either', (ctx) => {
+    const mnt = smallDisk(ctx);
+    writeFileAtomic(join(mnt, 'a.json'), 'old a');
+    const e = expectOrthotoneError(
+      () =>
+        writeFileSet(mnt, [
+          ['a.json', new TextEncoder().encode('new a')],
+          ['b.h', big],
+        ]),
+      'WRITE_FAILED',
+    );
+    expect(e.message).toBe(`${full(join(mnt, 'b.h'))}; nothing of the set was replaced`);
+    expect(readFileSync(join(mnt, 'a.json'), 'utf8')).toBe('old a');
+    expect(readdirSync(mnt).sort()).toEqual(['a.json', 'keep.bin']);
+    if (canListDescriptors) expect(descriptorsUnder(mnt)).toEqual([]);
   });
 });

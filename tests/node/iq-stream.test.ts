@@ -3,6 +3,7 @@ import { createQuadratureGenerator } from '../../src/generate/quadrature-generat
 import { createIqTransformStream, type IqChunk } from '../../src/node/iq-stream.js';
 import { bitDiffs } from '../generate/dft.js';
 import { niemitaloNetwork } from '../generate/reference-networks.js';
+import { expectOrthotoneError } from '../support/errors.js';
 
 async function collect(chunks: Float32Array[], drain = 0): Promise<IqChunk[]> {
   const gen = createQuadratureGenerator(niemitaloNetwork(false, 48000));
@@ -54,6 +55,20 @@ describe('TransformStream mono → I/Q', () => {
     expect(a[1]!.i.some((v) => v !== 0)).toBe(true);
   });
   it('a non-Float32Array chunk errors the stream with a typed error', async () => {
-    await expect(collect([[1, 2, 3] as unknown as Float32Array])).rejects.toThrow(/must be Float32Array/);
+    const e = await collect([[1, 2, 3] as unknown as Float32Array]).catch((x) => x);
+    expect(e).toMatchObject({
+      code: 'INVALID_ARGUMENT',
+      message: 'stream chunks must be Float32Array mono samples',
+    });
+  });
+  it('refuses a drain length that is not a whole number from 0 to 10 000 000, naming the option', () => {
+    const gen = createQuadratureGenerator(niemitaloNetwork(false, 48000));
+    for (const bad of [-1, 2.5, 10_000_001]) {
+      expectOrthotoneError(
+        () => createIqTransformStream(gen, { drainSamples: bad }),
+        'INVALID_ARGUMENT',
+        new RegExp(`^drainSamples ${bad} must be a whole number from 0 to 10000000$`),
+      );
+    }
   });
 });

@@ -158,4 +158,100 @@ describe('parseWavHeader', () => {
       /^h\.wav: no data chunk found within the first 1048576 bytes: the file holds no samples$/,
     );
   });
+
+  it('names "the file" when no name is given', () => {
+    expectOrthotoneError(
+      () => parseWavHeader(new Uint8Array(4), 4),
+      'INVALID_ARGUMENT',
+      /^the file is not a WAV file: it has only 4 bytes$/,
+    );
+  });
+  it('shows exactly the four bytes of a binary start, and refuses big-endian RIFX', () => {
+    const bin = new Uint8Array([0, 1, 2, 255, ...new Array(12).fill(7)]);
+    expectOrthotoneError(
+      () => parseWavHeader(bin, bin.length, 'c.wav'),
+      'INVALID_ARGUMENT',
+      /^c\.wav is not a WAV file: it starts with 0x000102ff, not "RIFF" … "WAVE"$/,
+    );
+    // RIFX is RIFF with big-endian fields (not read here): refused, not misread.
+    const rifx = riff([chunk('fmt ', fmtBody(1, 1, 8000, 16)), data(4)], 'RIFX');
+    expectOrthotoneError(
+      () => parseWavHeader(rifx, rifx.length, 'x.wav'),
+      'INVALID_ARGUMENT',
+      /^x\.wav is not a WAV file: it starts with "RIFX"/,
+    );
+  });
+  it('an empty recording (a data chunk of 0 bytes ending the file) has 0 frames', () => {
+    const b = riff([chunk('fmt ', fmtBody(1, 2, 44100, 16)), data(0)]);
+    expect(b.length).toBe(44); // the canonical 44-byte header and nothing else
+    expect(parseWavHeader(b, b.length)).toMatchObject({ frames: 0, dataOffset: 44 });
+  });
+  it('reads a file of more than 10 000 chunks (RIFF sets no limit on their number)', () => {
+    const many = Array.from({ length: 10_001 }, () => chunk('JUNK', []));
+    const b = riff([...many, chunk('fmt ', fmtBody(1, 1, 8000, 16)), data(6)]);
+    expect(parseWavHeader(b, b.length)).toMatchObject({ frames: 3, dataOffset: b.length - 6 });
+  });
+  it('a ds64 chunk too short for its three sizes is not used: the RF64 file is refused', () => {
+    // EBU Tech 3306: ds64 holds riffSize, dataSize and sampleCount (8 bytes each) before its table.
+    const short = chunk('ds64', [...u64(36), ...u64(24)]);
+    const r = riff(
+      [short, chunk('fmt ', fmtBody(1, 1, 8000, 16)), chunk('data', new Array(24).fill(0), 0xffffffff)],
+      'RF64',
+    );
+    expectOrthotoneError(
+      () => parseWavHeader(r, r.length, 'r.wav'),
+      'INVALID_ARGUMENT',
+      /^r\.wav: an RF64 file without its ds64 chunk$/,
+    );
+  });
+  it('a plain RIFF file with an unknown data length (size field 0xFFFFFFFF) is truncated, not RF64', () => {
+    const b = riff([chunk('fmt ', fmtBody(1, 1, 8000, 16)), chunk('data', new Array(8).fill(0), 0xffffffff)]);
+    expectOrthotoneError(
+      () => parseWavHeader(b, b.length, 's.wav'),
+      'INVALID_ARGUMENT',
+      /^s\.wav: its data chunk claims 4294967295 bytes but the file holds 8 after the header/,
+    );
+    expect(parseWavHeader(b, b.length, 's.wav', { allowTruncated: true })).toMatchObject({
+      frames: 4,
+      rf64: false,
+    });
+  });
+  it('a header that ends inside the ds64 or fmt chunk is refused with a message, never a crash', () => {
+    const ds64 = chunk('ds64', [...u64(0), ...u64(24), ...u64(12), ...u32(0)]);
+    const rf = riff(
+      [ds64, chunk('fmt ', fmtBody(1, 1, 8000, 16)), chunk('data', new Array(24).fill(0), 0xffffffff)],
+      'RF64',
+    );
+    // Cut 10 bytes into the ds64 payload: its sizes are not all there.
+    expectOrthotoneError(
+      () => parseWavHeader(rf.subarray(0, 12 + 8 + 10), rf.length, 'd.wav'),
+      'INVALID_ARGUMENT',
+      /^d\.wav: no fmt chunk found: not a readable WAV file$/,
+    );
+    const pcm = riff([chunk('fmt ', fmtBody(1, 1, 8000, 16)), data(8)]);
+    // Cut 10 bytes into the 16-byte fmt payload.
+    expectOrthotoneError(
+      () => parseWavHeader(pcm.subarray(0, 12 + 8 + 10), pcm.length, 'f.wav'),
+      'INVALID_ARGUMENT',
+      /^f\.wav: no fmt chunk found: not a readable WAV file$/,
+    );
+  });
+  it('says "within the first … bytes" only when the header was cut short of a longer file', () => {
+    const fmt = chunk('fmt ', fmtBody(1, 1, 8000, 16));
+    const b = riff([fmt, chunk('LIST', ascii('INFO')), data(8)]);
+    const listEnd = 12 + fmt.length + 12;
+    // The header ends exactly where the data chunk begins, in a longer file.
+    expectOrthotoneError(
+      () => parseWavHeader(b.subarray(0, listEnd), b.length, 'h.wav'),
+      'INVALID_ARGUMENT',
+      /^h\.wav: no data chunk found within the first 1048576 bytes: the file holds no samples$/,
+    );
+    // The whole file, ending in 4 stray bytes after the fmt chunk: no data chunk, and nothing unread.
+    const stray = new Uint8Array([...riff([fmt]), 1, 2, 3, 4]);
+    expectOrthotoneError(
+      () => parseWavHeader(stray, stray.length, 'h.wav'),
+      'INVALID_ARGUMENT',
+      /^h\.wav: no data chunk found: the file holds no samples$/,
+    );
+  });
 });

@@ -258,8 +258,9 @@ export function createToneReader(
     const k0 = Math.floor((hz - search) / spectrum.binHz);
     const k1 = Math.ceil((hz + search) / spectrum.binHz);
     for (let kk = k0; kk <= k1; kk++) {
+      // For a real spectrum k may fall below 0 or past the last bin: pw[k] is then undefined and never
+      // taken as the strongest (a complex spectrum's index is wrapped into range).
       const k = frequencyBin(spectrum, kk * spectrum.binHz);
-      if (k < 0 || k >= nb) continue;
       const f = binFrequency(spectrum, k);
       if (Math.abs(f - hz) > search + spectrum.binHz / 2) continue;
       if (pw[k]! > bestP) {

@@ -6,7 +6,7 @@ export const SCOPES = {
     // Short-capture tests only: the suites with long captures and many frame lengths
     // (sideband-frames, sideband, tones, tones-leakage, two-tone: up to 262144 samples, a 4-minute dry
     // run here and over 60 s per test instrumented) run in `npm test`; readings-light.test.ts and
-    // sideband-light.test.ts repeat their main checks on 4096–16384 samples. windows.test.ts checks
+    // sideband-light.test.ts repeat their main checks on 2048–16384 samples. windows.test.ts checks
     // src/core only.
     tests: [
       'tests/measure/leakage.test.ts',

@@ -84,6 +84,15 @@ describe('measureTwoTone: products that land on a tone or beyond Nyquist', () =>
       [5, 'high', 7000],
     ]);
   });
+  it('10000 and 11000 Hz in a real capture: 3rd and 5th order products on both sides', () => {
+    // 2·10000 − 11000 = 9000, 2·11000 − 10000 = 12000, 3·10000 − 2·11000 = 8000, 3·11000 − 2·10000 = 13000.
+    const x = real(4096, [
+      [0.3, 10000, 0],
+      [0.3, 11000, 0.5],
+    ]);
+    const r = measureTwoTone(x, fs, [10000, 11000]);
+    expect(r.products.map((p) => Math.round(p.frequencyHz))).toEqual([9000, 12000, 8000, 13000]);
+  });
   it('I/Q: products beyond +fs/2 are left out', () => {
     // Tones 20000 and 23000 Hz: 3rd order at 17000 and 26000 Hz, 5th at 14000 and 29000 Hz.
     const len = 4096;
@@ -217,6 +226,9 @@ describe('measureTones: options given as undefined take their defaults', () => {
     expect(undef).toEqual(dflt);
     const [raw] = measureTones(x, fs, [3000], { frameLength: 256, subtractFloor: false });
     expect(raw!.levelDbfs).toBeGreaterThan(dflt!.levelDbfs);
+    // 10 dB above the floor is not at the floor, with or without subtraction.
+    expect(raw!.atFloor).toBe(false);
+    expect(dflt!.atFloor).toBe(false);
   });
 });
 

@@ -276,9 +276,10 @@ export function computeSpectrum(
   const spec = new Float64Array(2 * fftSize);
   const bins = complex ? fftSize : fftSize / 2 + 1;
   const power = new Float64Array(bins);
+  // Each frame overwrites the first n samples (2n values for I/Q); the zero padding after them is
+  // never written, so the buffer needs no clearing between frames.
   for (let m = 0; m < frames; m++) {
     const s = m * hop;
-    frame.fill(0);
     if (complex) {
       const { i, q } = capture;
       for (let k = 0; k < n; k++) {
@@ -362,7 +363,7 @@ export function powerAt(capture: Capture, plan: FramePlan, window: Float64Array,
  */
 export function gammaMedianToMean(k: number): number {
   const kk = Math.max(k, 1);
-  if (kk <= 1) return Math.LN2;
+  // At K = 1 the series gives 0.6864, below ln 2, so the floor of ln 2 makes it exact there.
   return Math.max(Math.LN2, (kk - 1 / 3 + 8 / (405 * kk)) / kk);
 }
 

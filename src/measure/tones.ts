@@ -75,7 +75,10 @@ export interface ToneReading {
   aboveFloorDb: number;
   /** One standard deviation of `levelDbfs` from the noise, dB (estimated). */
   uncertaintyDb: number;
-  /** True when the frequency was refined; false when read at the nominal frequency. */
+  /**
+   * True when the frequency was refined; false when read at the nominal frequency (always for 0 Hz
+   * in a real capture: DC has no frequency to refine).
+   */
   refined: boolean;
   /** True when the tone is within 3 dB of the floor: the level is then an upper bound. */
   atFloor: boolean;
@@ -219,8 +222,10 @@ export function createToneReader(
   const data: Capture = isIqCapture(capture) ? { i: f64(capture.i), q: f64(capture.q) } : f64(capture);
   const half = WINDOW_MAIN_LOBE_HALF_WIDTH_BINS[spectrum.window];
   const res = spectrum.resolutionHz;
+  // In a real capture a feature's mirrors (−f, fs − f) need no entry of their own: the part of the
+  // spectrum within excludeHz of them (0…excludeHz − f, fs − f − excludeHz…fs/2) lies within excludeHz
+  // of the feature itself.
   const exclude: number[] = [...features, 0];
-  if (!complex) for (const f of features) exclude.push(-f, sampleRate - f);
   const excludeHz = (half + 1) * res;
   const spanHz = Math.max(64 * res, 8 * excludeHz);
   const nyq = sampleRate / 2;
@@ -244,15 +249,18 @@ export function createToneReader(
     let search = ownSearch ?? opts.searchHz ?? half * res;
     search = Math.min(search, nearest / 3);
     const floor = floorNear(spectrum, hz, spanHz, exclude, excludeHz);
-    const mayRefine = typeof t === 'number' || t.refine !== 'never';
+    // DC in a real capture has no frequency to refine: read it at exactly 0 Hz, where a real
+    // capture's power is not doubled (a step off 0 Hz would read a DC level D as 2D).
+    const mayRefine = (typeof t === 'number' || t.refine !== 'never') && (complex || hz !== 0);
     // Locate the strongest bin within the search span.
     let bestK = frequencyBin(spectrum, hz);
     let bestP = -1;
     const k0 = Math.floor((hz - search) / spectrum.binHz);
     const k1 = Math.ceil((hz + search) / spectrum.binHz);
     for (let kk = k0; kk <= k1; kk++) {
+      // For a real spectrum k may fall below 0 or past the last bin: pw[k] is then undefined and never
+      // taken as the strongest (a complex spectrum's index is wrapped into range).
       const k = frequencyBin(spectrum, kk * spectrum.binHz);
-      if (k < 0 || k >= nb) continue;
       const f = binFrequency(spectrum, k);
       if (Math.abs(f - hz) > search + spectrum.binHz / 2) continue;
       if (pw[k]! > bestP) {

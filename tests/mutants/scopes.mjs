@@ -3,7 +3,23 @@
 export const SCOPES = {
   measure: {
     mutate: ['src/measure/**/*.ts', '!src/measure/index.ts'],
-    tests: ['tests/measure/**/*.test.ts'],
+    // Short-capture tests only: the suites with long captures and many frame lengths
+    // (sideband-frames, sideband, tones, tones-leakage, two-tone: up to 262144 samples, a 4-minute dry
+    // run here and over 60 s per test instrumented) run in `npm test`; readings-light.test.ts and
+    // sideband-light.test.ts repeat their main checks on 2048–16384 samples. windows.test.ts checks
+    // src/core only.
+    tests: [
+      'tests/measure/leakage.test.ts',
+      'tests/measure/measure-edges.test.ts',
+      'tests/measure/peaks.test.ts',
+      'tests/measure/readings-edges.test.ts',
+      'tests/measure/readings-extra.test.ts',
+      'tests/measure/readings-light.test.ts',
+      'tests/measure/readings-more.test.ts',
+      'tests/measure/sideband-light.test.ts',
+      'tests/measure/sideband-paths.test.ts',
+      'tests/measure/units.test.ts',
+    ],
   },
   node: {
     // The files the issue names under src/node (WAV, files, I/Q streams); the serial and bridge

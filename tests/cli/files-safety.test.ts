@@ -20,6 +20,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { designNetwork } from '../../src/design/design-network.js';
+import { skipUnless } from '../node/disk.js';
 import { cli, writeTestWav } from '../support/cli.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'orthotone-files-'));
@@ -93,7 +94,7 @@ describe('a full disk', () => {
   });
 
   it('render onto a full disk: one line, the old file kept, no temporary or empty file left', (ctx) => {
-    if (!mounted) ctx.skip();
+    skipUnless(mounted, ctx, 'a 64 KiB tmpfs (mount, as root)');
     const out = join(mnt, 'two.wav');
     const ok = cli(['render', net, '--tone', '1000', '--duration', '0.05', '--out', out]);
     expect(ok.status, ok.stderr).toBe(0);
@@ -109,7 +110,7 @@ describe('a full disk', () => {
   });
 
   it('a write the space check cannot foresee (the disk fills while writing): old file kept', (ctx) => {
-    if (!mounted) ctx.skip();
+    skipUnless(mounted, ctx, 'a 64 KiB tmpfs (mount, as root)');
     // Fill most of the disk after the check would pass: analyze writes text, measured only on write.
     const keep = join(mnt, 'two.wav');
     const filler = join(mnt, 'filler');
@@ -125,7 +126,7 @@ describe('a full disk', () => {
   });
 
   it('start onto a full disk writes its whole set or leaves the old set', (ctx) => {
-    if (!mounted) ctx.skip();
+    skipUnless(mounted, ctx, 'a 64 KiB tmpfs (mount, as root)');
     rmSync(join(mnt, 'two.wav'), { force: true });
     const old = join(mnt, 'network.json');
     writeFileSync(old, 'old set');

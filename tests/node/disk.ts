@@ -6,6 +6,7 @@
 import { execFileSync } from 'node:child_process';
 import { existsSync, mkdirSync, readdirSync, readFileSync, readlinkSync, rmdirSync, rmSync } from 'node:fs';
 import { dirname, join } from 'node:path';
+import { afterAll, beforeAll } from 'vitest';
 
 /** Mount points made by {@link mountSmallDisk}: `…/orthotone-…/small-<pid of the test process>`. */
 const MOUNT_NAME = /\/orthotone-[^/\s]+\/small-(\d+)$/;
@@ -67,6 +68,43 @@ export function unmountSmallDisk(dir: string | undefined): void {
 
 /** True where the process's descriptors can be listed (Linux). */
 export const canListDescriptors = existsSync('/proc/self/fd');
+
+/**
+ * Skips the calling test when `available` is false (`what` names the missing piece), except under
+ * .ci/run (ORTHOTONE_CI=1), which runs as root on Linux: there a missing piece fails the test, so a lost
+ * privilege cannot hide it as a skip.
+ */
+export function skipUnless(available: boolean, ctx: { skip: () => void }, what: string): void {
+  if (available) return;
+  if (process.env.ORTHOTONE_CI === '1') {
+    throw new Error(
+      `${what} is not available, but .ci/run provides it (root on Linux): check the CI machine`,
+    );
+  }
+  ctx.skip();
+}
+
+/** Skips (or, under .ci/run, fails) a test that lists this process's descriptors where it cannot. */
+export function needDescriptors(ctx: { skip: () => void }): void {
+  skipUnless(canListDescriptors, ctx, '/proc/self/fd (Linux)');
+}
+
+/**
+ * Mounts a small disk under `parent()` for the calling `describe` block (unmounted after it) and
+ * returns a getter that gives its folder inside a test, or skips the test where it cannot be mounted
+ * (fails under .ci/run; see {@link skipUnless}).
+ */
+export function useSmallDisk(parent: () => string): (ctx: { skip: () => void }) => string {
+  let disk: string | undefined;
+  beforeAll(() => {
+    disk = mountSmallDisk(parent());
+  });
+  afterAll(() => unmountSmallDisk(disk));
+  return (ctx) => {
+    skipUnless(disk !== undefined, ctx, 'a 64 KiB tmpfs (mount, as root)');
+    return disk as string;
+  };
+}
 
 /**
  * The targets of this process's open descriptors that lie under `dir` (a file already removed

@@ -20,7 +20,7 @@ import {
 } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { basename, dirname, join } from 'node:path';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, describe, expect, it } from 'vitest';
 import { isOrthotoneError } from '../../src/core/errors.js';
 import {
   assertDistinctFiles,
@@ -32,7 +32,7 @@ import {
   writeFileSet,
 } from '../../src/node/files.js';
 import { expectOrthotoneError } from '../support/errors.js';
-import { canListDescriptors, descriptorsUnder, mountSmallDisk, unmountSmallDisk } from './disk.js';
+import { canListDescriptors, descriptorsUnder, needDescriptors, useSmallDisk } from './disk.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'orthotone-files-unit-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -317,7 +317,7 @@ describe('no descriptor left open, no temporary file left (Linux /proc/self/fd, 
   const leftovers = () => readdirSync(folder).filter((n) => n.endsWith('.tmp'));
 
   it('after writeFileAtomic, a text writer closed or aborted, and a file set', (ctx) => {
-    if (!canListDescriptors) ctx.skip();
+    needDescriptors(ctx);
     writeFileAtomic(join(folder, 'a.bin'), new Uint8Array([1, 2, 3]));
     const w = createTextWriter(join(folder, 'b.csv'));
     w.write('x,y\n');
@@ -331,7 +331,7 @@ describe('no descriptor left open, no temporary file left (Linux /proc/self/fd, 
     expect(readdirSync(folder).sort()).toEqual(['a.bin', 'b.csv', 'd.json']);
   });
   it('a second abort does not close a descriptor the process has opened since', (ctx) => {
-    if (!canListDescriptors) ctx.skip();
+    needDescriptors(ctx);
     const w = createTextWriter(join(folder, 'e.csv'));
     w.abort();
     // The lowest free number is reused: this is very likely the aborted writer's old descriptor.
@@ -370,16 +370,8 @@ describe('assertDistinctFiles between files that all exist', () => {
 });
 
 describe('a disk that fills up while writing (a real 64 KiB tmpfs; needs root)', () => {
-  let disk: string | undefined;
-  beforeAll(() => {
-    disk = mountSmallDisk(dir);
-  });
-  afterAll(() => unmountSmallDisk(disk));
-  /** The small disk's folder, or the test is skipped (not root). */
-  const smallDisk = (ctx: { skip: () => void }): string => {
-    if (disk === undefined) ctx.skip();
-    return disk as string;
-  };
+  /** The small disk's folder, or the test is skipped (not root; fails under .ci/run). */
+  const smallDisk = useSmallDisk(() => dir);
   const big = new Uint8Array(100_000).fill(65);
   const full = (p: string) => `cannot write ${p}: the disk is full (the previous file, if any, is kept)`;
 

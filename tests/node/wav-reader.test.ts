@@ -20,7 +20,7 @@ import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { decodeWav, MAX_DECODED_SAMPLES, openWavReader, readWavFile } from '../../src/node/wav.js';
 import { expectOrthotoneError } from '../support/errors.js';
-import { canListDescriptors, descriptorsUnder } from './disk.js';
+import { descriptorsUnder, needDescriptors } from './disk.js';
 import { chunk, fmtBody, riff, sampleBytes } from './riff.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'orthotone-wav-reader-'));
@@ -192,7 +192,7 @@ describe('files that change or are too large', () => {
 
 describe('descriptors (Linux /proc/self/fd)', () => {
   it('none left open after close (twice is harmless), a refused file, or a whole-file read', async (ctx) => {
-    if (!canListDescriptors) ctx.skip();
+    needDescriptors(ctx);
     const p = stereoFile('fd.wav', 16, false, 4);
     const r = openWavReader(p);
     r.close();

@@ -9,7 +9,7 @@
 import { mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, describe, expect, it } from 'vitest';
 import {
   createWavWriter,
   decodeWav,
@@ -22,7 +22,7 @@ import {
   writeWavFile,
 } from '../../src/node/wav.js';
 import { expectOrthotoneError } from '../support/errors.js';
-import { canListDescriptors, descriptorsUnder, mountSmallDisk, unmountSmallDisk } from './disk.js';
+import { canListDescriptors, descriptorsUnder, useSmallDisk } from './disk.js';
 
 const root = mkdtempSync(join(tmpdir(), 'orthotone-wav-writer-'));
 afterAll(() => rmSync(root, { recursive: true, force: true }));
@@ -201,16 +201,8 @@ describe('a disk that refuses bytes', () => {
   });
 
   describe('a real 64 KiB tmpfs (needs root)', () => {
-    let disk: string | undefined;
-    beforeAll(() => {
-      disk = mountSmallDisk(root);
-    });
-    afterAll(() => unmountSmallDisk(disk));
-    /** The small disk's folder, or the test is skipped (not root). */
-    const smallDisk = (ctx: { skip: () => void }): string => {
-      if (disk === undefined) ctx.skip();
-      return disk as string;
-    };
+    /** The small disk's folder, or the test is skipped (not root; fails under .ci/run). */
+    const smallDisk = useSmallDisk(() => root);
     it('a WAV larger than the disk: write() fails "disk is full", the old file kept, nothing left open', async (ctx) => {
       const mnt = smallDisk(ctx);
       const p = join(mnt, 'x.wav');

@@ -1,26 +1,14 @@
-import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { remez, remezExchange } from '../../src/design/remez.js';
 import { expectOrthotoneError } from '../support/errors.js';
+import { loadRemezFixture, type RemezCase } from '../support/remez-fixture.js';
 
 // [C] scipy 1.10.1 scipy.signal.remez, made by tests/fixtures/scipy/gen_remez_exchange.py (command in
 // tests/fixtures/scipy/README.md): designs whose first reference is far from the optimum, the dense
 // grid next to Nyquist, other grid densities and the differentiator's weighting.
-interface ExchangeCase {
-  name: string;
-  numtaps: number;
-  bands: number[];
-  desired: number[];
-  weight?: number[];
-  type: 'bandpass' | 'differentiator' | 'hilbert';
-  fs: number;
-  gridDensity: number;
-  converged: boolean;
-  taps: number[];
-}
-const fixture = JSON.parse(
-  readFileSync(new URL('../fixtures/scipy/remez_exchange.json', import.meta.url), 'utf8'),
-) as { scipy: string; cases: ExchangeCase[] };
+// Cases as in remez_hilbert.json, with the grid density scipy was given.
+type ExchangeCase = RemezCase & { gridDensity: number };
+const fixture = loadRemezFixture<ExchangeCase>('remez_exchange.json');
 
 function scipyCase(name: string): ExchangeCase {
   const c = fixture.cases.find((k) => k.name === name);

@@ -34,7 +34,22 @@ export interface RunningDevice {
 
 /** Starts `DIR/virtual-device ARGS…` and resolves with the pty path from its first line. */
 export function startDevice(dir: string, args: string[] = []): Promise<RunningDevice> {
-  const proc = spawn(join(dir, 'virtual-device'), args, { stdio: ['ignore', 'pipe', 'pipe'] });
+  return startPtyProgram(join(dir, 'virtual-device'), args, 'ignore', 'virtual-device');
+}
+
+/**
+ * Starts a program that makes a pseudo-terminal and prints its device end on its first stdout line
+ * (the virtual device, tests/device/pty-echo.py), and resolves with that path. `stdin` 'pipe' keeps the
+ * program's input open, so a program that ends at end of input ends with the test process. Tracked
+ * for {@link killAllDevices}.
+ */
+export function startPtyProgram(
+  command: string,
+  args: string[],
+  stdin: 'ignore' | 'pipe',
+  label: string,
+): Promise<RunningDevice> {
+  const proc = spawn(command, args, { stdio: [stdin, 'pipe', 'pipe'] });
   started.add(proc);
   const exited = new Promise<void>((r) => proc.once('exit', () => r()));
   proc.once('exit', () => started.delete(proc));
@@ -58,7 +73,7 @@ export function startDevice(dir: string, args: string[] = []): Promise<RunningDe
         });
       }
     });
-    proc.once('exit', (code) => rej(new Error(`virtual-device exited (${code}) before greeting: ${err}`)));
+    proc.once('exit', (code) => rej(new Error(`${label} exited (${code}) before its pty path: ${err}`)));
   });
 }
 

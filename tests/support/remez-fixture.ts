@@ -19,9 +19,12 @@ export interface RemezCase {
   rippleDense?: number;
 }
 
-/** Reads tests/fixtures/scipy/remez_hilbert.json. */
-export function loadRemezFixture(): { scipy: string; cases: RemezCase[] } {
-  return JSON.parse(
-    readFileSync(new URL('../fixtures/scipy/remez_hilbert.json', import.meta.url), 'utf8'),
-  ) as { scipy: string; cases: RemezCase[] };
+/** Reads tests/fixtures/scipy/remez_hilbert.json, or another scipy remez fixture of that folder. */
+export function loadRemezFixture<C extends RemezCase = RemezCase>(
+  file = 'remez_hilbert.json',
+): { scipy: string; cases: C[] } {
+  return JSON.parse(readFileSync(new URL(`../fixtures/scipy/${file}`, import.meta.url), 'utf8')) as {
+    scipy: string;
+    cases: C[];
+  };
 }

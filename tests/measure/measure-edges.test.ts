@@ -6,7 +6,6 @@
  * the messages that name the bad value and the fix.
  */
 import { describe, expect, it } from 'vitest';
-import { isOrthotoneError } from '../../src/core/errors.js';
 import { createWindow, WINDOW_COEFFICIENTS } from '../../src/core/windows.js';
 import { createFft, isPowerOfTwo, nextPowerOfTwo } from '../../src/measure/fft.js';
 import { captureLength, isIqCapture } from '../../src/measure/signal.js';
@@ -23,17 +22,7 @@ import {
   type SpectrumOptions,
   sharedWindow,
 } from '../../src/measure/spectrum.js';
-
-/** [code, message] of the OrthotoneError `fn` throws. */
-const refusal = (fn: () => unknown): [string, string] => {
-  try {
-    fn();
-  } catch (e) {
-    if (isOrthotoneError(e)) return [e.code, e.message];
-    throw e;
-  }
-  throw new Error('did not throw');
-};
+import { refusal } from '../support/errors.js';
 
 const opts = (o: Partial<SpectrumOptions> = {}): SpectrumOptions => ({ ...DEFAULT_SPECTRUM_OPTIONS, ...o });
 

@@ -5,21 +5,12 @@
  * 20·log10 A dBFS) with the scaling of Heinzel, Rüdiger & Schilling 2002.
  */
 import { describe, expect, it } from 'vitest';
-import { isOrthotoneError } from '../../src/core/errors.js';
 import { createRng } from '../../src/core/rng.js';
 import { measureSideband } from '../../src/measure/sideband.js';
 import { leastSpacingHz, measureTones, requireToneFrequencies } from '../../src/measure/tones.js';
 import { measureTwoTone } from '../../src/measure/two-tone.js';
+import { refusal } from '../support/errors.js';
 
-const refusal = (fn: () => unknown): [string, string] => {
-  try {
-    fn();
-  } catch (e) {
-    if (isOrthotoneError(e)) return [e.code, e.message];
-    throw e;
-  }
-  throw new Error('did not throw');
-};
 const fs = 48000;
 const dbfs = (a: number) => 20 * Math.log10(a);
 const real = (len: number, parts: [number, number, number][], noise = 0, seed = 1) => {

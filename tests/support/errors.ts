@@ -21,3 +21,17 @@ export function expectOrthotoneError(
   }
   return expect.unreachable(`expected an OrthotoneError ${code}`);
 }
+
+/**
+ * `[code, message]` of the OrthotoneError `fn()` throws, for comparing whole messages; any other
+ * error is rethrown, and a call that returns fails.
+ */
+export function refusal(fn: () => unknown): [string, string] {
+  try {
+    fn();
+  } catch (e) {
+    if (isOrthotoneError(e)) return [e.code, e.message];
+    throw e;
+  }
+  throw new Error('did not throw');
+}

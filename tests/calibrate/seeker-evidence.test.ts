@@ -5,7 +5,7 @@
  *
  * Readings ON the bowl: with a gain error a (amplitude ratio − 1) and a phase error b (rad) left after the
  * trims, the image relative to the wanted tone is ¼·(a² + b²) for small errors (K. Schmidt, "Phase-Shift
- * Network Analysis and Optimization", QEX Aug 1994 §2: IRR ≈ 4/(ε² + φ²); REFERENCES.md §1), so a
+ * Network Analysis and Optimization", QEX Aug 1994 §2: IRR ≈ 4/(ε² + φ²)), so a
  * setting t in those natural units with the error at t0 reads `10·log10(N + ¼·|t − t0|²)` dB over a
  * reading floor N. Readings OFF the bowl (outliers, a start read high or low, a floor too close to the
  * start, a null outside the trims' range) must not be trusted. The null, floors and outliers are

@@ -4,7 +4,7 @@
  *
  * The bowl: with a gain error a (amplitude ratio − 1) and a phase error b (rad) left after the trims, the
  * image relative to the wanted tone is ¼·(a² + b²) for small errors (K. Schmidt, "Phase-Shift Network
- * Analysis and Optimization", QEX Aug 1994 §2: IRR ≈ 4/(ε² + φ²); REFERENCES.md §1). A trim setting
+ * Analysis and Optimization", QEX Aug 1994 §2: IRR ≈ 4/(ε² + φ²)). A trim setting
  * t = (x, y) in those natural units with the error at t0 therefore reads
  * `10·log10(N + ¼·|t − t0|²)` dB over a reading floor N, plus Gaussian reading noise (seeded). Its floor
  * radius √(N/¼) is where the bowl rises 3 dB above the floor: a seeker that stops on the floor must

@@ -77,7 +77,7 @@ describe('gain and phase trims against the closed-form image rejection', () => {
     const c = Math.cos((phaseDeg * Math.PI) / 180);
     return 10 * Math.log10((1 + 2 * g * c + g * g) / (1 - 2 * g * c + g * g));
   };
-  // Table values computed from that formula (REFERENCES.md §1, [C]).
+  // Table values computed from that formula (computed, not published: K. Schmidt, QEX Aug 1994).
   const table: [number, number, number][] = [
     [0, 1, 41.183],
     [0, -2, 35.162],
@@ -113,7 +113,7 @@ describe('gain and phase trims against the closed-form image rejection', () => {
 
 describe('DC trims and the carrier', () => {
   it('dI = 0.001A, dQ = 0.0005A give a carrier of −59.031 dBc, and the tone keeps its amplitude', () => {
-    // Carrier relative to the tone 20·log10(√(dI² + dQ²)/A) (REFERENCES.md §1, [C]: −59.031 dBc).
+    // Carrier relative to the tone 20·log10(√(dI² + dQ²)/A) (closed form: a DC offset (dI, dQ) is a carrier of amplitude √(dI² + dQ²); computed, not published: −59.031 dBc).
     const a = 0.5;
     const stage = new TrimStage(fs, { trims: { dcI: 0.001 * a, dcQ: 0.0005 * a }, rampSeconds: 0 });
     const { i: ai, q: aq } = analytic(skip + win, f0, a);

@@ -2,7 +2,7 @@
 // Nelder–Mead on the same seeded virtual devices, the same analyzer (reading noise 0.5 dB, floor
 // −70 dBc) and the same budgets. Figures are TRUE suppression from the exciter's noiseless analytic
 // response at the trims each method returns, not the noisy reading. The tone level is not told to
-// the carrier calibration. Published comparison (REFERENCES.md §6 [C]): about 6–7 readings to
+// the carrier calibration. Published comparison (docs/REFERENCES.md §6 [C]): about 6–7 readings to
 // −60 dBc in 90% of trials and a median of −80 dBc after 10 for the fitted paraboloid; coordinate
 // descent about 16 readings and Nelder–Mead about 28 for the same 90% at −60 dBc.
 import { performance } from 'node:perf_hooks';
@@ -363,7 +363,8 @@ export async function run() {
         min: round(q(startCr, 0)),
         max: round(q(startCr, 1)),
       },
-      published: 'REFERENCES.md §6 [C]: 6–7 readings to 60 dB in 90%, median 80 dB after 10; CD ~16, NM ~28',
+      published:
+        'docs/REFERENCES.md §6 [C]: 6–7 readings to 60 dB in 90%, median 80 dB after 10; CD ~16, NM ~28',
     },
     comparison: await compare(devs),
     mismatch16Readings: await mismatch(devs.slice(0, 60), [1, 2, 3]),

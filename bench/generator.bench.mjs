@@ -22,7 +22,7 @@ const SECONDS = 1; // audio processed per timed run
 
 // ---- networks (built from published coefficients, as in tests/generate/reference-networks.ts) ----
 
-// O. Niemitalo's pair (music-dsp, 2001; REFERENCES.md §3): z⁻² sections with c = −a²; the delayed
+// O. Niemitalo's pair (music-dsp, 2001; docs/REFERENCES.md §3): z⁻² sections with c = −a²; the delayed
 // cascade is the Q branch. firstOrder splits each into (−a + z⁻¹)/(1 − a z⁻¹)·(a + z⁻¹)/(1 + a z⁻¹).
 const A1 = [0.6923877778065, 0.9360654322959, 0.988229522686, 0.9987488452737];
 const A2 = [0.4021921162426, 0.856171088242, 0.9722909545651, 0.9952884791278];

@@ -1,7 +1,7 @@
 /**
  * Carrier calibration: nulls the carrier leak with the DC trims, which are added last so they never
  * scale (DESIGN.md §4). With a complex tone of peak amplitude A and DC (dI, dQ), the carrier
- * relative to the tone is `|d − d*|²/A²` (REFERENCES.md §1): a bowl in (dcI, dcQ) of curvature 1/A².
+ * relative to the tone is `|d − d*|²/A²` (docs/REFERENCES.md §1): a bowl in (dcI, dcQ) of curvature 1/A².
  * Callers often do not know A, so unless `toneAmplitude` is given the curvature is estimated from
  * the readings (the first probes are sized for the largest possible tone, A = 1 full scale).
  */
@@ -25,7 +25,7 @@ export interface CarrierCalibrationOptions extends TrimCalibrationOptions {
 /**
  * Axes of the carrier calibration for a given curvature model and, optionally, hardware DC steps
  * and bounds (full-scale units: the seeker's own coordinates). `toneAmplitude` is the tone's peak in
- * full-scale units (curvature 1/A², REFERENCES.md §1); without it the curvature is left to the fit.
+ * full-scale units (curvature 1/A², docs/REFERENCES.md §1); without it the curvature is left to the fit.
  * @throws never: nothing is validated here ({@link calibrateCarrier} checks `toneAmplitude`; the
  *   seeker checks steps and bounds when it is created).
  */

@@ -24,7 +24,7 @@
  * failing that the start is returned. A calibration therefore never ends worse than it began, to
  * within what readings above the floor can show.
  * References: circle intersection from level readings, Hoppenstein, TI SLOA313 (2021); the fitted
- * bowl, its priors and stop rules are this library's own (DESIGN.md §6, REFERENCES.md §6).
+ * bowl, its priors and stop rules are this library's own (DESIGN.md §6, docs/REFERENCES.md §6).
  */
 import { OrthotoneError } from '../core/errors.js';
 import { requireFinite, requireInteger, requirePositive, stripUndefined } from '../core/validate.js';

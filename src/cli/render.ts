@@ -91,7 +91,7 @@ design options (without a network file):
   -h, --help             this help
 `;
 
-/** Complex tone amplitude of I + jQ at `hz` with a Hann window: `|X|/Σw` (REFERENCES.md §4). */
+/** Complex tone amplitude of I + jQ at `hz` with a Hann window: `|X|/Σw` (docs/REFERENCES.md §4). */
 function complexToneAmplitude(
   i: Float32Array,
   q: Float32Array,

@@ -7,7 +7,7 @@
  * including a comprehensive list of window functions and some new flat-top windows", Max-Planck-
  * Institut für Gravitationsphysik, 2002 (referred to below as Heinzel 2002). The figures (noise
  * bandwidth, scallop loss, highest sidelobe) are computed from the samples, not copied, so tests
- * can check them against the published table (REFERENCES.md §4).
+ * can check them against the published table (docs/REFERENCES.md §4).
  */
 import { OrthotoneError } from './errors.js';
 import { requireInteger, requireOneOf } from './validate.js';

@@ -156,7 +156,7 @@ function phaseErrorForSuppression(db: number): number {
   return 2 * Math.atan(10 ** (-db / 20));
 }
 
-/** Suppression, dB, at unity gain and phase error ε (rad). Reference: REFERENCES.md §1 (Schmidt 1994). */
+/** Suppression, dB, at unity gain and phase error ε (rad). Reference: docs/REFERENCES.md §1 (Schmidt 1994). */
 function suppressionForPhaseError(eps: number): number {
   return 20 * Math.log10(Math.abs(1 / Math.tan(Math.abs(eps) / 2)));
 }

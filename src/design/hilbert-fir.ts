@@ -109,7 +109,7 @@ export const MAX_TAPS_LIMIT = 16383;
 
 /**
  * Worst opposite-sideband suppression of a Hilbert FIR with amplitude ripple δ and exact 90°:
- * the Q/I gain g lies in [1 − δ, 1 + δ] and suppression is `(1 + g)/|1 − g|` (REFERENCES.md §1 with
+ * the Q/I gain g lies in [1 − δ, 1 + δ] and suppression is `(1 + g)/|1 − g|` (docs/REFERENCES.md §1 with
  * φ = 0), which is smallest at g = 1 − δ: `20·log10((2 − δ)/δ)` dB. (At g = 1 + δ it is
  * `20·log10((2 + δ)/δ)`, about 0.1 dB better at 45 dB.)
  * @param ripple δ, 0 < δ < 1.

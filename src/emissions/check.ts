@@ -5,7 +5,7 @@
  *
  * Levels: a product's level is kept relative to the PEP of the test signal it was read with, and
  * the PEP-to-mean ratio of that test (0 dB for one steady tone, 3.01 dB for two equal tones:
- * Krauss, Bostian & Raab, Solid State Radio Engineering, p. 509; REFERENCES.md §5). A rule relative
+ * Krauss, Bostian & Raab, Solid State Radio Engineering, p. 509; docs/REFERENCES.md §5). A rule relative
  * to the mean power gets `level re PEP + (PEP − mean)`.
  * Filter: the filter's insertion loss at the product minus its loss at the carrier (the fundamental
  * passes the same filter) is subtracted from the product's level.

@@ -83,7 +83,7 @@ const dbw = (p: number | undefined): number | undefined => (p === undefined ? un
  *   least 43 dB below the mean power of the fundamental (transmitters installed after 1 January
  *   2003); §97.307(e): 30–225 MHz at least 60 dB (the rule's alternative absolute figures for
  *   transmitters of 25 W or less are not modelled, so the 60 dB here may be stricter than the rule).
- *   Source: 47 CFR §97.307(d),(e) (REFERENCES.md §5 [P]).
+ *   Source: 47 CFR §97.307(d),(e) (docs/REFERENCES.md §5 [P]).
  * - `itu-sm329-amateur`: Rec. ITU-R SM.329 §4.2, Table 1 (Category A, which repeats RR Appendix 3
  *   Table II), "amateur services operating below 30 MHz (including with SSB)":
  *   43 + 10·log10(PEP in W) dB below PEP, or 50 dB, whichever is less stringent (from memory; the

@@ -14,7 +14,7 @@
  * Scaling: `C = g/(2π·f_c·R)`, `L = g·R/(2π·f_c)`.
  * Reference: G. L. Matthaei, L. Young, E. M. T. Jones, "Microwave Filters, Impedance-Matching
  * Networks, and Coupling Structures", McGraw-Hill 1964, §4.05 (eqs. 4.05-1, 4.05-2; Tables 4.05-1
- * and 4.05-2); REFERENCES.md §8.
+ * and 4.05-2); docs/REFERENCES.md §8.
  *
  * The response is evaluated by walking the ladder back from the load (node voltage and branch
  * current, the recursion of a continued fraction); the tests check it with an independent ABCD

@@ -84,7 +84,7 @@ function runChain(
  * @returns products with RF frequencies (n·carrier ± tone) and levels in dB re PEP.
  * @throws {OrthotoneError} INVALID_ARGUMENT / INVALID_DOCUMENT for a bad network, trims or tone
  *   (a tone outside 0…0.45·fs).
- * Reference: simulate/exciter.ts (the chain); REFERENCES.md §5 (two-tone PEP) and §8 (mixer
+ * Reference: simulate/exciter.ts (the chain); docs/REFERENCES.md §5 (two-tone PEP) and §8 (mixer
  * harmonics at 1/n).
  */
 export function simulateProducts(o: SimulateProductsOptions): EmissionProduct[] {

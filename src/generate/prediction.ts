@@ -16,7 +16,7 @@ import type { Sideband } from './trim-stage.js';
  * exactly as the generator does (`Hq' = s·A·Hq + B·Hi`, A = g·cos φ, B = g·sin φ, s = −1 for the
  * lower sideband; skew `Hq'·e^{−jω·skew}`), and takes the ratio of the wanted to the unwanted
  * component (`|Hi ± jHq'| / |Hi ∓ jHq'|`; K. Schmidt, QEX Aug 1994 §2). With an ideal network this
- * equals `imageRejectionDb(g, φ)` (REFERENCES.md §1). The correction, if any, is not included.
+ * equals `imageRejectionDb(g, φ)` (docs/REFERENCES.md §1). The correction, if any, is not included.
  * @throws {OrthotoneError} INVALID_ARGUMENT for out-of-range trims or a non-positive frequency.
  */
 export function predictSuppressionDb(
@@ -47,7 +47,7 @@ export function predictSuppressionDb(
 
 /**
  * Carrier relative to a tone from the DC trims, dBc: `20·log10(√(dcI² + dcQ²)/A)`, A the tone's peak
- * amplitude in full-scale units (REFERENCES.md §1, carrier). −Infinity when both DC trims are 0.
+ * amplitude in full-scale units (docs/REFERENCES.md §1, carrier). −Infinity when both DC trims are 0.
  * @throws {OrthotoneError} INVALID_ARGUMENT for a non-positive amplitude or bad trims.
  */
 export function predictCarrierDbc(trims: Partial<Trims>, toneAmplitude: number): number {

@@ -90,7 +90,7 @@ export const DEFAULT_SIDEBAND_OPTIONS = Object.freeze({
  * const i = Float32Array.from({ length: n }, (_, k) => 0.5 * Math.cos((2 * Math.PI * 1000 * k) / fs));
  * const q = Float32Array.from({ length: n }, (_, k) => 0.5 * Math.sin((2 * Math.PI * 1000 * k) / fs + Math.PI / 180));
  * const r = measureSideband(i, q, fs, { toneHz: 1000 });
- * console.log(r.sidebandSuppressionDb.toFixed(1), 'dB'); // about 41.2 dB (REFERENCES.md §1)
+ * console.log(r.sidebandSuppressionDb.toFixed(1), 'dB'); // about 41.2 dB (docs/REFERENCES.md §1)
  * ```
  * @param i I samples, or receiver audio, full-scale units.
  * @param q Q samples, or null for receiver audio.
@@ -100,7 +100,7 @@ export const DEFAULT_SIDEBAND_OPTIONS = Object.freeze({
  *   Nyquist or below 0 Hz in audio — the message names which and the offset that would fit),
  *   CAPTURE_TOO_SHORT, TONES_UNRESOLVED, BUFFER_MISMATCH.
  * Reference: levels per AES17 and Heinzel 2002 (via {@link measureTones}); suppression as in
- * K. Schmidt, QEX Aug 1994 §2 (REFERENCES.md §1).
+ * K. Schmidt, QEX Aug 1994 §2 (docs/REFERENCES.md §1).
  */
 export function measureSideband(
   i: ArrayLike<number>,

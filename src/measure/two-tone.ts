@@ -5,7 +5,7 @@
  *
  * PEP: two tones of peak amplitudes A1, A2 have an envelope that peaks at A1 + A2, so PEP reads as
  * a sine of amplitude A1 + A2: `20·log10(A1 + A2)` dBFS. For equal tones each tone is 6.02 dB
- * below PEP and a product X dB below one tone is X + 6.02 dB below PEP (REFERENCES.md §5;
+ * below PEP and a product X dB below one tone is X + 6.02 dB below PEP (docs/REFERENCES.md §5;
  * Krauss, Bostian & Raab, Solid State Radio Engineering, p. 509: Ppeak = n²·Ptone).
  */
 import { OrthotoneError } from '../core/errors.js';
@@ -63,7 +63,7 @@ export interface TwoToneReading {
  * @param options merged over the tone defaults; `maxOrder` default 5.
  * @throws {OrthotoneError} INVALID_ARGUMENT (not two distinct tones, bad order, tone beyond
  *   Nyquist), CAPTURE_TOO_SHORT, TONES_UNRESOLVED (the tone spacing needs longer frames).
- * Reference: REFERENCES.md §5 (PEP of two equal tones); products at m·f1 − (m−1)·f2, standard
+ * Reference: docs/REFERENCES.md §5 (PEP of two equal tones); products at m·f1 − (m−1)·f2, standard
  * intermodulation arithmetic.
  * @example
  * ```ts

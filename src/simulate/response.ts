@@ -24,7 +24,7 @@
  * Each analog channel is `x̃ = G·HP(f)·LP(f)·e^{−j2πfτ}·x` (codec gain, first-order coupling
  * high-pass `jf/(jf + f_hp)`, first-order low-pass `1/(1 + jf/f_lp)`, skew τ on Q only).
  * References: switching-mixer Fourier analysis as in B. Razavi, RF Microelectronics, 2nd ed., §6
- * (passive mixers), from memory; image rejection K. Schmidt, QEX Aug 1994 §2 (REFERENCES.md §1).
+ * (passive mixers), from memory; image rejection K. Schmidt, QEX Aug 1994 §2 (docs/REFERENCES.md §1).
  */
 import { type Complex, cabs, cadd, cexpj, cmul } from '../core/complex.js';
 import { OrthotoneError } from '../core/errors.js';
@@ -191,7 +191,7 @@ export function responseLevels(r: ToneResponse): {
  * @param frequenciesHz tone frequencies, Hz (> 0).
  * @returns positive dB figures (DESIGN.md §2).
  * @throws {OrthotoneError} INVALID_ARGUMENT for a non-finite frequency.
- * Reference: see the file header; REFERENCES.md §1 for the image-rejection and carrier formulas.
+ * Reference: see the file header; docs/REFERENCES.md §1 for the image-rejection and carrier formulas.
  */
 export function predictedSuppression(
   model: ExciterModel,

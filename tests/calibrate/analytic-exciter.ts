@@ -3,7 +3,7 @@
  * opposite-sideband suppression of a Q path with gain ratio g and phase error φ,
  * IRR = (1 + 2g·cosφ + g²)/(1 − 2g·cosφ + g²) (K. Schmidt, QEX Aug 1994 §2, via
  * core imageRejectionDb), and the carrier of a tone of peak amplitude A with DC (dI, dQ),
- * 20·log10(|d|/A) dBc (REFERENCES.md §1). Readings add a floor and Gaussian noise in dB.
+ * 20·log10(|d|/A) dBc (docs/REFERENCES.md §1). Readings add a floor and Gaussian noise in dB.
  */
 import { createRng, type Rng } from '../../src/core/rng.js';
 import type { Trims } from '../../src/core/trims.js';

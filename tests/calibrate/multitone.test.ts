@@ -22,7 +22,7 @@ const SKEW_BENCH = {
 describe('multi-tone calibration with frequency-dependent imbalance (skew, mismatched corners)', () => {
   it('reaches ≥ 55 dB worst case over 300–3000 Hz where a single-tone calibration falls short', async () => {
     // Invented bench of our own: homebrew-bench parts plus ±2 µs codec skew and ±10% corners on
-    // 20 Hz coupling and 20 kHz anti-imaging filters. REFERENCES.md §6 [C]: skew τ gives phase
+    // 20 Hz coupling and 20 kHz anti-imaging filters. docs/REFERENCES.md §6 [C]: skew τ gives phase
     // error 2πfτ; −60 dBc at 2.7 kHz needs |τ| ≤ 0.12 µs, so one trim cannot hold over the band.
     const tol = SKEW_BENCH;
     const single: number[] = [];

@@ -159,7 +159,7 @@ describe('diagnosis', () => {
   });
 });
 
-describe('baselines (REFERENCES.md §6: coordinate descent ~16 and Nelder–Mead ~28 readings to −60 dBc in 90%)', () => {
+describe('baselines (docs/REFERENCES.md §6: coordinate descent ~16 and Nelder–Mead ~28 readings to −60 dBc in 90%)', () => {
   it('the seeker needs fewer readings than coordinate descent and Nelder–Mead to reach 60 dB', () => {
     const need: Record<string, number[]> = { seeker: [], cd: [], nm: [] };
     for (let i = 0; i < 40; i++) {

@@ -59,7 +59,7 @@ describe('correction filter design', () => {
     // The widely-linear pair must act, at each tone, as the gain/phase trim the model asks for
     // (Anttila, Valkama & Renfors 2008): check the equivalent trims against the model within
     // 0.002 dB and 0.015° across the band (each alone ≥ 75 dB: 10·log10(4/φ²) = 77.6 dB for
-    // φ = 0.015°, REFERENCES.md §1), with taps the generator accepts (plain least squares gave an
+    // φ = 0.015°, docs/REFERENCES.md §1), with taps the generator accepts (plain least squares gave an
     // absolute tap sum of 79 here, which it refuses; the ridge keeps it at 12 or less).
     expect(() => validateCorrection(correction, 63)).not.toThrow();
     for (const f of [300, 500, 1000, 2000, 3000]) {

@@ -37,7 +37,7 @@ const loosePriors = {
 };
 
 describe('the known-curvature bowl against published suppression figures', () => {
-  // REFERENCES.md §1 [C] table from IRR = (1 + 2g cosφ + g²)/(1 − 2g cosφ + g²) (K. Schmidt, QEX Aug
+  // docs/REFERENCES.md §1 [C] table from IRR = (1 + 2g cosφ + g²)/(1 − 2g cosφ + g²) (K. Schmidt, QEX Aug
   // 1994 §2): the bowl ¼[(u − u*)² + (v − v*)²] with u = G cosφ − 1, v = G sinφ is exact in the
   // numerator; it differs only by the wanted-tone factor |1 + G e^{jφ}|²/4, 20·log10((1 + g)/2) dB.
   const bowl = surface({ cx: 0, cy: 0, logN: Math.log(1e-30) });
@@ -58,7 +58,7 @@ describe('the known-curvature bowl against published suppression figures', () =>
     expect(Math.abs(-surfaceDb(bowl, u, v) - published)).toBeLessThan(wanted + 0.01);
     if (gainDb <= 0.1) expect(Math.abs(-surfaceDb(bowl, u, v) - published)).toBeLessThan(0.1);
   });
-  it('carrier bowl: dI = 0.001A, dQ = 0.0005A reads −59.031 dBc (REFERENCES.md §1 [C])', () => {
+  it('carrier bowl: dI = 0.001A, dQ = 0.0005A reads −59.031 dBc (docs/REFERENCES.md §1 [C])', () => {
     const A = 0.3;
     const s = surface({ cx: 0, cy: 0, logC: Math.log(1 / (A * A)), logN: Math.log(1e-30) });
     expect(surfaceDb(s, 0.001 * A, 0.0005 * A)).toBeCloseTo(-59.031, 3);

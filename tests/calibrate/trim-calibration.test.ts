@@ -37,8 +37,8 @@ describe('calibrateSideband on analytic devices (noise 0.5 dB, floor −70 dBc)'
     expect(quantile(at16, 0.1)).toBeGreaterThanOrEqual(65);
   });
 
-  it('matches the published method figures (REFERENCES.md §6 [C]: ~6–7 readings to −60 dBc in 90%, median −80 dBc after 10)', async () => {
-    // Source: REFERENCES.md §6, "Known-curvature paraboloid fit (reading noise σ = 0.5 dB, floor
+  it('matches the published method figures (docs/REFERENCES.md §6 [C]: ~6–7 readings to −60 dBc in 90%, median −80 dBc after 10)', async () => {
+    // Source: docs/REFERENCES.md §6, "Known-curvature paraboloid fit (reading noise σ = 0.5 dB, floor
     // −70 dBc, start about −30 dBc, simulated)". Our starts range 30–45 dB; we allow one reading more.
     const devs = devices(100, 300);
     const reach: number[] = [];
@@ -335,7 +335,7 @@ describe("quantised hardware trims: steps and bounds in the trims' own units", (
   const onGrid = (x: number, step: number) => Math.abs(x / step - Math.round(x / step)) < 1e-9;
   // What a grid of steps (ΔG dB, Δφ°) allows wherever the null lies: the nearest grid point is
   // within half a step on each axis, so suppression ≥ IRR(g = 10^(ΔG/40), φ = Δφ/2) from
-  // IRR = (1 + 2g cosφ + g²)/(1 − 2g cosφ + g²) (K. Schmidt, QEX Aug 1994 §2; REFERENCES.md §1).
+  // IRR = (1 + 2g cosφ + g²)/(1 − 2g cosφ + g²) (K. Schmidt, QEX Aug 1994 §2; docs/REFERENCES.md §1).
   const gridBoundDb = (stepDb: number, stepDeg: number) =>
     imageRejectionDb(10 ** (stepDb / 40), degToRad(stepDeg / 2));
   /** A measure function that records every setting it is asked for. */
@@ -370,7 +370,7 @@ describe("quantised hardware trims: steps and bounds in the trims' own units", (
     const stepDb = 0.05;
     const stepDeg = 0.1;
     const bound = gridBoundDb(stepDb, stepDeg);
-    // REFERENCES.md §1 [C]: 0.05 dB alone gives 50.818 dB; half a step each way is worth more.
+    // docs/REFERENCES.md §1 [C]: 0.05 dB alone gives 50.818 dB; half a step each way is worth more.
     expect(imageRejectionDb(10 ** (0.05 / 20), 0)).toBeCloseTo(50.818, 2);
     expect(bound).toBeGreaterThan(55);
     expect(bound).toBeLessThan(60);
@@ -414,7 +414,7 @@ describe("quantised hardware trims: steps and bounds in the trims' own units", (
         expect(onGrid(t.dcI, step)).toBe(true);
         expect(onGrid(t.dcQ, step)).toBe(true);
       }
-      // REFERENCES.md §1: carrier = 20·log10(|d|/A); the grid leaves at most half a step per axis
+      // docs/REFERENCES.md §1: carrier = 20·log10(|d|/A); the grid leaves at most half a step per axis
       // (the DC gain of each channel scales the step it sees).
       const half = Math.hypot((dev.dcGainI * step) / 2, (dev.dcGainQ * step) / 2);
       const bound = -20 * Math.log10(half / dev.toneAmplitude);

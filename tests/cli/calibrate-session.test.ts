@@ -2,7 +2,7 @@
 // first): profile readings at the trims actually used, --prompt quit / pipe / file / end of input,
 // --measure-command failures, --timeout and the child's process group, writability checked before
 // the first reading, and the parse rules for typed and printed levels. The readings come from the
-// analytic exciter (IRR formula, K. Schmidt, QEX Aug 1994 §2; carrier |d|/A, REFERENCES.md §1).
+// analytic exciter (IRR formula, K. Schmidt, QEX Aug 1994 §2; carrier |d|/A, docs/REFERENCES.md §1).
 import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';

@@ -63,7 +63,7 @@ describe('orthotone calibrate --simulate', () => {
       for (const [k, step] of Object.entries(steps)) expect(onGrid(t[k], step), `${k} ${t[k]}`).toBe(true);
     }
     // A 0.05 dB / 0.1° grid can leave up to 0.025 dB and 0.05° of error: at least about 57 dB
-    // (image-rejection formula, REFERENCES.md §1); the carrier grid of 0.001 FS is finer than its null.
+    // (image-rejection formula, docs/REFERENCES.md §1); the carrier grid of 0.001 FS is finer than its null.
     for (const run of out.runs) expect(run.trueEndDb).toBeGreaterThan(run.trueStartDb + 10);
     expect(cli(['calibrate', '--simulate', '--steps', 'gain=0.1']).stderr).toMatch(
       /--steps "gain=0.1" must be/,

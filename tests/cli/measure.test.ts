@@ -16,7 +16,7 @@ function wav(name: string, channels: Float64Array[], depth = '32f'): string {
   return p;
 }
 
-/** I = A cos ωt + dI, Q = g·A·sin(ωt + φ) + dQ (REFERENCES.md §1). */
+/** I = A cos ωt + dI, Q = g·A·sin(ωt + φ) + dQ (docs/REFERENCES.md §1). */
 function iqFile(
   name: string,
   len: number,
@@ -39,7 +39,7 @@ function iqFile(
 }
 
 describe('orthotone measure', () => {
-  it('--tone --iq --format json: 1° phase error reads 41.183 dB, carrier −59.031 dBc (REFERENCES.md §1)', () => {
+  it('--tone --iq --format json: 1° phase error reads 41.183 dB, carrier −59.031 dBc (docs/REFERENCES.md §1)', () => {
     const f = iqFile('one-degree.wav', 65536, 1000, 0, 1, 0.0005, 0.00025);
     const r = cli(['measure', f, '--tone', '1000', '--iq', '--format', 'json']);
     expect(r.status).toBe(0);

@@ -46,11 +46,11 @@ describe('orthotone render', () => {
     expect(r.code).toBe(0);
     // stdout is the JSON alone; the cautions go to stderr (issue 13: machine output stays clean).
     const json = JSON.parse(r.out);
-    // Two equal tones at −7 dBFS: PEP −0.98 dBFS (REFERENCES.md §5: each tone 6.02 dB below PEP).
+    // Two equal tones at −7 dBFS: PEP −0.98 dBFS (docs/REFERENCES.md §5: each tone 6.02 dB below PEP).
     expect(json.signalLevels.pepDbfs).toBeCloseTo(-7 + 6.0206, 3);
     for (const t of json.realised.tones) {
       expect(t.wantedDbfs).toBeCloseTo(-7, 2);
-      // 1° phase trim alone: 41.183 dB (REFERENCES.md §1); the 511-tap FIR's own error is negligible.
+      // 1° phase trim alone: 41.183 dB (docs/REFERENCES.md §1); the 511-tap FIR's own error is negligible.
       expect(Math.abs(-t.unwantedDbc - imageRejectionDb(1, Math.PI / 180))).toBeLessThan(0.05);
       expect(Math.abs(t.predictedSuppressionDb - 41.183)).toBeLessThan(0.01);
     }
@@ -131,7 +131,7 @@ describe('orthotone render', () => {
     ]);
     expect(r.code).toBe(0);
     const json = JSON.parse(r.out);
-    // REFERENCES.md §1: dI = 0.001A, dQ = 0.0005A → −59.031 dBc (A = 0.5).
+    // docs/REFERENCES.md §1: dI = 0.001A, dQ = 0.0005A → −59.031 dBc (A = 0.5).
     expect(json.realised.tones[0].predictedCarrierDbc).toBeCloseTo(-59.031, 3);
     expect(json.realised.carrierDbfs - json.realised.tones[0].wantedDbfs).toBeCloseTo(-59.031, 2);
     expect(json.realised.tones[0].wantedDbfs).toBeCloseTo(-6.02, 2);

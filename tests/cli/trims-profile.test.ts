@@ -3,7 +3,7 @@
  * trims, sideband and correction (a trim given on the command line wins), simulate applies them to
  * its I/Q input before the virtual exciter; render --tones plays the across-the-band signal.
  * Machine output stays clean: with --format json stdout parses as JSON and the cautions are on stderr.
- * Checks against REFERENCES.md §1 (image rejection of a phase error alone: 1° → 41.183 dB).
+ * Checks against docs/REFERENCES.md §1 (image rejection of a phase error alone: 1° → 41.183 dB).
  */
 import { execFileSync, spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';

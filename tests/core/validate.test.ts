@@ -39,7 +39,7 @@ describe('validateTrims', () => {
 });
 
 describe('imageRejectionDb', () => {
-  // Values: shared REFERENCES.md §1 [C], formula from K. Schmidt, QEX Aug 1994 §2.
+  // Values: shared docs/REFERENCES.md §1 [C], formula from K. Schmidt, QEX Aug 1994 §2.
   it.each([
     [1, 0.1, 61.183],
     [1, 1, 41.183],
@@ -55,7 +55,7 @@ describe('imageRejectionDb', () => {
   ])('gain error %d dB gives %d dB', (gdb, db) => {
     expect(imageRejectionDb(10 ** (gdb / 20), 0)).toBeCloseTo(db, 3);
   });
-  it('combined 0.1 dB and 1° gives 39.614 dB (REFERENCES.md §1 [C])', () => {
+  it('combined 0.1 dB and 1° gives 39.614 dB (docs/REFERENCES.md §1 [C])', () => {
     expect(imageRejectionDb(10 ** (0.1 / 20), Math.PI / 180)).toBeCloseTo(39.614, 3);
   });
   it('35 dBc ↔ 2.0375° (Philips AN2003 eqs. 92–94)', () => {

@@ -64,7 +64,7 @@ const spur = (levelDbPep: number, pepToMeanDb = 0): EmissionProduct => ({
 const run = (products: EmissionProduct[], extra: Partial<Parameters<typeof checkEmissions>[0]> = {}) =>
   checkEmissions({ products, carrierHz: at14, sideband: 'upper', highestAudioHz: 3000, ...extra });
 
-describe('pass and fail around 43 dB (47 CFR §97.307(d), REFERENCES.md §5)', () => {
+describe('pass and fail around 43 dB (47 CFR §97.307(d), docs/REFERENCES.md §5)', () => {
   it('a single-tone spur at −43.2 dBc passes by 0.2 dB; at −42.8 dBc it fails by 0.2 dB', () => {
     const a = run([spur(-43.2)]);
     expect(a.items[0]!).toMatchObject({ limitDbc: -43, reference: 'mean', domain: 'spurious', pass: true });

@@ -158,7 +158,7 @@ describe('orthotone emissions', () => {
 
   it('a two-tone capture: IMD3 30 dB below each tone is 36.02 dB below PEP and 33.01 dB below the mean power', () => {
     // Two equal tones: each is 6.02 dB below PEP, and the mean power is PEP/2 (Krauss, Bostian & Raab,
-    // Solid State Radio Engineering, p. 509; REFERENCES.md §5). Invented capture: tones 0.25 at 700 and
+    // Solid State Radio Engineering, p. 509; docs/REFERENCES.md §5). Invented capture: tones 0.25 at 700 and
     // 1900 Hz, 3rd-order products at −500 and 3100 Hz, 30 dB below one tone.
     const fs = 48000;
     const len = 65536;

@@ -72,7 +72,7 @@ describe('low-pass prototype values', () => {
     }
   });
 
-  it('Chebyshev 0.1 dB, n = 5: 1.1468, 1.3712, 1.9750 (MYJ Table 4.05-2(a), as recorded in REFERENCES.md §8 [P])', () => {
+  it('Chebyshev 0.1 dB, n = 5: 1.1468, 1.3712, 1.9750 (MYJ Table 4.05-2(a), as recorded in docs/REFERENCES.md §8 [P])', () => {
     expect(round4(prototypeValues('chebyshev', 5, 0.1))).toEqual([1.1468, 1.3712, 1.975, 1.3712, 1.1468]);
   });
 

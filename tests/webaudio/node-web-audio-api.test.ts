@@ -62,14 +62,14 @@ describe('quadrature processor in node-web-audio-api', () => {
     expect(r.wanted.levelDbfs).toBeCloseTo(-6, 1);
   });
 
-  it('a phase trim given at construction reads as REFERENCES.md §1 says (1° → 41.18 dB)', async () => {
+  it('a phase trim given at construction reads as docs/REFERENCES.md §1 says (1° → 41.18 dB)', async () => {
     const { i, q } = await render(0.4, () => {}, {
       source: { kind: 'tone', frequencyHz: 1800 },
       levelDb: -3,
       trims: { phaseDeg: 1 },
     });
     const r = measureSideband(i.subarray(4800), q.subarray(4800), FS, { toneHz: 1800 });
-    // REFERENCES.md §1 [C]: 1° phase error, g = 1 → 41.183 dB (Schmidt, QEX Aug 1994 §2). The 60 dB
+    // docs/REFERENCES.md §1 [C]: 1° phase error, g = 1 → 41.183 dB (Schmidt, QEX Aug 1994 §2). The 60 dB
     // network's own phase error (up to 0.115°, i.e. 1° ± 0.115°) allows 40.2…42.3 dB.
     expect(imageRejectionDb(1, (1 * Math.PI) / 180)).toBeCloseTo(41.183, 2);
     expect(r.sidebandSuppressionDb).toBeCloseTo(

@@ -48,7 +48,7 @@ const READ_SAMPLES = 6144;
  * The invented benches the virtual exciter can stand for: the command line's preset name (its
  * `--preset`, simulate/ TOLERANCE_PRESETS), the option text (that name and plain words), a
  * description. `skew-bench` changes its imbalance across the band (skew τ gives a phase error of
- * 2πfτ, REFERENCES.md §6): one pair of trims cannot null the whole band; the correction filter can.
+ * 2πfτ, docs/REFERENCES.md §6): one pair of trims cannot null the whole band; the correction filter can.
  */
 export const VIRTUAL_BENCHES: [string, string, string][] = [
   ['homebrew-bench', 'homebrew-bench: hand-built', '0.5% resistors, 6 mV offsets, 16-bit codec, DC-coupled.'],
